@@ -1,0 +1,3 @@
+from codesearch.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,183 @@
+"""Command line shell: parse, make one library call, print text or JSON.
+
+Every command has a one-call Python equivalent named in its help. Heavy modules (numba
+kernels, solvers, matplotlib) are imported inside the command functions so that
+``codesearch --version`` and ``--help`` stay fast.
+
+Exit status: 0 success, 1 a checked claim is false, 2 bad input (one line on stderr), 130
+interrupted.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from typing import Any, Callable, Sequence
+
+from codesearch._version import __version__
+from codesearch.errors import InputError
+
+__all__ = ["main", "build_parser"]
+
+_COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {}
+
+
+def _int_range(text: str) -> range:
+    """Parse ``N`` or ``A..B`` (inclusive) into a range."""
+    try:
+        if ".." in text:
+            lo, hi = text.split("..", 1)
+            a, b = int(lo), int(hi)
+        else:
+            a = b = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected an integer or a range A..B, got {text!r}")
+    if b < a:
+        raise argparse.ArgumentTypeError(f"empty range {text!r}")
+    return range(a, b + 1)
+
+
+def _print_json(obj: Any) -> None:
+    print(json.dumps(obj, sort_keys=False))
+
+
+# ---------------------------------------------------------------------------------- check
+def _add_check(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "check",
+        help="verify a code file, generator matrix or bound certificate",
+        description="Verify a code file (length, alphabet, minimum distance, distance "
+        "distribution, linearity), a generator matrix (--generator) or a bound certificate "
+        "(recognised by its content). Python: codesearch.verify.check_file(path).",
+    )
+    p.add_argument("file", help="code file, generator matrix, or certificate (JSON)")
+    p.add_argument("--q", type=int, help="alphabet size (default: header, else largest symbol + 1)")
+    p.add_argument("--d", type=int, help="claimed minimum distance to check (exit 1 if false)")
+    p.add_argument("--generator", action="store_true",
+                   help="FILE is a generator matrix (rows over GF(q), q prime)")
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    _COMMANDS["check"] = _cmd_check
+
+
+def _cmd_check(args: argparse.Namespace) -> int:
+    from codesearch import verify
+
+    return verify.run_check_command(args)
+
+
+# --------------------------------------------------------------------------------- bounds
+def _add_bounds(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("bounds", help="upper bounds on A_q(n,d) with exact certificates")
+    p.add_argument("n", type=_int_range, help="length N or range A..B")
+    p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--json", action="store_true", help="one JSON object per cell")
+    _COMMANDS["bounds"] = _cmd_bounds
+
+
+def _cmd_bounds(args: argparse.Namespace) -> int:
+    raise InputError("the bounds command is not available yet")
+
+
+# ----------------------------------------------------------------------------------- find
+def _add_find(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("find", help="search for a large code in one cell")
+    p.add_argument("n", type=int, help="length")
+    p.add_argument("d", type=int, help="minimum distance")
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--method", default="exact", help="search method")
+    p.add_argument("--time", type=float, help="time limit in seconds")
+    p.add_argument("--seed", type=int, help="random seed")
+    p.add_argument("--out", help="write the code found to this file")
+    p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    _COMMANDS["find"] = _cmd_find
+
+
+def _cmd_find(args: argparse.Namespace) -> int:
+    raise InputError("the find command is not available yet")
+
+
+# ---------------------------------------------------------------------------------- table
+def _add_table(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("table", help="fill a table of cells into the results store")
+    _COMMANDS["table"] = _cmd_table
+
+
+def _cmd_table(args: argparse.Namespace) -> int:
+    raise InputError("the table command is not available yet")
+
+
+# --------------------------------------------------------------------------------- report
+def _add_report(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("report", help="render the stored table")
+    _COMMANDS["report"] = _cmd_report
+
+
+def _cmd_report(args: argparse.Namespace) -> int:
+    raise InputError("the report command is not available yet")
+
+
+# --------------------------------------------------------------------------------- export
+def _add_export(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("export", help="write the best stored code of a cell to a code file")
+    _COMMANDS["export"] = _cmd_export
+
+
+def _cmd_export(args: argparse.Namespace) -> int:
+    raise InputError("the export command is not available yet")
+
+
+# ----------------------------------------------------------------------------------- plot
+def _add_plot(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("plot", help="draw the rate-distance picture")
+    _COMMANDS["plot"] = _cmd_plot
+
+
+def _cmd_plot(args: argparse.Namespace) -> int:
+    raise InputError("the plot command is not available yet")
+
+
+# ----------------------------------------------------------------------------------- demo
+def _add_demo(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser("demo", help="run the built-in demo scenario end to end")
+    p.add_argument("--workdir", help="directory for the demo's files (default: a temp dir)")
+    _COMMANDS["demo"] = _cmd_demo
+
+
+def _cmd_demo(args: argparse.Namespace) -> int:
+    from codesearch import demo
+
+    return demo.run(args.workdir)
+
+
+# ------------------------------------------------------------------------------------ main
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser with every subcommand."""
+    parser = argparse.ArgumentParser(
+        prog="codesearch",
+        description="Find codes, prove upper bounds and fill tables of A_q(n,d).",
+    )
+    parser.add_argument("--version", action="version", version=f"codesearch {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for add in (_add_check, _add_bounds, _add_find, _add_table, _add_report, _add_export,
+                _add_plot, _add_demo):
+        add(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Entry point of the ``codesearch`` console script; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return 2
+    try:
+        return _COMMANDS[args.command](args)
+    except InputError as exc:
+        print(str(exc).splitlines()[0] if str(exc) else type(exc).__name__, file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print(f"codesearch {args.command}: interrupted", file=sys.stderr)
+        return 130

@@ -1,0 +1,134 @@
+"""The objects everything else talks about: cell parameters and codes.
+
+A *cell* of a table is a triple ``(q, n, d)``: alphabet size, length, minimum distance.
+A *code* is an ``(M, n)`` array of symbols ``0..q-1`` (dtype ``uint8``) together with ``q``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from codesearch.errors import ParameterError
+
+__all__ = ["MAX_Q", "Params", "Code"]
+
+#: Largest alphabet the code file format can write (symbols 0-9 then a-z).
+MAX_Q = 36
+
+
+@dataclass(frozen=True, order=True)
+class Params:
+    """One table cell: codes of length ``n`` over ``q`` symbols with minimum distance ``d``.
+
+    Raises
+    ------
+    ParameterError
+        If ``q < 2``, ``q > 36``, ``n < 1`` or ``d`` is outside ``1..n``.
+    """
+
+    q: int
+    n: int
+    d: int
+
+    def __post_init__(self) -> None:
+        for name in ("q", "n", "d"):
+            value = getattr(self, name)
+            if isinstance(value, bool) or not isinstance(value, (int, np.integer)):
+                raise ParameterError(f"{name} must be an integer, got {value!r}")
+            object.__setattr__(self, name, int(value))
+        if not 2 <= self.q <= MAX_Q:
+            raise ParameterError(f"alphabet size q={self.q} is outside 2..{MAX_Q}")
+        if self.n < 1:
+            raise ParameterError(f"length n={self.n} must be at least 1")
+        if not 1 <= self.d <= self.n:
+            raise ParameterError(f"minimum distance d={self.d} is outside 1..n={self.n}")
+
+    def __str__(self) -> str:
+        return f"A_{self.q}({self.n},{self.d})" if self.q != 2 else f"A({self.n},{self.d})"
+
+    @property
+    def space_size(self) -> int:
+        """Number of words in the ambient Hamming space, ``q**n``."""
+        return self.q**self.n
+
+
+@dataclass(frozen=True, eq=False)
+class Code:
+    """A block code held as explicit codewords.
+
+    Parameters
+    ----------
+    words : numpy.ndarray
+        ``(M, n)`` array of symbols in ``0..q-1``; stored as a read-only ``uint8`` copy.
+    q : int
+        Alphabet size.
+
+    Notes
+    -----
+    Duplicates are allowed in the container (the verifier reports them); canonical order is
+    lexicographic on the rows and is only applied on request (:meth:`canonical`).
+    """
+
+    words: np.ndarray
+    q: int
+
+    def __post_init__(self) -> None:
+        q = int(self.q)
+        if not 2 <= q <= MAX_Q:
+            raise ParameterError(f"alphabet size q={q} is outside 2..{MAX_Q}")
+        arr = np.asarray(self.words)
+        if arr.ndim != 2:
+            raise ParameterError(f"codewords must form a 2-d array, got shape {arr.shape}")
+        if arr.shape[1] < 1:
+            raise ParameterError("codewords must have length at least 1")
+        if arr.size and (arr.min() < 0 or arr.max() >= q):
+            raise ParameterError(f"a symbol lies outside 0..{q - 1}")
+        arr = np.array(arr, dtype=np.uint8, copy=True, order="C")
+        arr.setflags(write=False)
+        object.__setattr__(self, "words", arr)
+        object.__setattr__(self, "q", q)
+
+    @property
+    def size(self) -> int:
+        """Number of codewords M."""
+        return int(self.words.shape[0])
+
+    @property
+    def n(self) -> int:
+        """Length of the codewords."""
+        return int(self.words.shape[1])
+
+    def __len__(self) -> int:
+        return self.size
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Code):
+            return NotImplemented
+        return self.q == other.q and np.array_equal(self.words, other.words)
+
+    def __hash__(self) -> int:
+        return hash((self.q, self.words.shape, self.words.tobytes()))
+
+    def __repr__(self) -> str:
+        return f"Code(q={self.q}, n={self.n}, size={self.size})"
+
+    def canonical(self) -> "Code":
+        """The same code with its words in lexicographic order."""
+        if self.size == 0:
+            return self
+        order = np.lexsort(self.words.T[::-1])
+        return Code(self.words[order], self.q)
+
+    @classmethod
+    def from_strings(cls, words: list[str], q: int) -> "Code":
+        """Build a code from words written as strings of symbols 0-9a-z."""
+        rows = [[int(ch, 36) for ch in w] for w in words]
+        return cls(np.array(rows, dtype=np.uint8).reshape(len(rows), -1), q)
+
+    def to_strings(self) -> list[str]:
+        """Each codeword as a string of symbols 0-9a-z."""
+        alphabet = np.frombuffer(b"0123456789abcdefghijklmnopqrstuvwxyz", dtype=np.uint8)
+        chars = alphabet[self.words]
+        return [row.tobytes().decode("ascii") for row in chars]
