@@ -74,17 +74,10 @@ def pack_words(words: np.ndarray, q: int) -> tuple[np.ndarray, int, int]:
     ``limbs = ceil(n / 64)``; ``packed[i, p * limbs + l]`` holds bit p of the symbols of word i
     at positions ``64 l .. 64 l + 63``.
     """
-    # TODO(foundation): switch to codesearch._kernels.pack_words once it lands on main.
+    from codesearch import _kernels as K  # pack_words itself is numpy only (no compilation)
+
     words = np.asarray(words, dtype=np.uint8)
-    m, n = words.shape
-    planes = max(1, int(q - 1).bit_length())
-    limbs = max(1, (n + 63) >> 6)
-    packed = np.zeros((m, planes * limbs), dtype=np.uint64)
-    for p in range(planes):
-        bits = ((words >> p) & 1).astype(np.uint64)
-        for pos in range(n):
-            packed[:, p * limbs + (pos >> 6)] |= bits[:, pos] << np.uint64(pos & 63)
-    return packed, planes, limbs
+    return K.pack_words(words, q), K.plane_count(q), K.limb_count(words.shape[1])
 
 
 def code_graph(words: np.ndarray, q: int, d: int) -> np.ndarray:
