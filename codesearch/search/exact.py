@@ -247,8 +247,11 @@ def run(
     settings: dict[str, Any] = {"reduce": bool(reduce), "leaf_size": int(leaf_size),
                                 "max_fixed": int(max_fixed), "time_limit": time_limit,
                                 "target": target, "version": __version__,
+                                "numba": _numba_version(),
                                 "known_upper": ext}
-    root = graph.root(q, n, d)
+    even = bool(reduce) and graph.even_weight_suffices(q, d)
+    settings["even_weight_only"] = even
+    root = graph.root(q, n, d, even=even)
     skipped_bound: int | None = None
     if not reduce:
         s.max_fixed = 0
@@ -294,6 +297,12 @@ def run(
             Status.FEASIBLE if code is not None else Status.UNKNOWN)
     return SearchResult(params, status, code, int(upper), "exact",
                         time.perf_counter() - start, int(s.nodes), seed, settings, target)
+
+
+def _numba_version() -> str:
+    import numba
+
+    return str(numba.__version__)
 
 
 def _upper_next(params: Params, s: _Search, settings: dict[str, Any]) -> int | None:

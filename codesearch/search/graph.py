@@ -17,7 +17,9 @@ Reductions (each is proved in the docstring of the function that applies it)
    stabiliser of the words already fixed. Applied to no fixed word it puts the zero word in the
    code; applied to ``{0}`` it fixes a second word by its weight (``1^w 0^(n-w)``); applied again
    it fixes third, fourth, ... words up to the remaining symmetry.
-2. :func:`distance_d_pair_suffices`: when ``M > A_q(n,d+1)`` every code of size M has two words
+2. :func:`even_weight_suffices`: for binary codes of even d only even-weight words are
+   needed.
+3. :func:`distance_d_pair_suffices`: when ``M > A_q(n,d+1)`` every code of size M has two words
    at distance exactly d, so only the orbit of weight-d words is needed at the second level.
 
 References
@@ -44,6 +46,7 @@ __all__ = [
     "all_words",
     "code_graph",
     "distance_d_pair_suffices",
+    "even_weight_suffices",
     "orbit_split",
     "pack_words",
     "stabiliser_canon",
@@ -226,6 +229,29 @@ def distance_d_pair_suffices(size: int, upper_next: int) -> bool:
     return size > upper_next
 
 
-def root(params_q: int, params_n: int, params_d: int) -> Subproblem:
-    """The unreduced node: no fixed word, every word of the space a candidate."""
-    return Subproblem(np.zeros((0, params_n), dtype=np.uint8), all_words(params_q, params_n), 0)
+def root(q: int, n: int, d: int, *, even: bool = False) -> Subproblem:
+    """The top node: no fixed word; every word a candidate, or only the even-weight words.
+
+    ``even=True`` (binary, d even) is the reduction of :func:`even_weight_suffices`.
+    """
+    words = all_words(q, n)
+    if even:
+        words = words[(words.sum(axis=1) % 2) == 0]
+    return Subproblem(np.zeros((0, n), dtype=np.uint8), words, 0)
+
+
+def even_weight_suffices(q: int, d: int) -> bool:
+    """Whether a binary code with even d may be assumed to consist of even-weight words.
+
+    For q = 2 and even d, take any code C of minimum distance >= d and change the last
+    coordinate of every word to the parity of the others (puncture, then extend by a
+    parity bit). Distinct words of C stay distinct and at distance >= d - 1 after
+    puncturing (d >= 2); after extension all words have even weight, so all distances are
+    even, hence >= d. The new code has the same size, so a largest code exists inside the
+    even-weight words E (the classical A(n,d) = A(n-1,d-1), MacWilliams & Sloane ch. 2).
+
+    The reductions below stay valid inside E: the isometries they use are coordinate
+    permutations and translations by codewords, which are in E, and both preserve E (so
+    every group element used by :func:`orbit_split` maps candidates to candidates).
+    """
+    return q == 2 and d % 2 == 0
