@@ -291,7 +291,8 @@ def gf_rank(words, p, limit):
 #   bst[k, 0..cnt)  cumulative bound of each listed vertex's class (non-decreasing)
 #   pos[k]          next list index to branch on (the list is consumed from the end)
 #   cw[k]           weight of clique[0..k)
-# state = [depth, best weight, best size, nodes, phase (0 fresh, 1 running, 2 done)].
+# state = [depth, best weight, best size, nodes, phase (0 fresh, 1 running, 2 done), goal]
+# where a positive goal stops the search as soon as the incumbent weighs at least that much.
 
 
 @nb.njit(nb.int64(nb.uint64[:], nb.int64), cache=True)
@@ -369,7 +370,8 @@ def clique_search(adj, weights, pst, lst, bst, cnt, pos, cw, clique, best_clique
 
     Returns 1 when the search space is exhausted (the incumbent in ``best_clique[:state[2]]``
     is then optimal among cliques heavier than the initial ``state[1]``), 0 when the node
-    budget ran out first (call again to resume).
+    budget ran out first (call again to resume), 2 when the incumbent reached the goal
+    ``state[5] > 0`` (resumable as well).
     """
     nwords = pst.shape[1]
     if state[4] == 2:
@@ -422,6 +424,14 @@ def clique_search(adj, weights, pst, lst, bst, cnt, pos, cw, clique, best_clique
             state[2] = k + 1
             for t in range(k + 1):
                 best_clique[t] = clique[t]
+            if state[5] > 0 and best >= state[5]:
+                # Goal met. Leave v on the stack as if not yet expanded (pos unchanged), so a
+                # resumed call branches on it again; the incumbent only grows.
+                nodes -= 1
+                state[0] = depth
+                state[1] = best
+                state[3] = nodes
+                return 2
         if nonempty:
             cw[k + 1] = wk
             clique_colour_level(adj, weights, pst, lst, bst, cnt, pos, k + 1, best - wk,

@@ -178,3 +178,16 @@ def test_bad_inputs():
         max_clique(adj.astype(np.int64))
     with pytest.raises(ParameterError):
         bitsets_from_dense(np.array([[0, 1], [0, 0]]))
+
+
+def test_goal_stops_early_with_a_valid_clique():
+    # Complete graph K_40 minus a perfect matching: clique number 20 (one vertex per pair).
+    n = 40
+    a = ~np.eye(n, dtype=bool)
+    for i in range(0, n, 2):
+        a[i, i + 1] = a[i + 1, i] = False
+    adj = bitsets_from_dense(a)
+    full = max_clique(adj)
+    assert full.optimal and full.size == 20
+    res = max_clique(adj, goal=15)
+    assert res.size >= 15 and is_clique(adj, res.vertices) and res.upper >= 20

@@ -169,6 +169,7 @@ def max_weight_clique(
     lower: int = 0,
     progress: Callable[[dict[str, Any]], None] | None = None,
     node_limit: int | None = None,
+    goal: int | None = None,
 ) -> CliqueResult:
     """Maximum weight clique of a bitset graph, exactly (or anytime under a time limit).
 
@@ -189,6 +190,9 @@ def max_weight_clique(
         Called about every 0.2 s with ``{"nodes", "incumbent", "upper", "elapsed"}``.
     node_limit : int, optional
         Stop after this many branch-and-bound nodes (deterministic budget).
+    goal : int, optional
+        Stop as soon as a clique of at least this weight is found (``complete`` is then
+        False unless the bound also closed).
 
     Returns
     -------
@@ -240,24 +244,27 @@ def max_weight_clique(
     best_clique = np.zeros(depth, np.int64)
 
     best0 = max(int(gw), lower)
-    state = np.array([0, best0, 0, 0, 0], dtype=np.int64)
+    state = np.array([0, best0, 0, 0, 0, 0 if goal is None else max(1, int(goal))],
+                     dtype=np.int64)
     if gw > lower:
         best_clique[: gclique.size] = gclique
         state[2] = gclique.size
+    reached = goal is not None and state[2] > 0 and gw >= goal
 
     chunk = _FIRST_CHUNK
     done = False
     deadline = None if time_limit is None else start + float(time_limit)
     last_report = start
-    while True:
+    while not reached:
         budget = int(state[3]) + chunk
         if node_limit is not None:
             budget = min(budget, int(node_limit))
         t0 = time.perf_counter()
-        done = bool(K.clique_search(padj, pw, pst, lst, bst, cnt, pos, cw, clique, best_clique,
-                                    state, budget, scratch_q, scratch_c))
+        code = int(K.clique_search(padj, pw, pst, lst, bst, cnt, pos, cw, clique, best_clique,
+                                   state, budget, scratch_q, scratch_c))
         now = time.perf_counter()
-        if done:
+        done = code == 1
+        if done or code == 2:
             break
         if node_limit is not None and state[3] >= node_limit:
             break
@@ -311,8 +318,9 @@ def max_clique(
     lower: int = 0,
     progress: Callable[[dict[str, Any]], None] | None = None,
     node_limit: int | None = None,
+    goal: int | None = None,
 ) -> CliqueResult:
     """Maximum clique of a bitset graph: :func:`max_weight_clique` with unit weights."""
     adj, n = _check_graph(adj_bits, None)
     return max_weight_clique(adj, np.ones(n, np.int64), time_limit=time_limit, lower=lower,
-                             progress=progress, node_limit=node_limit)
+                             progress=progress, node_limit=node_limit, goal=goal)

@@ -127,13 +127,15 @@ class _Search:
                                "incumbent": max(self.best, k + info["incumbent"]),
                                "leaves": self.leaves,
                                "elapsed": time.perf_counter() - self.start})
-        res = clique.max_clique(adj, time_limit=left, lower=max(need, 0), progress=prog)
+        goal = None if self.stop_at is None else max(1, self.stop_at - k)
+        res = clique.max_clique(adj, time_limit=left, lower=max(need, 0), progress=prog,
+                                goal=goal)
         self.nodes += res.nodes
         self.leaves += 1
         if res.size > need:
             self.best = k + res.size
             self.code = np.vstack([sub.fixed, sub.candidates[res.vertices]])
-        if not res.complete:
+        if not res.complete and not self.goal_met():
             self.timed_out = True
             self.pending_upper = max(self.pending_upper, k + res.upper)
         self.report()
