@@ -159,6 +159,12 @@ def test_target_decides_existence():
     p = Params(2, 8, 3)  # A(8,3) = 20 (see PUBLISHED)
     yes = search(p, "exact", target=20)
     assert yes.exists is True and yes.size >= 20
+    assert yes.upper is not None and yes.upper >= 20
+    for small in (1, 2, 5):
+        # Meeting a small target proves nothing about optimality.
+        res = search(p, "exact", target=small)
+        assert res.exists is True and res.status is Status.FEASIBLE
+        assert res.upper >= 20
     no = search(p, "exact", target=21)
     assert no.status is Status.INFEASIBLE and no.exists is False and no.upper == 20
 
@@ -186,3 +192,17 @@ def test_cli_find_bad_input_exits_2(argv, capsys):
     assert main(argv + ["--quiet"]) == 2
     err = capsys.readouterr().err.strip()
     assert err and "\n" not in err and "Traceback" not in err
+
+
+def test_progress_callback_and_live_display():
+    from codesearch.search.progress import live_progress
+
+    seen = []
+    res = search(Params(2, 8, 3), "exact", progress=seen.append)
+    assert res.optimal and seen
+    assert {"nodes", "incumbent", "elapsed"} <= set(seen[-1])
+    with live_progress(enabled=True, label="A(8,3)") as update:
+        for info in seen:
+            update(info)
+    with live_progress(enabled=False) as update:
+        assert update is None

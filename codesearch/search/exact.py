@@ -89,8 +89,9 @@ class _Search:
         self.leaves = 0
         self.leaf_size = leaf_size
         self.max_fixed = max_fixed
-        self.timed_out = False
-        self.pending_upper = 0  # bound over nodes abandoned at the time limit
+        self.stopped = False  # time limit hit or goal met: the rest of the tree is abandoned
+        self.pending_upper = 0  # bound over abandoned nodes (valid once stopped)
+        self.known_upper: int | None = None  # a bound from the bounds module, when usable
         self.last_report = start
 
     def time_left(self) -> float | None:
@@ -100,6 +101,13 @@ class _Search:
 
     def goal_met(self) -> bool:
         return self.stop_at is not None and self.best >= self.stop_at
+
+    def abandon(self, sub: Any) -> None:
+        """Account for a node left unsearched: its bound joins the proved upper bound, unless
+        the incumbent already meets a known bound (then the answer is settled anyway)."""
+        if self.known_upper is not None and self.best >= self.known_upper:
+            return
+        self.pending_upper = max(self.pending_upper, _node_bound(sub, self.params))
 
     def report(self, force: bool = False) -> None:
         if self.progress is None:
@@ -135,8 +143,9 @@ class _Search:
         if res.size > need:
             self.best = k + res.size
             self.code = np.vstack([sub.fixed, sub.candidates[res.vertices]])
-        if not res.complete and not self.goal_met():
-            self.timed_out = True
+        if not res.complete:
+            # Stopped by the clock or by the goal: only the bound proved so far holds here.
+            self.stopped = True
             self.pending_upper = max(self.pending_upper, k + res.upper)
         self.report()
 
@@ -148,10 +157,12 @@ class _Search:
         if k > self.best:
             self.best = k
             self.code = sub.fixed.copy()
-        if self.timed_out:
-            self.pending_upper = max(self.pending_upper, _node_bound(sub, self.params))
+            if self.goal_met():
+                self.stopped = True
+        if self.stopped:
+            self.abandon(sub)
             return
-        if self.goal_met() or k + sub.candidates.shape[0] <= self.best:
+        if k + sub.candidates.shape[0] <= self.best:
             return
         if sub.candidates.shape[0] <= self.leaf_size or k >= self.max_fixed:
             self.solve_leaf(sub)
@@ -160,7 +171,7 @@ class _Search:
                                        first_weight=first_weight):
             left = self.time_left()
             if left is not None and left <= 0:
-                self.timed_out = True
+                self.stopped = True
             self.walk(child)
 
 
@@ -246,6 +257,7 @@ def run(
     best0 = (target - 1) if target is not None else 0
     s = _Search(params, deadline, start, progress, stop_at, best0, int(leaf_size),
                 int(max_fixed))
+    s.known_upper = ext
     settings: dict[str, Any] = {"reduce": bool(reduce), "leaf_size": int(leaf_size),
                                 "max_fixed": int(max_fixed), "time_limit": time_limit,
                                 "target": target, "version": __version__,
@@ -263,13 +275,10 @@ def run(
         children = graph.orbit_split(zero_node, q, d, first_weight=d)
         if zero_node.fixed.shape[0] > s.best:
             s.best, s.code = 1, zero_node.fixed.copy()
+            s.stopped = s.goal_met()
         for idx, child in enumerate(children):
-            if s.timed_out or s.goal_met():
-                if s.timed_out:
-                    s.pending_upper = max(s.pending_upper, _node_bound(child, params))
-                continue
             s.walk(child)
-            if idx == 0 and not s.timed_out and len(children) > 1:
+            if idx == 0 and not s.stopped and len(children) > 1:
                 # Weight-d child done: is the rest needed? Only if the incumbent does not
                 # exceed an upper bound on A_q(n,d+1) (distance_d_pair_suffices).
                 u_next = _upper_next(params, s, settings)
@@ -281,7 +290,7 @@ def run(
 
     code = None if s.code is None else Code(s.code, q)
     size = 0 if code is None else code.size
-    if s.timed_out:
+    if s.stopped:
         upper = max(s.best, s.pending_upper)
     else:
         upper = s.best if skipped_bound is None else max(s.best, skipped_bound)
