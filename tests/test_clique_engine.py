@@ -116,6 +116,23 @@ def test_order_permute_greedy_match_twins(gw):
     assert is_clique(adj, verts)
 
 
+@given(graphs(max_n=70))
+def test_prepare_matches_twins(gw):
+    a, w = gw
+    n = a.shape[0]
+    if n == 0:
+        return
+    adj = bitsets_from_dense(a)
+    sets = R.bitset_rows_to_sets(adj, n)
+    order, padj, pw, gwt, gclique, classes = K.clique_prepare(adj, np.asarray(w, np.int64), n, 7)
+    assert order.tolist() == R.degeneracy_order(sets)
+    psets = R.permute(sets, order)
+    assert R.bitset_rows_to_sets(padj, n) == psets
+    assert pw.tolist() == [int(w[v]) for v in order]
+    assert gwt == R.greedy_clique(psets, pw, 7) == int(pw[gclique].sum())
+    assert classes == R.colour_level(psets, np.ones(n), set(range(n)), -1)[2]
+
+
 @given(st.integers(2, 4), st.integers(1, 7), st.integers(1, 7), st.integers(0, 2**32 - 1))
 def test_code_adjacency_matches_twin(q, n, d, seed):
     from codesearch.search.graph import code_graph

@@ -211,27 +211,17 @@ def max_weight_clique(
     if n == 0:
         return CliqueResult(np.empty(0, np.int64), 0, max(0, lower), True, 0, 0.0)
 
-    # Renumber in degeneracy order (ties keep the caller's order): colouring by lowest index
-    # then follows it, which is what makes the colour bound tight in practice [2], [4].
-    order = K.clique_degeneracy_order(adj, n)
-    padj = K.clique_permute(adj, order, n)
-    pw = np.ascontiguousarray(w[order])
-
-    gw, gclique = K.clique_greedy(padj, pw, n, min(n, 64))
-    nwords = padj.shape[1]
+    # Renumber in degeneracy order (ties by lowest index): colouring by lowest index then
+    # follows it, which is what makes the colour bound tight in practice [2], [4].
     # Depth never exceeds the number of colour classes of the whole graph (a clique meets
-    # each class once) plus the empty level; the colour count of the root gives it.
+    # each class once) plus the empty level.
+    order, padj, pw, gw, gclique, classes = K.clique_prepare(adj, w, n, min(n, 64))
+    nwords = padj.shape[1]
     scratch_q = np.empty(nwords, np.uint64)
     scratch_c = np.empty(nwords, np.uint64)
     root_p = np.zeros((1, nwords), np.uint64)
     for v in range(n):
         root_p[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
-    tmp_l = np.empty((1, n), np.int64)
-    tmp_b = np.empty((1, n), np.int64)
-    tmp_c = np.empty(1, np.int64)
-    tmp_pos = np.empty(1, np.int64)
-    classes = K.clique_colour_level(padj, np.ones(n, np.int64), root_p, tmp_l, tmp_b, tmp_c,
-                                    tmp_pos, 0, -1, scratch_q, scratch_c)
     depth = int(classes) + 2
     pst = np.zeros((depth, nwords), np.uint64)
     pst[0] = root_p[0]
