@@ -208,3 +208,27 @@ def test_goal_stops_early_with_a_valid_clique():
     assert full.optimal and full.size == 20
     res = max_clique(adj, goal=15)
     assert res.size >= 15 and is_clique(adj, res.vertices) and res.upper >= 20
+
+
+def test_importing_search_modules_loads_no_numba():
+    import subprocess
+    import sys
+
+    code = ("import sys, codesearch, codesearch.search.clique, codesearch.search.graph, "
+            "codesearch.search.exact, codesearch.search.progress; "
+            "assert 'numba' not in sys.modules, 'numba imported'")
+    subprocess.run([sys.executable, "-c", code], check=True)
+
+
+def test_public_api_of_the_clique_module():
+    import codesearch.search.clique as C
+
+    assert sorted(C.__all__) == sorted([
+        "CliqueResult", "bitsets_from_dense", "bitsets_from_edges", "bitsets_to_dense",
+        "is_clique", "max_clique", "max_weight_clique",
+    ])
+    import inspect
+
+    params = inspect.signature(C.max_weight_clique).parameters
+    assert list(params)[:2] == ["adj_bits", "weights"]
+    assert {"time_limit", "lower", "progress", "node_limit", "goal"} <= set(params)
