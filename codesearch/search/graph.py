@@ -186,10 +186,11 @@ def orbit_split(sub: Subproblem, q: int, d: int, *, first_weight: int | None = N
     equivalent code lies in child j. A code with S empty is just ``fixed`` and is recorded by
     the caller.
 
-    Orbits are ordered with ``first_weight`` first when given (see
-    :func:`distance_d_pair_suffices`), then by increasing distance sum to the fixed words
-    (words close to the fixed ones constrain the rest most, so those children are small),
-    then lexicographically.
+    Any order is valid. Orbits are ordered with ``first_weight`` first when given (see
+    :func:`distance_d_pair_suffices`), then by decreasing size among the candidates (large
+    orbits excluded early leave the later children small), then by increasing distance sum
+    to the fixed words, then lexicographically. Measured here against distance-first order:
+    A(8,3) 185k vs 228k clique nodes, A(9,4) 61k vs 258k.
     """
     cands = sub.candidates
     if cands.shape[0] == 0:
@@ -204,7 +205,8 @@ def orbit_split(sub: Subproblem, q: int, d: int, *, first_weight: int | None = N
     key_first = np.zeros(reps.shape[0], dtype=np.int64)
     if first_weight is not None:
         key_first = (weights != first_weight).astype(np.int64)
-    order = np.lexsort((np.arange(reps.shape[0]), dist_fixed, key_first))
+    sizes = np.bincount(inverse, minlength=reps.shape[0])
+    order = np.lexsort((np.arange(reps.shape[0]), dist_fixed, -sizes, key_first))
     excluded = np.zeros(cands.shape[0], dtype=bool)
     children = []
     for j in order:
