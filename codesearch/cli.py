@@ -142,12 +142,28 @@ def _cmd_export(args: argparse.Namespace) -> int:
 
 # ----------------------------------------------------------------------------------- plot
 def _add_plot(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("plot", help="draw the rate-distance picture")
+    p = sub.add_parser(
+        "plot",
+        help="draw the rate-distance picture",
+        description="Asymptotic bounds on the rate against relative distance (Singleton, "
+        "Hamming, Plotkin, Elias-Bassalygo, first LP bound, Gilbert-Varshamov) and, with "
+        "--n, the finite cells of those lengths (bar from GV to the best upper bound). "
+        "Python: codesearch.plot.save_rate_distance(path, q, points).",
+    )
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
+    p.add_argument("--no-lp", action="store_true", help="finite cells from closed forms only")
+    p.add_argument("--out", default="rate-distance.png",
+                   help="output file, .png, .svg or .pdf (default rate-distance.png)")
     _COMMANDS["plot"] = _cmd_plot
 
 
 def _cmd_plot(args: argparse.Namespace) -> int:
-    raise InputError("the plot command is not available yet")
+    from codesearch.bounds import report
+
+    path = report.run_plot_command(args.q, args.n, out=args.out, lp=not args.no_lp)
+    print(path)
+    return 0
 
 
 # ----------------------------------------------------------------------------------- demo

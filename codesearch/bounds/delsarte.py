@@ -129,25 +129,37 @@ def _scaled_matrix(q: int, n: int) -> np.ndarray:
     return Q
 
 
+def _degrees(n: int, even: bool) -> list[int]:
+    """Degrees k of the dual variables kept in the LP.
+
+    On even distances the binary Krawtchouk values satisfy K_k(i) = K_{n-k}(i) and
+    K_k(0) = K_{n-k}(0), so y_k and y_{n-k} are interchangeable and k > n/2 can be dropped;
+    K_n(i) = 1 there (a positive constant that only costs), so k = n is dropped too.
+    """
+    return list(range(1, n // 2 + 1)) if even else list(range(1, n + 1))
+
+
 def _problem(q: int, n: int, d: int, even: bool, use_extra: bool):
     rows = allowed_distances(n, d, even)
+    ks = _degrees(n, even)
     extras = extra_inequalities(n, d) if (use_extra and q == 2) else []
     if even:
         # Odd distances are absent, so inequalities touching only odd i are void.
         extras = [e for e in extras if any(i % 2 == 0 and i >= d for i in e[2])]
     Q = _scaled_matrix(q, n)
-    G = np.empty((len(rows), n + len(extras)))
-    G[:, :n] = Q[rows, :]
+    nk = len(ks)
+    G = np.empty((len(rows), nk + len(extras)))
+    G[:, :nk] = Q[np.ix_(rows, [k - 1 for k in ks])]
     for j, (_, _, coeffs, b) in enumerate(extras):
-        G[:, n + j] = [-coeffs.get(i, 0) / b for i in rows]
-    return rows, extras, G
+        G[:, nk + j] = [-coeffs.get(i, 0) / b for i in rows]
+    return rows, ks, extras, G
 
 
 def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
-    """Solve the scaled dual with HiGHS; returns (rows, extras, G, scipy result)."""
+    """Solve the scaled dual with HiGHS; returns (rows, degrees, extras, G, scipy result)."""
     from scipy.optimize import linprog
 
-    rows, extras, G = _problem(q, n, d, even, use_extra)
+    rows, ks, extras, G = _problem(q, n, d, even, use_extra)
     c = np.ones(G.shape[1])
     b = -np.ones(len(rows))
     # Dual simplex first (it returns a vertex, whose active set the refinement uses); the
@@ -156,7 +168,7 @@ def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
         res = linprog(c, A_ub=G, b_ub=b, bounds=(0, None), method=method)
         if res.status == 0:
             break
-    return rows, extras, G, res
+    return rows, ks, extras, G, res
 
 
 def _to_dyadic(values: np.ndarray, scales: list[int], E: int) -> list[int]:
@@ -174,13 +186,13 @@ def _to_dyadic(values: np.ndarray, scales: list[int], E: int) -> list[int]:
 class _Exact:
     """Exact integer data of one LP instance (Krawtchouk columns and extra rows)."""
 
-    def __init__(self, q: int, n: int, rows: list[int], extras: list) -> None:
+    def __init__(self, q: int, n: int, rows: list[int], ks: list[int], extras: list) -> None:
         K = krawtchouk_table(q, n)
         self.n = n
         self.rows = rows
-        self.K0 = [K[k][0] for k in range(1, n + 1)]
+        self.K0 = [K[k][0] for k in ks]
         # cols[c][r]: integer coefficient of variable c in constraint row r (y part +K, z part -a).
-        self.cols = [[K[k][i] for i in rows] for k in range(1, n + 1)]
+        self.cols = [[K[k][i] for i in rows] for k in ks]
         self.cols += [[-coeffs.get(i, 0) for i in rows] for (_, _, coeffs, _) in extras]
         self.cost = self.K0 + [b for (_, _, _, b) in extras]
 
@@ -209,6 +221,68 @@ class _Exact:
         return 1 + obj // W, W, m, obj
 
 
+def _solve_exact(M: list[list[int]], rhs: list[int]) -> list[Fraction] | None:
+    """Solve the square integer system M x = rhs in exact rationals (None if singular).
+
+    Fraction-free Gauss-Jordan (Bareiss-style scaling kept implicit through Fractions would be
+    slower): rows are integer lists, each elimination step cross-multiplies and divides
+    out the gcd to keep entries small.
+    """
+    from math import gcd
+
+    size = len(M)
+    A = [list(row) + [b] for row, b in zip(M, rhs)]
+    for col in range(size):
+        piv = next((r for r in range(col, size) if A[r][col] != 0), None)
+        if piv is None:
+            return None
+        A[col], A[piv] = A[piv], A[col]
+        prow = A[col]
+        p = prow[col]
+        for r in range(size):
+            if r == col or A[r][col] == 0:
+                continue
+            f = A[r][col]
+            row = [p * a - f * b for a, b in zip(A[r], prow)]
+            g = 0
+            for v in row:
+                g = gcd(g, v)
+                if g == 1:
+                    break
+            if g > 1:
+                row = [v // g for v in row]
+            A[r] = row
+    return [Fraction(A[r][size], A[r][r]) for r in range(size)]
+
+
+def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
+    """Exact vertex on the active set of the float solution, checked exactly.
+
+    Columns: the variables the float solution uses; rows: as many constraints of least slack.
+    When the float basis is the optimal one this returns the exact LP optimum.
+    """
+    from math import lcm
+
+    x = np.asarray(res.x)
+    top = float(np.max(x)) if x.size else 0.0
+    if not top > 0:
+        return None
+    S = [c for c in range(len(x)) if x[c] > 1e-12 * top]
+    order = np.argsort(np.asarray(res.ineqlin.residual), kind="stable")
+    if len(S) > len(order):
+        return None
+    T = [int(r) for r in order[: len(S)]]
+    M = [[ex.cols[c][r] for c in S] for r in T]
+    sol = _solve_exact(M, [-1] * len(T))
+    if sol is None or any(v < 0 for v in sol):
+        return None
+    L = lcm(*(v.denominator for v in sol))
+    m = [0] * len(ex.cols)
+    for c, v in zip(S, sol):
+        m[c] = v.numerator * (L // v.denominator)
+    return ex.certify(m)
+
+
 def _scaled_float(value: int, E: int) -> float:
     """value / 2^E as a float without overflowing on huge integers."""
     shift = max(0, abs(value).bit_length() - 64)
@@ -220,10 +294,10 @@ def _fmt(x: Fraction) -> str:
 
 
 def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool):
-    rows, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
+    rows, ks, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
     if res.status != 0:
-        return None, rows, extras, res
-    ex = _Exact(q, n, rows, extras)
+        return None, ks, extras, res
+    ex = _Exact(q, n, rows, ks, extras)
     E = (q**n).bit_length() + _GUARD_BITS
     m = _to_dyadic(res.x, ex.cost, E)
     best = ex.certify(m)
@@ -231,6 +305,11 @@ def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool):
     # Refine when rescaling may have cost an integer: the certified floor exceeds the float
     # optimum's floor (after a relative tolerance), or the value is beyond float precision.
     need = best is None or best[0] > int(np.floor(fobj * (1 + 1e-9) + 1e-9)) or fobj > 2.0**40
+    if need:
+        exact = _basis_solve(ex, res)
+        if exact is not None and (best is None or exact[0] <= best[0]):
+            best = exact
+            need = False
     if need:
         slack = res.ineqlin.residual
         tol = 1e-9
@@ -255,7 +334,7 @@ def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool):
                 cand = ex.certify(m)
                 if cand is not None and (best is None or cand[0] < best[0]):
                     best = cand
-    return best, rows, extras, res
+    return best, ks, extras, res
 
 
 #: Largest LP handled: n (after the odd-d mapping) and bit length of q^n (the dyadic rounding
@@ -271,7 +350,7 @@ def _run(params: Params, use_extra: bool, name: str) -> BoundResult | None:
     n, d, even = lp_cell(params)
     if n > MAX_LP_N or (q**n).bit_length() > MAX_LP_BITS:
         return None
-    best, rows, extras, res = _solve_certified(q, n, d, even, use_extra)
+    best, ks, extras, res = _solve_certified(q, n, d, even, use_extra)
     mapped = (n, d) != (params.n, params.d)
     where = f" solved at A({n},{d})" if mapped else ""
     if best is None:
@@ -279,8 +358,10 @@ def _run(params: Params, use_extra: bool, name: str) -> BoundResult | None:
         return BoundResult(params, fval, name, certified=False,
                            note=f"float LP value not certified{where}")
     value, W, m, obj = best
-    y = [Fraction(mc, W) for mc in m[:n]]
-    z = [Fraction(mc, W) for mc in m[n:]]
+    y = [Fraction(0)] * n
+    for k, mc in zip(ks, m):
+        y[k - 1] = Fraction(mc, W)
+    z = [Fraction(mc, W) for mc in m[len(ks):]]
     cert: dict[str, Any] = {
         "kind": "delsarte-lp",
         "q": q,

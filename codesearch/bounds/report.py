@@ -19,7 +19,7 @@ from typing import Iterable, TextIO
 from codesearch.errors import ParameterError
 from codesearch.model import Params
 
-__all__ = ["cells", "run_bounds_command", "format_value"]
+__all__ = ["cells", "run_bounds_command", "format_value", "finite_points", "run_plot_command"]
 
 _SHORT = {
     "singleton": "singleton",
@@ -102,3 +102,24 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
             json.dump(dict(best.certificate), fh, indent=1)
             fh.write("\n")
     return 0
+
+
+def finite_points(q: int, ns: Iterable[int], *, lp: bool = True) -> list[tuple[int, int, int, int]]:
+    """(n, d, gv, upper) for every cell of the given lengths (the plot's finite points)."""
+    from codesearch.bounds import gv_lower_bound, upper_bound
+
+    out = []
+    for n in ns:
+        for d in range(1, n + 1):
+            p = Params(q, n, d)
+            out.append((n, d, gv_lower_bound(p), upper_bound(p, lp=lp).value))
+    return out
+
+
+def run_plot_command(q: int, ns: Iterable[int] | None, *, out: str, lp: bool = True) -> str:
+    """Draw the rate-distance picture (with the cells of lengths ``ns``) into ``out``."""
+    from codesearch.plot import save_rate_distance
+
+    Params(q, 1, 1)  # validates q with the usual one-line error
+    points = finite_points(q, ns, lp=lp) if ns is not None else None
+    return save_rate_distance(out, q, points)
