@@ -120,13 +120,18 @@ def _extra_row(family: str, index: int, n: int, d: int) -> tuple[dict[int, int],
 
 
 def _parse_fraction(text: Any, what: str) -> Fraction:
+    """Parse ``"p/q"`` or ``"p"`` (decimal integers, q > 0) exactly."""
     if not isinstance(text, str):
         raise InputError(f"certificate: {what} must be a string 'p/q', got {text!r}")
+    num, _, den = text.partition("/")
     try:
-        value = Fraction(text)
-    except (ValueError, ZeroDivisionError):
+        p = int(num)
+        q = int(den) if den else 1
+    except ValueError:
         raise InputError(f"certificate: {what} is not a rational 'p/q': {text!r}") from None
-    return value
+    if q <= 0:
+        raise InputError(f"certificate: {what} needs a positive denominator: {text!r}")
+    return Fraction(p, q)
 
 
 def _check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:

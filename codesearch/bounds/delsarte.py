@@ -155,17 +155,79 @@ def _problem(q: int, n: int, d: int, even: bool, use_extra: bool):
     return rows, ks, extras, G
 
 
-def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
-    """Solve the scaled dual with HiGHS; returns (rows, degrees, extras, G, scipy result)."""
+def _highs(G: np.ndarray, method: str):
+    """min sum(x) s.t. G x <= -1, x >= 0 through highspy (HiGHS itself, shipped with cvxpy),
+    skipping scipy's per-call option validation, which costs more than the solve on these
+    small dense LPs. Returns a linprog-like namespace (status 0 = optimal)."""
+    from types import SimpleNamespace
+
+    import highspy
+
+    rows, cols = G.shape
+    # The pybind core class: the Python wrapper prints a banner to stdout on first use,
+    # which would corrupt ``--json`` output; the core with output_flag off is silent.
+    h = highspy._core._Highs()
+    h.setOptionValue("output_flag", False)
+    h.setOptionValue("solver", "simplex" if method == "highs-ds" else "ipm")
+    if method == "highs-ds":
+        h.setOptionValue("simplex_strategy", 1)
+    inf = highspy.kHighsInf
+    lp = highspy.HighsLp()
+    lp.num_col_ = cols
+    lp.num_row_ = rows
+    lp.col_cost_ = np.ones(cols)
+    lp.col_lower_ = np.zeros(cols)
+    lp.col_upper_ = np.full(cols, inf)
+    lp.row_lower_ = np.full(rows, -inf)
+    lp.row_upper_ = np.full(rows, -1.0)
+    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    Gc = np.asfortranarray(G)
+    lp.a_matrix_.start_ = np.arange(0, rows * cols + 1, rows, dtype=np.int32)
+    lp.a_matrix_.index_ = np.tile(np.arange(rows, dtype=np.int32), cols)
+    lp.a_matrix_.value_ = Gc.ravel(order="F")
+    h.passModel(lp)
+    h.run()
+    ok = h.getModelStatus() == highspy.HighsModelStatus.kOptimal
+    if not ok:
+        return SimpleNamespace(status=1, x=None, fun=None, ineqlin=None)
+    sol = h.getSolution()
+    x = np.asarray(sol.col_value, dtype=float)
+    act = np.asarray(sol.row_value, dtype=float)
+    return SimpleNamespace(status=0, x=x, fun=float(x.sum()),
+                           ineqlin=SimpleNamespace(residual=-1.0 - act))
+
+
+@lru_cache(maxsize=1)
+def _have_highs_core() -> bool:
+    """True when highspy's core class is importable; else scipy's copy of HiGHS is used
+    (same solver, slower per call on small LPs)."""
+    try:
+        import highspy
+
+        return hasattr(highspy, "_core") and hasattr(highspy._core, "_Highs")
+    except ImportError:
+        return False
+
+
+def _linprog(G: np.ndarray, method: str):
     from scipy.optimize import linprog
 
+    return linprog(np.ones(G.shape[1]), A_ub=G, b_ub=-np.ones(G.shape[0]), bounds=(0, None),
+                   method=method)
+
+
+def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
+    """Solve the scaled dual with HiGHS; returns (rows, degrees, extras, G, result).
+
+    ``result`` has linprog's fields ``status`` (0 = optimal), ``x``, ``fun`` and
+    ``ineqlin.residual`` (the slacks).
+    """
     rows, ks, extras, G = _problem(q, n, d, even, use_extra)
-    c = np.ones(G.shape[1])
-    b = -np.ones(len(rows))
-    # Dual simplex first (it returns a vertex, whose active set the refinement uses); the
+    solve = _highs if _have_highs_core() else _linprog
+    # Dual simplex first (it returns a vertex, whose active set the exact solve uses); the
     # interior point method as a second try when the simplex gives up on a badly scaled cell.
     for method in ("highs-ds", "highs-ipm"):
-        res = linprog(c, A_ub=G, b_ub=b, bounds=(0, None), method=method)
+        res = solve(G, method)
         if res.status == 0:
             break
     return rows, ks, extras, G, res
