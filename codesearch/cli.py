@@ -146,16 +146,28 @@ def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> in
 
 # --------------------------------------------------------------------------------- bounds
 def _add_bounds(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("bounds", help="upper bounds on A_q(n,d) with exact certificates")
+    p = sub.add_parser(
+        "bounds",
+        help="upper bounds on A_q(n,d) with exact certificates",
+        description="Every closed-form bound, Delsarte's LP with an exact certificate, the "
+        "least one (upper) and the Gilbert-Varshamov existential lower bound, per cell. "
+        "Python: codesearch.bounds.cell_summary(Params(q, n, d)).",
+    )
     p.add_argument("n", type=_int_range, help="length N or range A..B")
     p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
+    p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
+    p.add_argument("--certificate", metavar="FILE",
+                   help="write the LP certificate of the (single) cell as JSON")
     _COMMANDS["bounds"] = _cmd_bounds
 
 
 def _cmd_bounds(args: argparse.Namespace) -> int:
-    raise InputError("the bounds command is not available yet")
+    from codesearch.bounds import report
+
+    return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
+                                     lp=not args.no_lp, certificate=args.certificate)
 
 
 # ----------------------------------------------------------------------------------- find
@@ -208,12 +220,28 @@ def _cmd_export(args: argparse.Namespace) -> int:
 
 # ----------------------------------------------------------------------------------- plot
 def _add_plot(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("plot", help="draw the rate-distance picture")
+    p = sub.add_parser(
+        "plot",
+        help="draw the rate-distance picture",
+        description="Asymptotic bounds on the rate against relative distance (Singleton, "
+        "Hamming, Plotkin, Elias-Bassalygo, first LP bound, Gilbert-Varshamov) and, with "
+        "--n, the finite cells of those lengths (bar from GV to the best upper bound). "
+        "Python: codesearch.plot.save_rate_distance(path, q, points).",
+    )
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
+    p.add_argument("--no-lp", action="store_true", help="finite cells from closed forms only")
+    p.add_argument("--out", default="rate-distance.png",
+                   help="output file, .png, .svg or .pdf (default rate-distance.png)")
     _COMMANDS["plot"] = _cmd_plot
 
 
 def _cmd_plot(args: argparse.Namespace) -> int:
-    raise InputError("the plot command is not available yet")
+    from codesearch.bounds import report
+
+    path = report.run_plot_command(args.q, args.n, out=args.out, lp=not args.no_lp)
+    print(path)
+    return 0
 
 
 # ----------------------------------------------------------------------------------- demo
