@@ -172,20 +172,49 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
 
 # ----------------------------------------------------------------------------------- find
 def _add_find(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("find", help="search for a large code in one cell")
+    p = sub.add_parser(
+        "find",
+        help="search for a large code in one cell",
+        description="Search for a large code of length N and minimum distance D. With an "
+        "exhaustive method (exact) the result is proved optimal when the search finishes; "
+        "on the time limit the best code and the upper bound proved so far are reported. "
+        "Python: codesearch.search.search(Params(q, n, d), method, time_limit=, seed=).",
+    )
     p.add_argument("n", type=int, help="length")
     p.add_argument("d", type=int, help="minimum distance")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
-    p.add_argument("--method", default="exact", help="search method")
+    p.add_argument("--method", default="exact", help="search method (default exact)")
     p.add_argument("--time", type=float, help="time limit in seconds")
     p.add_argument("--seed", type=int, help="random seed")
-    p.add_argument("--out", help="write the code found to this file")
+    p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
     _COMMANDS["find"] = _cmd_find
 
 
 def _cmd_find(args: argparse.Namespace) -> int:
-    raise InputError("the find command is not available yet")
+    from codesearch.model import Params
+    from codesearch.search import search
+    from codesearch.search.progress import live_progress
+
+    params = Params(args.q, args.n, args.d)
+    with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
+        result = search(params, args.method, time_limit=args.time, seed=args.seed, progress=prog)
+    if args.out and result.code is not None:
+        from codesearch.codefile import write_code
+
+        write_code(args.out, result.code, params.d,
+                   {"method": result.method, "status": result.status.value,
+                    "upper": result.upper, "seed": result.seed})
+    summary = result.to_json(args.out if (args.out and result.code is not None) else None)
+    if args.json:
+        _print_json(summary)
+    else:
+        verdict = "proved optimal" if result.optimal else (
+            f"{result.status.value}; upper bound {result.upper}")
+        print(f"{params}: code of size {result.size} ({verdict}) "
+              f"by {result.method} in {result.seconds:.2f} s, {result.nodes} nodes")
+    return 0
 
 
 # ---------------------------------------------------------------------------------- table
