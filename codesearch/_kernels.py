@@ -295,66 +295,71 @@ def _heur_replace(s, y, q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_p
 @nb.njit(cache=True)
 def heur_local_steps(q, n, d, space, M, words, conf, total, mode, pw, masks, pat_ptr, pat_pos,
                      pat_add, counts, tabu, rng, n_random, steps):
-    """Min-conflicts tabu search at fixed size ``M``: at most ``steps`` moves.
+    """Tabu search on conflicts at fixed size ``M``: at most ``steps`` moves.
 
-    A move picks a random codeword in conflict and replaces it by the best of its n(q-1)
-    neighbours at distance 1 and ``n_random`` uniform random words (fewest conflicts with the
-    rest of the code; ties at random), excluding recently removed words (``tabu`` ring, slot
-    ``tabu[0]`` is the write position) unless the move removes every conflict of that codeword.
-    Returns ``(total_conflicting_pairs, moves_done)``; stops early when the code is conflict-free.
+    A move replaces one codeword in conflict by another word. Every codeword in conflict is
+    tried with its n(q-1) neighbours at distance 1 and ``n_random`` uniform random words; the
+    move with the largest drop in conflicting pairs is made (ties at random), even when it
+    raises the count, except that recently removed words (``tabu`` ring, ``tabu[0]`` is the
+    write position) may not come back unless the move reaches fewer conflicts than ever seen
+    in this call (aspiration). Returns ``(total_conflicting_pairs, moves_done)``; stops early
+    when the code is conflict-free. Invariant: ``conf`` (and ``counts`` in mode 1) stay exact.
     """
     dig = np.zeros(n, dtype=np.int64)
     cdig = np.zeros(n, dtype=np.int64)
     kk = np.zeros(1, dtype=np.int64)
     ntabu = tabu.shape[0] - 1
     done = 0
+    n_nb = n * (q - 1)
+    best_total = total
     while done < steps and total > 0:
         done += 1
-        # random slot among those in conflict (reservoir sampling)
-        s = -1
-        seen = 0
-        for i in range(M):
-            if conf[i] > 0:
-                seen += 1
-                if heur_randint(rng, seen) == 0:
-                    s = i
-        x = words[s]
-        _heur_digits(x, q, n, cdig)
+        best_s = -1
         best_y = -1
         best = np.int64(1) << 40
         ties = 0
-        n_nb = n * (q - 1)
-        for c in range(n_nb + n_random):
-            if c < n_nb:
-                j = c // (q - 1)
-                a = c % (q - 1) + 1
-                y = x + ((cdig[j] + a) % q - cdig[j]) * pw[j]
-            else:
-                y = heur_randint(rng, space)
-            sc = _heur_score(y, s, q, n, d, M, words, mode, counts)
-            if sc > 0:
-                is_tabu = False
-                for t in range(ntabu):
-                    if tabu[1 + t] == y:
-                        is_tabu = True
-                        break
-                if is_tabu:
+        for s in range(M):
+            if conf[s] == 0:
+                continue
+            x = words[s]
+            _heur_digits(x, q, n, cdig)
+            for c in range(n_nb + n_random):
+                if c < n_nb:
+                    j = c // (q - 1)
+                    a = c % (q - 1) + 1
+                    y = x + ((cdig[j] + a) % q - cdig[j]) * pw[j]
+                else:
+                    y = heur_randint(rng, space)
+                gain = _heur_score(y, s, q, n, d, M, words, mode, counts) - conf[s]
+                if gain > best:
                     continue
-            if sc < best:
-                best = sc
-                best_y = y
-                ties = 1
-            elif sc == best:
-                ties += 1
-                if heur_randint(rng, ties) == 0:
+                if total + gain >= best_total:
+                    is_tabu = False
+                    for t in range(ntabu):
+                        if tabu[1 + t] == y:
+                            is_tabu = True
+                            break
+                    if is_tabu:
+                        continue
+                if gain < best:
+                    best = gain
+                    best_s = s
                     best_y = y
-        if best_y < 0:
+                    ties = 1
+                else:
+                    ties += 1
+                    if heur_randint(rng, ties) == 0:
+                        best_s = s
+                        best_y = y
+        if best_s < 0:
             continue
         if ntabu > 0:
-            tabu[1 + tabu[0]] = x
+            tabu[1 + tabu[0]] = words[best_s]
             tabu[0] = (tabu[0] + 1) % ntabu
-        total += _heur_replace(s, best_y, q, n, d, M, words, conf, mode, pw, masks, pat_ptr,
+        total += _heur_replace(best_s, best_y, q, n, d, M, words, conf, mode, pw, masks, pat_ptr,
                                pat_pos, pat_add, counts, dig, kk)
+        if total < best_total:
+            best_total = total
     return total, done
 
 
