@@ -169,6 +169,13 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--seed", type=int, help="random seed")
     p.add_argument("--out", help="write the code found to this file")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
+    p.add_argument("--size", type=int, metavar="M",
+                   help="ask for a code of M words (sat: decide it; heuristics: stop there); "
+                   "JSON then adds 'exists'")
+    p.add_argument("--proof", metavar="FILE",
+                   help="sat with --size: write FILE[.wW].cnf and the DRAT proof FILE[.wW] of "
+                   "each refuted branch (they cover the symmetry-reduced formula)")
     _COMMANDS["find"] = _cmd_find
 
 
