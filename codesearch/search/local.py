@@ -129,7 +129,10 @@ def run(
     best = init.copy()
     M = int(init.size)
     n_cand = n * (q - 1) + _N_RANDOM
-    use_counts = space <= MAX_COUNT_SPACE and 2 * ball <= n_cand * max(M, 1) and cap < 65535
+    # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
+    # conflict, typically a few) x candidates x M distances: take the cheaper
+    use_counts = (space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
+                  and cap < 65535)
     mode = 1 if use_counts else 2
     empty = np.empty(0, dtype=np.int64)
     masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
