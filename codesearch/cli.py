@@ -189,6 +189,13 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
     p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
+    # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
+    p.add_argument("--size", type=int, metavar="M",
+                   help="ask for a code of M words (sat: decide it; heuristics: stop there); "
+                   "JSON then adds 'exists'")
+    p.add_argument("--proof", metavar="FILE",
+                   help="sat with --size: write FILE[.wW].cnf and the DRAT proof FILE[.wW] of "
+                   "each refuted branch (they cover the symmetry-reduced formula)")
     _COMMANDS["find"] = _cmd_find
 
 
@@ -199,7 +206,10 @@ def _cmd_find(args: argparse.Namespace) -> int:
 
     params = Params(args.q, args.n, args.d)
     with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
-        result = search(params, args.method, time_limit=args.time, seed=args.seed, progress=prog)
+        options = {name: getattr(args, name) for name in ("size", "proof", "group")
+                   if getattr(args, name, None) is not None}
+        result = search(params, args.method, time_limit=args.time, seed=args.seed,
+                        progress=prog, **options)
     if args.out and result.code is not None:
         from codesearch.codefile import write_code
 
