@@ -47,6 +47,10 @@ METHODS: dict[str, MethodSpec] = dict(
     [
         _spec("exact", "codesearch.search.exact", True,
               "branch-and-bound maximum clique with symmetry reduction; proves optimality"),
+        _spec("orbit", "codesearch.search.orbit", False,
+              "largest union of orbits of a prescribed group (--group SPEC); codes are FEASIBLE"),
+        _spec("auto", "codesearch.search.auto", True,
+              "portfolio under one budget: bounds, heuristics, orbit, exact and SAT searches"),
     ]
 )
 
