@@ -101,17 +101,18 @@ def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
     return out
 
 
-def _dist_from(planes: list[np.ndarray], r: int, idx: np.ndarray) -> np.ndarray:
-    diff = planes[0][idx] ^ planes[0][r]
-    for pl in planes[1:]:
-        diff |= pl[idx] ^ pl[r]
-    return np.bitwise_count(diff)
+class _GraphTimeout(Exception):
+    """The time limit ran out while the orbit graph was being built."""
 
 
 def orbit_graph(params: Params, group: _groups.Group, *,
                 max_words: int = _groups.DEFAULT_MAX_WORDS,
-                max_orbits: int = DEFAULT_MAX_ORBITS) -> OrbitGraph:
+                max_orbits: int = DEFAULT_MAX_ORBITS,
+                deadline: float | None = None) -> OrbitGraph:
     """Orbits of ``group``, the admissible ones, and their compatibility graph.
+
+    ``deadline`` (a :func:`time.perf_counter` value) stops the graph construction early by
+    raising ``_GraphTimeout``.
 
     Raises
     ------
@@ -123,7 +124,6 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     orbits = _groups.compute_orbits(group, max_words=max_words)
     planes = _planes(orbits.words, params.q)
     d = params.d
-    allidx = np.arange(orbits.words.shape[0])
     # Distance from each word to its orbit's representative; min over the orbit (excluding the
     # representative itself) is the orbit's own minimum distance (isometry argument, step 2).
     diff = planes[0] ^ planes[0][orbits.label]
@@ -140,17 +140,30 @@ def orbit_graph(params: Params, group: _groups.Group, *,
             f"use a larger group")
     sizes = orbits.sizes[kept].astype(np.int64)
     seg = [orbits.order[orbits.starts[j]:orbits.starts[j + 1]] for j in kept]
-    words = np.concatenate(seg) if seg else np.zeros(0, dtype=np.int64)
+    words = np.ascontiguousarray(np.concatenate(seg) if seg else np.zeros(0, dtype=np.int64),
+                                 dtype=np.int64)
     starts = np.r_[0, np.cumsum(sizes)].astype(np.int64)
-    adj = np.zeros((k, k), dtype=bool)
-    for i in range(k - 1):
-        # Only orbits j > i: the matrix is symmetric and filled from the upper triangle.
-        tail = words[starts[i + 1]:]
-        dist = _dist_from(planes, int(orbits.reps[kept[i]]), tail)
-        mins = np.minimum.reduceat(dist, starts[i + 1:-1] - starts[i + 1])
-        adj[i, i + 1:] = mins >= d
+    reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
+    plane_arr = np.ascontiguousarray(np.stack(planes))
+    adj8 = np.zeros((k, k), dtype=np.uint8)
+    if k > 1:
+        from codesearch import _kernels
+
+        # Rows in chunks of about equal work (row i scans the words of orbits > i), so the
+        # deadline is checked every few tenths of a second at most.
+        tail_work = (words.size - starts[1:]).astype(np.float64)
+        chunk_work = max(1.0, 2e7 / max(1, params.n))
+        lo = 0
+        while lo < k:
+            cum = np.cumsum(tail_work[lo:])
+            hi = lo + 1 + int(np.searchsorted(cum, chunk_work))
+            hi = min(hi, k)
+            _kernels.orbit_adjacency_rows(plane_arr, reps, words, starts, d, lo, hi, adj8)
+            lo = hi
+            if deadline is not None and time.perf_counter() > deadline and lo < k:
+                raise _GraphTimeout(f"orbit graph incomplete at row {lo} of {k}")
+    adj = adj8.astype(bool)
     adj |= adj.T
-    del allidx
     return OrbitGraph(orbits=orbits, kept=kept, weights=sizes, adj=adj)
 
 
@@ -324,7 +337,16 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         raise ParameterError(f"restarts must be a non-negative integer, got {restarts!r}")
     seed = 0 if seed is None else int(seed)
     grp = _groups.parse_group(group, params.q, params.n)
-    graph = orbit_graph(params, grp, max_words=max_words, max_orbits=max_orbits)
+    try:
+        graph = orbit_graph(params, grp, max_words=max_words, max_orbits=max_orbits,
+                            deadline=deadline)
+    except _GraphTimeout as exc:
+        return SearchResult(
+            params=params, status=Status.UNKNOWN, code=None, upper=None, method="orbit",
+            seconds=time.perf_counter() - start, nodes=0, seed=seed,
+            settings={"group": grp.spec, "mode": mode, "stopped": str(exc),
+                      "invariant_optimal": False, "restarts": restarts,
+                      "time_limit": time_limit, "version": __version__})
     w = graph.weights
 
     def report(phase: str, clique: list[int]) -> None:
