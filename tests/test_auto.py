@@ -126,7 +126,7 @@ def test_failing_step_is_skipped(monkeypatch):
     _only(monkeypatch, {"orbit", "auto"})
     monkeypatch.setitem(METHODS, "greedy", MethodSpec("greedy", "codesearch.no_such_module",
                                                       False, "missing"))
-    res = search(HAMMING, "auto", time_limit=10, groups="cyclic")
+    res = search(HAMMING, "auto", time_limit=10, group="cyclic")
     assert res.size == 16
     assert any(s.startswith("greedy: skipped") for s in res.settings["steps"])
 

@@ -39,7 +39,7 @@ from codesearch.results import SearchResult, Status
 __all__ = ["OPTIONS", "run", "natural_groups", "DEFAULT_BUDGET"]
 
 #: Options accepted by :func:`run`.
-OPTIONS = frozenset({"groups", "exact_max_words"})
+OPTIONS = frozenset({"group", "exact_max_words"})
 
 #: Budget in seconds when no time limit is given (the portfolio needs one to share out).
 DEFAULT_BUDGET = 60.0
@@ -89,7 +89,7 @@ def _bound(params: Params) -> tuple[int | None, str | None, str]:
 
 def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
         progress: Callable[[dict[str, Any]], None] | None = None,
-        groups: Sequence[str] | str | None = None,
+        group: Sequence[str] | str | None = None,
         exact_max_words: int = DEFAULT_EXACT_MAX_WORDS) -> SearchResult:
     """Run the portfolio on one cell.
 
@@ -103,9 +103,9 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         Seed passed to every randomised step (default 0; recorded).
     progress : callable, optional
         Called after every step with ``{"step", "best", "upper", "elapsed"}``.
-    groups : sequence of str or str, optional
-        Group specs for the orbit step (a string is split on ``;``); default
-        :func:`natural_groups`.
+    group : sequence of str or str, optional
+        Group specs for the orbit step (a string is split on ``;``, so the same
+        ``--group`` option serves ``orbit`` and ``auto``); default :func:`natural_groups`.
     exact_max_words : int
         Try the exact search only when ``q**n`` is at most this.
 
@@ -126,12 +126,12 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     budget = DEFAULT_BUDGET if time_limit is None else float(time_limit)
     deadline = start + budget
     seed = 0 if seed is None else int(seed)
-    if groups is None:
+    if group is None:
         group_list = natural_groups(params.q, params.n)
-    elif isinstance(groups, str):
-        group_list = [g.strip() for g in groups.split(";") if g.strip()]
+    elif isinstance(group, str):
+        group_list = [g.strip() for g in group.split(";") if g.strip()]
     else:
-        group_list = [str(g) for g in groups]
+        group_list = [str(g) for g in group]
 
     log: list[str] = []
     best: Code | None = None
