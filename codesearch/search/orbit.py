@@ -53,6 +53,7 @@ OPTIONS = frozenset({"group", "mode", "restarts", "max_words", "max_orbits"})
 
 _MODES = ("exact", "heuristic")
 DEFAULT_MAX_ORBITS = 12000
+_NETWORKX_MAX_EDGES = 2_000_000
 
 
 @dataclass(frozen=True, eq=False)
@@ -199,7 +200,10 @@ def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int
         return [], 0
     rng = np.random.default_rng(seed)
     # Weight times weighted degree favours heavy orbits that leave many heavy neighbours.
-    score = w.astype(float) * (1.0 + adj.astype(float) @ w.astype(float))
+    wf = w.astype(np.float64)
+    # Row blocks keep the temporary float copy of the matrix small.
+    wdeg = np.concatenate([adj[i:i + 1024].astype(np.float64) @ wf for i in range(0, k, 1024)])
+    score = wf * (1.0 + wdeg)
     best = _greedy_clique(adj, w, score, [], None)
     best_w = int(w[best].sum())
     passes = 1
@@ -280,6 +284,10 @@ def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
         limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
         out = fn(np.packbits(adj, axis=1, bitorder="little"), w, time_limit=limit)
         return _engine_result(out, w)
+    if int(adj.sum()) // 2 > _NETWORKX_MAX_EDGES:
+        # networkx holds the graph as dicts (hundreds of bytes per edge) and cannot be stopped
+        # while building it: keep the heuristic's clique instead.
+        return list(incumbent), False, 0, "none (graph too large for networkx)"
     clique, complete, nodes = _exact_networkx(adj, w, incumbent, deadline)
     return clique, complete, nodes, "networkx"
 
