@@ -916,3 +916,34 @@ def heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr, pa
                 c += 1
         conf[M] = c
     return best
+
+
+# ======================================================================= orbits (orbit search)
+@nb.njit(
+    nb.void(nb.uint64[:, ::1], nb.int64[::1], nb.int64[::1], nb.int64[::1], nb.int64,
+            nb.int64, nb.int64, nb.uint8[:, ::1]),
+    cache=True,
+)
+def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj):
+    """Fill rows ``lo..hi-1`` (upper triangle) of the orbit compatibility matrix.
+
+    ``planes[p, w]`` is bit plane p of word w (bit i = bit p of symbol i, n <= 64); orbit k has
+    representative ``reps[k]`` and words ``words[starts[k]:starts[k+1]]``. Orbits i < j are
+    compatible (``adj[i, j] = 1``) iff every word of orbit j is at distance >= d from the
+    representative of orbit i; the scan of orbit j stops at the first close word.
+    """
+    nplanes = planes.shape[0]
+    k = reps.shape[0]
+    for i in range(lo, hi):
+        r = reps[i]
+        for j in range(i + 1, k):
+            ok = 1
+            for t in range(starts[j], starts[j + 1]):
+                w = words[t]
+                diff = np.uint64(0)
+                for p in range(nplanes):
+                    diff |= planes[p, r] ^ planes[p, w]
+                if popcount64(diff) < d:
+                    ok = 0
+                    break
+            adj[i, j] = ok

@@ -252,3 +252,26 @@ def heur_conflicts(words, q: int, n: int, d: int) -> list[int]:
     words = [int(w) for w in words]
     return [sum(1 for j, v in enumerate(words) if j != i and heur_index_dist(u, v, q, n) < d)
             for i, u in enumerate(words)]
+# ======================================================================= orbits (orbit search)
+
+
+def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj) -> None:
+    """Twin of :func:`codesearch._kernels.orbit_adjacency_rows`, by the definition.
+
+    Orbits i < j (i in ``lo..hi-1``) are compatible iff the representative of orbit i is at
+    distance >= d from every word of orbit j; distance = number of coordinates where some bit
+    plane differs.
+    """
+    nplanes, _ = planes.shape
+    k = len(reps)
+    for i in range(lo, hi):
+        r = int(reps[i])
+        for j in range(i + 1, k):
+            dists = []
+            for t in range(int(starts[j]), int(starts[j + 1])):
+                w = int(words[t])
+                diff = 0
+                for p in range(nplanes):
+                    diff |= int(planes[p, r]) ^ int(planes[p, w])
+                dists.append(bin(diff).count("1"))
+            adj[i, j] = 1 if min(dists) >= d else 0
