@@ -26,7 +26,7 @@ rows. They are rounded to dyadic rationals, each ``Z`` is shifted by ``eps * I``
 exact LDL^T in rationals proves it positive definite, negative ``mu`` are set to zero. For
 every code the corresponding ``x`` satisfies all constraints and ``0 <= x <= 1``, hence
 
-    |C| <= 1 + sum <Z, B_const> + mu . rhs + sum_v max(r_v, 0),
+    |C| <= 1 + sum <Z, B_const> + mu . rhs + sum_v max(r_v, 0) u_v,
     r_v = c_v + sum <Z, B_v> - (G^T mu)_v,
 
 where the last sum absorbs whatever dual infeasibility rounding left (each ``x_v`` lies in
@@ -230,7 +230,7 @@ def solve_three_point(n: int, d: int, *, time_limit: float | None = None) -> dic
     lin_row0 = row0
     row_scale = []
     for label, cv, rhs in data.rows:
-        nu = max(abs(c / sv[v]) for v, c in cv.items())
+        nu = max(abs(c / sv[v]) for v, c in cv.items()) or 1.0
         row_scale.append(nu)
         for v, c in cv.items():
             a_rows.append(row0)
@@ -257,6 +257,9 @@ def solve_three_point(n: int, d: int, *, time_limit: float | None = None) -> dic
     settings.tol_gap_rel = 1e-9
     settings.tol_feas = 1e-9
     settings.max_iter = 300
+    # Equilibration off: with it on, Clarabel stopped on numerical errors in many cells
+    # (measured on n <= 28); the problem is scaled by hand above.
+    settings.equilibrate_enable = False
     if time_limit is not None:
         settings.time_limit = float(time_limit)
     solution = clarabel.DefaultSolver(P, qvec, A, b, cones, settings).solve()
@@ -402,6 +405,8 @@ def _is_positive_definite(mat: list[list[int]]) -> bool:
 
 def _exact_bound(data: Any, zmats: list, mus: list) -> Fraction:
     """Exact upper bound on |C| from rounded duals (see the module docstring)."""
+    from codesearch.bounds.terwilliger import variable_cap
+
     q_exp = _ROUND_BITS + max(
         [g + 2 * max(es) for _, _, _, _, es, g in zmats] + [0]
     ) + 4
@@ -435,5 +440,6 @@ def _exact_bound(data: Any, zmats: list, mus: list) -> Fraction:
         total += total_f
         for v, c in cv.items():
             r[v] -= mu_s * c
-    absorbed = sum((rv for rv in r if rv > 0), Fraction(0))
+    caps = [variable_cap(data.n, data.d, tri) for tri in data.triangles]
+    absorbed = sum((r[v] * caps[v] for v in range(nv) if r[v] > 0), Fraction(0))
     return Fraction(total + absorbed) / scale

@@ -34,9 +34,20 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
+import math
+from fractions import Fraction
 from math import comb
 
-__all__ = ["beta", "Triangle", "ThreePointData", "three_point_data", "triangle_of"]
+__all__ = [
+    "beta",
+    "Triangle",
+    "ThreePointData",
+    "three_point_data",
+    "triangle_of",
+    "constant_weight_cap",
+    "shape_count",
+    "variable_cap",
+]
 
 
 def _binom(a: int, b: int) -> int:
@@ -267,3 +278,49 @@ def three_point_data(n: int, d: int, even: bool, delsarte: bool = True) -> Three
         blocks=tuple(blocks),
         rows=tuple(rows),
     )
+
+
+@lru_cache(maxsize=None)
+def constant_weight_cap(n: int, d: int, w: int) -> int:
+    """An upper bound on A(n, d, w), the size of a binary code of weight-``w`` words.
+
+    Johnson's recursive bounds ``A(n,2e,w) <= floor(n/w * A(n-1,2e,w-1))`` and
+    ``A(n,2e,w) <= floor(n/(n-w) * A(n-1,2e,w))``, with ``A(n,2e,w) = 1`` when
+    ``min(w, n-w) < e`` and the trivial cap ``C(n, w)`` (Johnson 1962; MacWilliams and
+    Sloane, Ch. 17, Theorems 2-3). Two weight-``w`` words are at even distance, so the
+    minimum distance ``d`` may be replaced by ``2 * ceil(d / 2)``.
+    """
+    if w < 0 or w > n:
+        return 0
+    e = (d + 1) // 2
+    if min(w, n - w) < e:
+        return 1
+    best = comb(n, w)
+    if w > 0:
+        best = min(best, (n * constant_weight_cap(n - 1, d, w - 1)) // w)
+    if n - w > 0:
+        best = min(best, (n * constant_weight_cap(n - 1, d, w)) // (n - w))
+    return best
+
+
+def shape_count(n: int, a: int, b: int, c: int) -> int:
+    """Number of ordered pairs (v, w) at distances a, b from a fixed word with d(v,w) = c.
+
+    Symmetric in (a, b, c): the multinomial ``n! / (s1! s2! s3! (n - (a+b+c)/2)!)`` with
+    ``s1, s2, s3`` the half-perimeter minus each side.
+    """
+    p = (a + b + c) // 2
+    f = math.factorial
+    return f(n) // (f(p - a) * f(p - b) * f(p - c) * f(n - p))
+
+
+def variable_cap(n: int, d: int, tri: Triangle) -> Fraction:
+    """A valid upper bound on ``x`` of triangle ``tri`` for every code of distance ``d``.
+
+    Around a codeword ``u`` there are at most ``U_s = A(n, d, s)`` codewords at distance
+    ``s`` (``U_0 = 1``); so the pairs of codewords of shape ``(a, b, c)`` around ``u`` number
+    at most the product of the two smallest ``U`` among the sides, and ``x`` is that count
+    divided by :func:`shape_count`. Capped at 1.
+    """
+    caps = sorted(1 if s == 0 else constant_weight_cap(n, d, s) for s in tri)
+    return min(Fraction(1), Fraction(caps[0] * caps[1], shape_count(n, *tri)))
