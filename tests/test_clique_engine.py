@@ -155,6 +155,18 @@ def test_bitset_conversions_round_trip():
         assert np.array_equal(bitsets_from_edges(n, edges), adj)
 
 
+@given(graphs(max_n=80))
+def test_packbits_rows_are_accepted(gw):
+    # Same answer from np.packbits byte rows as from uint64 limbs (networkx as the oracle).
+    a, w = gw
+    if a.shape[0] == 0:
+        return
+    res = max_weight_clique(np.packbits(a, axis=1, bitorder="little"), w)
+    expected = nx.max_weight_clique(_nx_graph(a, w), weight="w")[1]
+    assert res.optimal and res.weight == expected
+    assert is_clique(bitsets_from_dense(a), res.vertices)
+
+
 def test_anytime_node_limit_gives_valid_bound():
     # A random graph hard enough not to finish in 50 nodes; the bound must still hold.
     rng = np.random.default_rng(3)

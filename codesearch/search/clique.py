@@ -152,8 +152,20 @@ def is_clique(adj: np.ndarray, vertices: Iterable[int]) -> bool:
 
 def _check_graph(adj: np.ndarray, n: int | None) -> tuple[np.ndarray, int]:
     adj = np.ascontiguousarray(adj)
+    if adj.ndim == 2 and adj.dtype == np.uint8:
+        # Rows packed bytewise by ``np.packbits(dense, axis=1, bitorder="little")``: bit j of
+        # a row is bit j & 7 of byte j >> 3, the same order as uint64 limbs on little-endian
+        # words, so padding each row to whole limbs and viewing it as "<u8" is exact.
+        rows = adj.shape[0]
+        nbytes = max(1, (rows + 63) >> 6) * 8
+        if adj.shape[1] > nbytes:
+            raise ParameterError(f"packed rows of {adj.shape[1]} bytes for {rows} vertices")
+        padded = np.zeros((rows, nbytes), dtype=np.uint8)
+        padded[:, : adj.shape[1]] = adj
+        adj = padded.view("<u8").astype(np.uint64)
     if adj.ndim != 2 or adj.dtype != np.uint64:
-        raise ParameterError("adjacency must be a 2-d uint64 bitset array (see bitsets_from_dense)")
+        raise ParameterError("adjacency must be 2-d uint64 bitset rows (see bitsets_from_dense) "
+                             "or uint8 rows from np.packbits(..., bitorder='little')")
     if n is None:
         n = adj.shape[0]
     if adj.shape[0] != n or adj.shape[1] < _nwords(n) or n < 0:
@@ -177,7 +189,9 @@ def max_weight_clique(
     ----------
     adj_bits : numpy.ndarray
         ``(N, ceil(N/64))`` uint64; bit ``j & 63`` of ``adj_bits[i, j >> 6]`` is set iff
-        ``i ~ j``. Must be symmetric with an empty diagonal (not re-checked here).
+        ``i ~ j``. Also accepted: ``(N, ceil(N/8))`` uint8 rows as made by
+        ``np.packbits(dense, axis=1, bitorder="little")``. Must be symmetric with an empty
+        diagonal (not re-checked here).
     weights : array_like of int
         Positive integer weight of each vertex.
     time_limit : float, optional
