@@ -91,6 +91,11 @@ class CliqueResult:
         return int(self.vertices.size)
 
     @property
+    def clique(self) -> list[int]:
+        """The clique's vertices as a list of ints (the form the orbit search consumes)."""
+        return [int(v) for v in self.vertices]
+
+    @property
     def optimal(self) -> bool:
         """True when the clique found is proved to be of maximum weight."""
         return self.complete and self.upper == self.weight
