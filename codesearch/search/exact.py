@@ -164,7 +164,8 @@ class _Search:
             return
         if k + sub.candidates.shape[0] <= self.best:
             return
-        if sub.candidates.shape[0] <= self.leaf_size or k >= self.max_fixed:
+        m = sub.candidates.shape[0]
+        if m <= self.leaf_size or (k >= self.max_fixed and m <= graph.MAX_LEAF):
             self.solve_leaf(sub)
             return
         for child in graph.orbit_split(sub, self.params.q, self.params.d,
@@ -258,6 +259,11 @@ def run(
     if q**n > graph.MAX_SPACE:
         raise ParameterError(
             f"exact search enumerates all q^n = {q}^{n} words; limit is {graph.MAX_SPACE}"
+        )
+    if not reduce and q**n > graph.MAX_LEAF:
+        raise ParameterError(
+            f"the unreduced search takes all q^n = {q}^{n} words as one graph; limit is "
+            f"{graph.MAX_LEAF} (use the reductions)"
         )
     ext = known_upper(params) if use_bounds else None
     if target is not None and ext is not None and ext < target:

@@ -53,7 +53,11 @@ __all__ = [
 ]
 
 #: Largest ambient space the exact search enumerates word by word.
-MAX_SPACE = 1 << 22
+MAX_SPACE = 1 << 20
+
+#: Largest candidate set given to the clique engine as one graph (its bitset matrix then
+#: takes at most MAX_LEAF^2 / 8 bytes, 50 MB); bigger nodes are always split further.
+MAX_LEAF = 20_000
 
 
 def all_words(q: int, n: int) -> np.ndarray:
@@ -196,7 +200,12 @@ def orbit_split(sub: Subproblem, q: int, d: int, *, first_weight: int | None = N
     if cands.shape[0] == 0:
         return []
     canon = stabiliser_canon(cands, sub.fixed, q)
-    reps, inverse = np.unique(canon, axis=0, return_inverse=True)
+    # Orbits by the canonical word read as a base-q integer (q^n <= MAX_SPACE fits int64);
+    # much faster than np.unique over rows, and it sorts orbits lexicographically too.
+    radix = np.int64(q) ** np.arange(cands.shape[1] - 1, -1, -1, dtype=np.int64)
+    keys = canon.astype(np.int64) @ radix
+    _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
+    reps = canon[first]
     inverse = inverse.reshape(-1)
     dist_fixed = np.zeros(reps.shape[0], dtype=np.int64)
     for f in sub.fixed:
