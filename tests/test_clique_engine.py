@@ -167,6 +167,22 @@ def test_packbits_rows_are_accepted(gw):
     assert is_clique(bitsets_from_dense(a), res.vertices)
 
 
+@given(graphs(max_n=60), st.integers(0, 200))
+def test_stopped_search_bounds_bracket_the_optimum(gw, budget):
+    # Oracle: networkx max_weight_clique; a search cut after `budget` nodes must return a
+    # real clique no heavier than the optimum and an upper bound no lighter.
+    a, w = gw
+    if a.shape[0] == 0:
+        return
+    adj = bitsets_from_dense(a)
+    res = max_weight_clique(adj, w, node_limit=budget)
+    opt = nx.max_weight_clique(_nx_graph(a, w), weight="w")[1]
+    assert is_clique(adj, res.vertices)
+    assert res.weight <= opt <= res.upper
+    if res.complete:
+        assert res.weight == opt
+
+
 def test_anytime_node_limit_gives_valid_bound():
     # A random graph hard enough not to finish in 50 nodes; the bound must still hold.
     rng = np.random.default_rng(3)
