@@ -159,8 +159,11 @@ def run_cell(task: CellTask) -> dict[str, Any]:
             res = search(p, spec.name, time_limit=share, seed=task.seed)
         except Exception as exc:
             out["errors"].append([spec.name, f"{type(exc).__name__}: {exc}".splitlines()[0]])
-            out["searches"].append({"method": spec.name, "failed": True,
-                                    "seconds": time.perf_counter() - start})
+            # A method refusing the cell (bad input for it) will refuse again: mark it done.
+            # Anything else (a missing module, a bug) is retried by the next run.
+            if isinstance(exc, InputError):
+                out["searches"].append({"method": spec.name, "failed": True,
+                                        "seconds": time.perf_counter() - start})
             continue
         out["searches"].append({
             "method": res.method, "status": res.status.value,
