@@ -680,7 +680,7 @@ class Store:
 def read_published_file(path: str) -> list[PublishedRow]:
     """Read published values from CSV or JSON (columns ``q,n,d,lower,upper,source``).
 
-    ``lower`` or ``upper`` may be empty. JSON is a list of objects with the same keys. A
+    ``lower`` or ``upper`` may be empty; CSV lines starting with ``#`` are comments. JSON is a list of objects with the same keys. A
     missing ``source`` takes the file name.
 
     Raises
@@ -706,13 +706,16 @@ def read_published_file(path: str) -> list[PublishedRow]:
             raise InputError(f"{path}:1: expected a JSON list of objects")
         records = [(i + 1, x) for i, x in enumerate(data)]
     else:
-        reader = csv.DictReader(text.splitlines())
+        # Lines starting with '#' are comments (sources, notes); line numbers stay true.
+        lines = text.splitlines()
+        body = [(i + 1, ln) for i, ln in enumerate(lines) if ln.strip() and not ln.startswith("#")]
+        reader = csv.DictReader([ln for _, ln in body])
         need = {"q", "n", "d"}
         if reader.fieldnames is None or not need <= set(reader.fieldnames):
             raise InputError(f"{path}:1: header must name columns q,n,d,lower,upper,source")
         if not {"lower", "upper"} & set(reader.fieldnames):
             raise InputError(f"{path}:1: header needs a lower or an upper column")
-        records = [(i + 2, row) for i, row in enumerate(reader)]
+        records = [(body[i + 1][0], row) for i, row in enumerate(reader)]
 
     def _int(value: Any, line: int, name: str, optional: bool) -> int | None:
         if value is None or (isinstance(value, str) and value.strip() == ""):

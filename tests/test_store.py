@@ -183,3 +183,26 @@ def test_audit_clean(tmp_path):
         s.add_code(hamming_code(3), Params(2, 7, 3), method="exact")
         s.add_bound(BoundResult(Params(2, 7, 3), 16, "hamming"))
         assert s.audit() == []
+
+
+def test_published_reference_file_is_consistent():
+    # data/published_binary.csv is written from memory; check it against theorems:
+    # A(n,d) <= 2 A(n-1,d) and A(n-1,d) <= A(n,d) (common practice), the Hamming codes
+    # (A(2^r - 1, 3) = 2^(2^r - 1 - r)), Levenshtein/Plotkin: A(2d,d) = 4d for even d when a
+    # Hadamard matrix of order 2d exists (MacWilliams-Sloane Ch. 2 Thm 8 and Ch. 17).
+    import pathlib
+
+    path = pathlib.Path(__file__).resolve().parents[1] / "data" / "published_binary.csv"
+    rows = {(r.n, r.d): r for r in read_published_file(str(path))}
+    for (n, d), r in rows.items():
+        assert r.lower <= r.upper
+        prev = rows.get((n - 1, d))
+        if prev is not None:
+            assert prev.lower <= r.lower and r.upper <= 2 * prev.upper
+        if d % 2 == 1 and (n + 1, d + 1) in rows:
+            assert (rows[(n + 1, d + 1)].lower, rows[(n + 1, d + 1)].upper) == (r.lower, r.upper)
+    for r_ in (3, 4):
+        n = 2**r_ - 1
+        assert rows[(n, 3)].lower == rows[(n, 3)].upper == 2 ** (n - r_)
+    for d in (4, 6, 8):
+        assert rows[(2 * d, d)].upper == 4 * d
