@@ -104,3 +104,37 @@ def test_corrupt_store_cli_exit_2(tmp_path):
     assert res.returncode == 2
     assert len(res.stderr.strip().splitlines()) == 1 and "Traceback" not in res.stderr
     assert store.read_bytes() == before
+
+
+def _children(pid: int) -> list[int]:
+    out = subprocess.run(["pgrep", "-P", str(pid)], capture_output=True, text=True).stdout
+    return [int(x) for x in out.split()]
+
+
+def _alive(pid: int) -> bool:
+    try:
+        with open(f"/proc/{pid}/stat") as fh:
+            return fh.read().split()[2] != "Z"
+    except OSError:
+        return False
+
+
+def test_ctrl_c_stops_cleanly(tmp_path):
+    store = tmp_path / "int.sqlite"
+    cmd = _table_cmd(store)
+    cmd[cmd.index("--budget") + 1] = "4"  # long enough to be interrupted mid-run
+    proc = subprocess.Popen(cmd, env=_env(), cwd=tmp_path, stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, text=True)
+    deadline = time.time() + 60
+    while time.time() < deadline and len(_children(proc.pid)) < 2:
+        time.sleep(0.2)
+    time.sleep(1.0)
+    kids = _children(proc.pid)
+    proc.send_signal(signal.SIGINT)
+    out, err = proc.communicate(timeout=60)
+    assert proc.returncode == 130, err
+    assert "interrupted" in err and "Traceback" not in err
+    time.sleep(0.5)
+    assert not [k for k in kids if _alive(k)]  # the workers were stopped too
+    if store.exists():
+        _check_store(store)
