@@ -91,3 +91,49 @@ def test_relation_certificate_is_checked_against_store(tmp_path):
             s.add_bound(BoundResult(Params(2, 8, 4), 12, "relation:punctured", certificate=bad))
         s.add_bound(BoundResult(Params(2, 8, 4), 16, "relation:punctured", certificate=cert))
         assert s.summary(Params(2, 8, 4)).upper == 16
+
+
+def _hamming_bound(n: int, d: int) -> int:
+    # Sphere-packing bound floor(2^n / V(n, floor((d-1)/2))) (common practice).
+    from math import comb
+
+    t = (d - 1) // 2
+    return 2**n // sum(comb(n, i) for i in range(t + 1))
+
+
+@settings(max_examples=8, deadline=None, derandomize=True)
+@given(seeds=st.lists(st.tuples(st.integers(3, 8), st.integers(2, 5)), min_size=1, max_size=4,
+                      unique=True),
+       bounded=st.lists(st.tuples(st.integers(3, 8), st.integers(2, 5)), min_size=1, max_size=8,
+                        unique=True))
+def test_fixed_point_properties(tmp_path_factory, seeds, bounded):
+    import table_stub_lex
+
+    cells = [Params(2, n, d) for n in range(3, 9) for d in range(2, 6) if d <= n]
+    path = tmp_path_factory.mktemp("fp") / "s.sqlite"
+    with Store(path) as s:
+        for n, d in seeds:
+            if d <= n:
+                p = Params(2, n, d)
+                s.add_code(table_stub_lex.run(p).code, p, method="stub-lex")
+        for n, d in bounded:
+            if d <= n:
+                s.add_bound(BoundResult(Params(2, n, d), _hamming_bound(n, d), "hamming"))
+        propagate(s, cells)
+        lo = {p: s.summary(p).lower for p in cells}
+        up = {p: s.summary(p).upper for p in cells}
+        assert s.audit() == []
+    for p in cells:
+        if up[p] is not None:
+            assert lo[p] <= up[p]
+        for other, rel in (((p.n, p.d + 1), "relax"), ((p.n - 1, p.d), "pad")):
+            o = Params(2, *other) if 1 <= other[1] <= other[0] else None
+            if o in lo:
+                assert lo[p] >= lo[o], (p, o, rel)
+        o = Params(2, p.n + 1, p.d)
+        if o in up and up[o] is not None:
+            assert up[p] is not None and up[p] <= up[o]
+        if p.n - 1 >= p.d:
+            o = Params(2, p.n - 1, p.d)
+            if up.get(o) is not None:
+                assert up[p] is not None and up[p] <= 2 * up[o]
