@@ -399,9 +399,7 @@ def run_table(
         pending = list(cells)
         emit({"event": "start", "cells": len(cells), "methods": [s.name for s in specs],
               "budget": budget})
-        executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
-            workers or os.cpu_count() or 1)
-        slots = executor.workers * 2 if scheduler else executor.workers
+        slots = 1
         running: dict[Any, CellTask] = {}
         crashes: dict[Params, int] = {}
         while pending or running:
@@ -411,6 +409,12 @@ def run_table(
                     summary.skipped += 1
                     emit({"event": "skip", "cell": None})
                     continue
+                if executor is None:
+                    # Started on the first task only: a resumed run with nothing left to do
+                    # never pays for worker start-up.
+                    executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
+                        workers or os.cpu_count() or 1)
+                    slots = executor.workers * 2 if scheduler else executor.workers
                 running[executor.submit(task)] = task
                 emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
                       "upper": task.known_upper})

@@ -26,11 +26,11 @@ TESTS = pathlib.Path(__file__).resolve().parent
 REPO = TESTS.parent
 
 
-def _table_cmd(store: pathlib.Path, *extra: str) -> list[str]:
+def _table_cmd(store: pathlib.Path, *extra: str, n: str = "3..9", workers: str = "2") -> list[str]:
     script = ("import sys, table_stub_lex; table_stub_lex.register(); "
               "from codesearch.cli import main; raise SystemExit(main(sys.argv[1:]))")
-    return [sys.executable, "-c", script, "table", "--q", "2", "--n", "3..9", "--d", "3..4",
-            "--budget", "0.5", "--methods", "stub-lex", "--workers", "2", "--quiet",
+    return [sys.executable, "-c", script, "table", "--q", "2", "--n", n, "--d", "3..4",
+            "--budget", "0.5", "--methods", "stub-lex", "--workers", workers, "--quiet",
             "--store", str(store), *extra]
 
 
@@ -57,11 +57,11 @@ def test_kill_nine_and_resume(tmp_path):
     store = tmp_path / "crash.sqlite"
     rng = random.Random(20261202)
     cells = table_cells(2, range(3, 10), range(3, 5))
-    for _ in range(4):
+    for _ in range(3):
         proc = subprocess.Popen(_table_cmd(store), env=_env(), cwd=tmp_path,
                                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
                                 start_new_session=True)
-        time.sleep(rng.uniform(1.0, 4.0))
+        time.sleep(rng.uniform(1.0, 3.5))
         # kill -9 the driver and its workers (its own process group, started above)
         os.killpg(proc.pid, signal.SIGKILL)
         proc.wait()
@@ -83,7 +83,8 @@ def test_kill_nine_and_resume(tmp_path):
 
 def test_two_writers_at_once(tmp_path):
     store = tmp_path / "two.sqlite"
-    procs = [subprocess.Popen(_table_cmd(store, "--seed", str(i)), env=_env(), cwd=tmp_path,
+    procs = [subprocess.Popen(_table_cmd(store, "--seed", str(i), n="3..7", workers="1"),
+                              env=_env(), cwd=tmp_path,
                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
              for i in range(2)]
     for proc in procs:
@@ -91,7 +92,7 @@ def test_two_writers_at_once(tmp_path):
         assert proc.returncode == 0, err
     _check_store(store)
     with Store(store) as s:
-        for p in table_cells(2, range(3, 10), range(3, 5)):
+        for p in table_cells(2, range(3, 8), range(3, 5)):
             assert s.summary(p).lower >= 1
 
 

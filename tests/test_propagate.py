@@ -30,7 +30,7 @@ def test_u_u_plus_v_gives_reed_muller():
     assert (c.size, c.n, min_distance(c)) == (16, 8, 4)
 
 
-@settings(max_examples=40, deadline=None, derandomize=True)
+@settings(max_examples=25, deadline=None, derandomize=True)
 @given(q=st.integers(2, 5), n=st.integers(2, 6), m1=st.integers(2, 6), m2=st.integers(2, 6),
        seed=st.integers(0, 10**6))
 def test_constructions_meet_their_distance_claims(q, n, m1, m2, seed):
