@@ -266,7 +266,7 @@ class _DaskExecutor:
         except ImportError as exc:  # pragma: no cover - distributed is a dependency
             raise InputError(f"--scheduler needs the 'distributed' package ({exc})") from None
         try:
-            self.client = Client(address, timeout="20s", set_as_default=False)
+            self.client = Client(address, timeout="15s", set_as_default=False)
         except (OSError, TimeoutError, ValueError) as exc:
             raise InputError(f"cannot reach Dask scheduler {address}: {exc}".splitlines()[0]) from None
         self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))

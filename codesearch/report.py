@@ -157,6 +157,8 @@ def render_md(rows: Sequence[CellRow]) -> str:
 
 
 def _pub_text(r: CellRow) -> str:
+    if r.published_lower is None and r.published_upper is None:
+        return "?"
     lo = "?" if r.published_lower is None else str(r.published_lower)
     up = "?" if r.published_upper is None else str(r.published_upper)
     return lo if lo == up else f"{lo}-{up}"

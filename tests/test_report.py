@@ -135,3 +135,50 @@ def test_html_in_headless_chromium(store_path, tmp_path):
     subprocess.run(flags + [f"--screenshot={shot}", "--window-size=1000,700", page.as_uri()],
                    capture_output=True, timeout=120)
     assert shot.exists() and shot.read_bytes()[:4] == b"\x89PNG"
+
+
+def test_html_inline_codewords_verify(store_path):
+    import base64
+
+    from codesearch.codefile import parse_code_text
+
+    with Store(store_path) as s:
+        page = render(s, "html")
+    m = re.search(r'download="A2-7-3.code" href="data:text/plain;base64,([A-Za-z0-9+/=]+)"', page)
+    code = parse_code_text(base64.b64decode(m.group(1)).decode()).code
+    # The inlined words are the stored Hamming code: 16 words at distance 3.
+    assert code.size == 16 and min_distance(code) == 3
+
+
+def test_rich_progress_renders():
+    from rich.console import Console
+
+    from codesearch.batch import RichProgress
+
+    console = Console(file=io.StringIO(), force_terminal=False, width=100)
+    with RichProgress(console) as prog:
+        prog({"event": "start", "cells": 3})
+        prog({"event": "submit", "cell": Params(2, 7, 3), "lower": 12, "upper": 16})
+        prog({"event": "skip", "cell": None})
+        text = io.StringIO()
+        Console(file=text, width=100).print(prog._render())
+        assert "A(7,3)" in text.getvalue() and "12" in text.getvalue()
+        prog({"event": "done", "cell": Params(2, 7, 3), "lower": 16, "upper": 16, "seconds": 1.0})
+    assert "1 done, 1 skipped" in console.file.getvalue()
+
+
+@pytest.mark.slow  # waits for the connection timeout
+def test_unreachable_scheduler_is_input_error(tmp_path, capsys):
+    import socket
+
+    sock = socket.socket()
+    sock.bind(("127.0.0.1", 0))
+    port = sock.getsockname()[1]
+    sock.close()  # nothing listens on this port now
+    import table_stub_lex
+
+    table_stub_lex.register()
+    code = main(["table", "--n", "3..4", "--d", "3", "--methods", "stub-lex", "--quiet",
+                 "--no-propagate", "--store", str(tmp_path / "s.sqlite"),
+                 "--scheduler", f"tcp://127.0.0.1:{port}"])
+    assert code == 2 and "cannot reach Dask scheduler" in capsys.readouterr().err
