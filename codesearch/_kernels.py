@@ -110,9 +110,29 @@ def distance_distribution_packed(packed, planes, limbs, n):
                 while j < m:
                     h[0, popcount64(a ^ packed[j, 0])] += 1
                     j += 1
-            else:
+            elif limbs == 1 and planes == 2:
+                a0 = packed[i, 0]
+                a1 = packed[i, 1]
                 for j in range(i + 1, m):
-                    h[j & 3, _pair_distance(packed, i, j, planes, limbs)] += 1
+                    x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1])
+                    h[j & 3, popcount64(x)] += 1
+            elif limbs == 1 and planes == 3:
+                a0 = packed[i, 0]
+                a1 = packed[i, 1]
+                a2 = packed[i, 2]
+                for j in range(i + 1, m):
+                    x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2])
+                    h[j & 3, popcount64(x)] += 1
+            else:
+                row = packed[i].copy()
+                for j in range(i + 1, m):
+                    acc = 0
+                    for l in range(limbs):
+                        x = nb.uint64(0)
+                        for p in range(planes):
+                            x |= row[p * limbs + l] ^ packed[j, p * limbs + l]
+                        acc += popcount64(x)
+                    h[j & 3, acc] += 1
         for k in range(n + 1):
             hist[c, k] = h[0, k] + h[1, k] + h[2, k] + h[3, k]
     out = np.zeros(n + 1, dtype=np.int64)
