@@ -224,12 +224,10 @@ def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
     """
     rows, ks, extras, G = _problem(q, n, d, even, use_extra)
     solve = _highs if _have_highs_core() else _linprog
-    # Dual simplex first (it returns a vertex, whose active set the exact solve uses); the
-    # interior point method as a second try when the simplex gives up on a badly scaled cell.
-    for method in ("highs-ds", "highs-ipm"):
-        res = solve(G, method)
-        if res.status == 0:
-            break
+    # Dual simplex: it returns a vertex, whose active set the exact solve uses. (The interior
+    # point method was tried as a fallback on the badly scaled cells and never succeeded
+    # where the simplex failed, on the binary grid n <= 128.)
+    res = solve(G, "highs-ds")
     return rows, ks, extras, G, res
 
 
