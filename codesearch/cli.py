@@ -61,9 +61,87 @@ def _add_check(sub: argparse._SubParsersAction) -> None:
 
 
 def _cmd_check(args: argparse.Namespace) -> int:
-    from codesearch import verify
+    from codesearch import codefile, verify
 
-    return verify.run_check_command(args)
+    if args.generator:
+        rows, q, _ = codefile.read_generator(args.file, args.q)
+        report = verify.check_generator(rows, q, args.d)
+        return _print_code_report(args, report, None)
+    head = _peek(args.file)
+    if head.lstrip().startswith("{"):
+        obj = verify.load_json_file(args.file)
+        if isinstance(obj, dict) and "kind" in obj:
+            valid, bound, reason = verify.check_certificate(obj)
+            if args.json:
+                _print_json({"certificate": obj.get("kind"), "valid": valid, "bound": bound,
+                             "reason": reason})
+            else:
+                verdict = "valid" if valid else "INVALID"
+                print(f"{args.file}: {obj.get('kind')} certificate {verdict}: {reason}")
+            return 0 if valid else 1
+    parsed = codefile.read_code(args.file, args.q)
+    d = args.d if args.d is not None else parsed.claimed_d
+    report = verify.check_code(parsed.code, d)
+    return _print_code_report(args, report, parsed)
+
+
+def _peek(path: str) -> str:
+    try:
+        with open(path, "rb") as fh:
+            return fh.read(256).decode("utf-8", errors="replace")
+    except FileNotFoundError:
+        raise InputError(f"{path}: no such file") from None
+    except IsADirectoryError:
+        raise InputError(f"{path}: is a directory, not a code file") from None
+    except OSError as exc:
+        raise InputError(f"{path}: cannot read: {exc.strerror}") from None
+
+
+def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> int:
+    where = None
+    if report.offending is not None and parsed is not None:
+        i, j, dist = report.offending
+        where = (int(parsed.lines[i]), int(parsed.lines[j]), dist)
+    if args.json:
+        obj = report.to_json()
+        if where is not None:
+            obj["offending_lines"] = [where[0], where[1]]
+            obj["offending_distance"] = where[2]
+        _print_json(obj)
+    else:
+        dist = ", ".join(f"{i}:{c}" for i, c in enumerate(report.distance_distribution) if c)
+        rows = [
+            ("file", args.file),
+            ("length n", report.n),
+            ("alphabet q", report.q),
+            ("size M", report.size),
+            ("min distance", "-" if report.min_distance is None else report.min_distance),
+            ("distance distribution", dist or "-"),
+            ("duplicate pairs", report.duplicates),
+        ]
+        if report.linear is None:
+            rows.append(("linear", "not tested (q is not prime)"))
+        elif report.linear:
+            rows.append(("linear", f"yes, dimension {report.dimension}"))
+            wd = ", ".join(f"{i}:{c}" for i, c in enumerate(report.weight_distribution) if c)
+            rows.append(("weight distribution", wd))
+        else:
+            rows.append(("linear", "no"))
+        if report.claimed_d is not None:
+            verdict = "holds" if report.valid else "FAILS"
+            rows.append((f"claim d >= {report.claimed_d}", verdict))
+        width = max(len(k) for k, _ in rows)
+        for key, value in rows:
+            print(f"{key:<{width}}  {value}")
+    if not report.valid:
+        if where is not None:
+            print(f"{args.file}:{where[1]}: codeword is at distance {where[2]} from line "
+                  f"{where[0]}, below the claimed d={report.claimed_d}", file=sys.stderr)
+        else:
+            print(f"{args.file}: minimum distance {report.min_distance} is below the claimed "
+                  f"d={report.claimed_d}", file=sys.stderr)
+        return 1
+    return 0
 
 
 # --------------------------------------------------------------------------------- bounds
@@ -94,20 +172,49 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
 
 # ----------------------------------------------------------------------------------- find
 def _add_find(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("find", help="search for a large code in one cell")
+    p = sub.add_parser(
+        "find",
+        help="search for a large code in one cell",
+        description="Search for a large code of length N and minimum distance D. With an "
+        "exhaustive method (exact) the result is proved optimal when the search finishes; "
+        "on the time limit the best code and the upper bound proved so far are reported. "
+        "Python: codesearch.search.search(Params(q, n, d), method, time_limit=, seed=).",
+    )
     p.add_argument("n", type=int, help="length")
     p.add_argument("d", type=int, help="minimum distance")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
-    p.add_argument("--method", default="exact", help="search method")
+    p.add_argument("--method", default="exact", help="search method (default exact)")
     p.add_argument("--time", type=float, help="time limit in seconds")
     p.add_argument("--seed", type=int, help="random seed")
-    p.add_argument("--out", help="write the code found to this file")
+    p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
     _COMMANDS["find"] = _cmd_find
 
 
 def _cmd_find(args: argparse.Namespace) -> int:
-    raise InputError("the find command is not available yet")
+    from codesearch.model import Params
+    from codesearch.search import search
+    from codesearch.search.progress import live_progress
+
+    params = Params(args.q, args.n, args.d)
+    with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
+        result = search(params, args.method, time_limit=args.time, seed=args.seed, progress=prog)
+    if args.out and result.code is not None:
+        from codesearch.codefile import write_code
+
+        write_code(args.out, result.code, params.d,
+                   {"method": result.method, "status": result.status.value,
+                    "upper": result.upper, "seed": result.seed})
+    summary = result.to_json(args.out if (args.out and result.code is not None) else None)
+    if args.json:
+        _print_json(summary)
+    else:
+        verdict = "proved optimal" if result.optimal else (
+            f"{result.status.value}; upper bound {result.upper}")
+        print(f"{params}: code of size {result.size} ({verdict}) "
+              f"by {result.method} in {result.seconds:.2f} s, {result.nodes} nodes")
+    return 0
 
 
 # ---------------------------------------------------------------------------------- table

@@ -1,10 +1,29 @@
-"""Independent checks of codes and bound certificates.
+"""Independent checks of codes and of bound certificates.
 
-(Foundation work in progress: the fast packed kernel replaces the numpy path below.)
+This module is the project's referee: every code a search returns, a file holds or the store
+keeps passes through :func:`assert_code`, and every computed bound's certificate through
+:func:`check_certificate`. It is kept small and separate from the searchers: it shares with
+them only the packed distance kernel of :mod:`codesearch._kernels` (itself tested against the
+definition in :mod:`codesearch._reference`). Certificates are checked with Python integers and
+:class:`fractions.Fraction` only.
+
+Codes
+-----
+The distance distribution of an ``M``-word code counts the unordered pairs at each distance
+``0..n``. For a *linear* code (a subspace of GF(p)^n) the pairs at distance ``i > 0`` number
+``M * A_i / 2`` where ``A_i`` is the weight distribution, so only ``O(M n)`` work is needed;
+otherwise the packed kernel visits all ``M (M - 1) / 2`` pairs.
+
+References
+----------
+F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*, North-Holland,
+1977, ch. 1 (distance distribution of linear codes equals the weight distribution).
 """
 
 from __future__ import annotations
 
+import json
+from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
 from typing import Any, Callable, Mapping
@@ -14,44 +33,303 @@ import numpy as np
 from codesearch.errors import InputError, VerificationError
 from codesearch.model import Code, Params
 
-__all__ = ["assert_code", "min_distance", "check_certificate", "load_certificate",
-           "run_certificate_check", "CERTIFICATE_CHECKERS"]
+__all__ = [
+    "CodeReport",
+    "check_code",
+    "check_generator",
+    "assert_code",
+    "assert_min_distance",
+    "min_distance",
+    "distance_distribution",
+    "first_close_pair",
+    "is_prime",
+    "check_certificate",
+    "CERTIFICATE_CHECKERS",
+    "parse_fraction",
+    "load_certificate",
+]
 
 
-def min_distance(code: Code) -> int:
-    """Minimum Hamming distance over distinct pairs (n + 1 for codes of size < 2)."""
-    w = code.words
-    best = code.n + 1
-    for i in range(code.size - 1):
-        dist = (w[i + 1 :] != w[i]).sum(axis=1)
-        if dist.size:
-            best = min(best, int(dist.min()))
-    return best
+def is_prime(q: int) -> bool:
+    """True for prime q (the alphabets where we test linearity over GF(q))."""
+    return q >= 2 and all(q % p for p in range(2, int(q**0.5) + 1))
+
+
+@dataclass(frozen=True)
+class CodeReport:
+    """What :func:`check_code` found.
+
+    Attributes
+    ----------
+    n, q, size : int
+        Length, alphabet size, number of codewords (duplicates included).
+    min_distance : int or None
+        Least distance over pairs of rows (0 when there are duplicates); None when size < 2.
+    distance_distribution : list of int
+        Unordered pairs at each distance 0..n.
+    duplicates : int
+        Pairs of equal rows (``distance_distribution[0]``).
+    linear : bool or None
+        Whether the rows form a subspace of GF(q)^n; None when q is not prime.
+    dimension : int or None
+        The dimension when linear.
+    weight_distribution : list of int or None
+        Words of each weight 0..n when linear.
+    claimed_d : int or None
+        The minimum distance the check was asked to confirm.
+    valid : bool
+        True when no claim was made, or the claim holds.
+    offending : tuple of int or None
+        ``(i, j, distance)``: the first pair of rows (0-based) closer than ``claimed_d``.
+    """
+
+    n: int
+    q: int
+    size: int
+    min_distance: int | None
+    distance_distribution: list[int]
+    duplicates: int
+    linear: bool | None
+    dimension: int | None
+    weight_distribution: list[int] | None = None
+    claimed_d: int | None = None
+    valid: bool = True
+    offending: tuple[int, int, int] | None = None
+    method: str = "pairs"
+
+    def to_json(self) -> dict[str, Any]:
+        """The object printed by ``codesearch check --json``."""
+        return {
+            "n": self.n,
+            "q": self.q,
+            "size": self.size,
+            "min_distance": self.min_distance,
+            "distance_distribution": list(self.distance_distribution),
+            "duplicates": self.duplicates,
+            "linear": self.linear,
+            "dimension": self.dimension,
+            "weight_distribution": self.weight_distribution,
+            "claimed_d": self.claimed_d,
+            "valid": self.valid,
+        }
+
+
+def _kernels():
+    from codesearch import _kernels
+
+    return _kernels
+
+
+def _packed(code: Code) -> tuple[np.ndarray, int, int]:
+    k = _kernels()
+    return k.pack_words(code.words, code.q), k.plane_count(code.q), k.limb_count(code.n)
+
+
+def distance_distribution(code: Code) -> list[int]:
+    """Unordered pairs of rows at each distance 0..n, over all pairs (packed kernel)."""
+    if code.size < 2:
+        return [0] * (code.n + 1)
+    packed, planes, limbs = _packed(code)
+    return [int(v) for v in _kernels().distance_distribution_packed(packed, planes, limbs, code.n)]
+
+
+def first_close_pair(code: Code, below: int) -> tuple[int, int, int] | None:
+    """The first pair of rows ``(i, j, dist)`` with ``dist < below``, or None (early exit)."""
+    if code.size < 2:
+        return None
+    packed, planes, limbs = _packed(code)
+    i, j, dist = (int(v) for v in _kernels().first_close_pair_packed(packed, planes, limbs, below))
+    return None if i < 0 else (i, j, dist)
+
+
+def min_distance(code: Code) -> int | None:
+    """Minimum distance over pairs of rows; None for fewer than two rows."""
+    if code.size < 2:
+        return None
+    dist = distance_distribution(code)
+    return next(i for i, c in enumerate(dist) if c)
+
+
+def _linear_dimension(code: Code) -> int | None:
+    """The dimension if the rows are exactly a subspace of GF(q)^n, else None.
+
+    A set C of distinct vectors lies in span(C), which has q^rank elements; so C is a subspace
+    iff |C| = q^rank(C). Quick rejections: |C| must be a power of q and C must hold 0.
+    """
+    q, m = code.q, code.size
+    if not is_prime(q) or m == 0:
+        return None
+    k, power = 0, 1
+    while power < m:
+        power *= q
+        k += 1
+    if power != m or not (code.words == 0).all(axis=1).any():
+        return None
+    if k > code.n:
+        return None
+    rank = int(_kernels().gf_rank(np.array(code.words, dtype=np.uint8, order="C"), q, k))
+    if rank != k:
+        return None
+    # |C| = q^k = q^rank; C is a subspace provided its rows are distinct
+    srt = code.canonical().words
+    if m > 1 and (srt[1:] == srt[:-1]).all(axis=1).any():
+        return None
+    return k
+
+
+def check_code(code: Code, d: int | None = None) -> CodeReport:
+    """Check a code: distance distribution, duplicates, linearity, and the claim ``d``.
+
+    Parameters
+    ----------
+    code : Code
+        The code to check.
+    d : int, optional
+        Claimed minimum distance. With a claim the report names the first offending pair.
+    """
+    n, q, m = code.n, code.q, code.size
+    dim = _linear_dimension(code)
+    linear: bool | None = None if not is_prime(q) else dim is not None
+    weights = None
+    if dim is not None:
+        weights = np.bincount((code.words != 0).sum(axis=1), minlength=n + 1).astype(np.int64)
+        dist = [0] + [int(m * int(a) // 2) for a in weights[1:]]
+        method = "weights"
+    else:
+        dist = distance_distribution(code)
+        method = "pairs"
+    mind = next((i for i, c in enumerate(dist) if c), None) if m >= 2 else None
+    valid, offending = True, None
+    if d is not None and mind is not None and mind < d:
+        valid = False
+        offending = first_close_pair(code, d)
+    return CodeReport(
+        n=n, q=q, size=m, min_distance=mind, distance_distribution=dist, duplicates=dist[0],
+        linear=linear, dimension=dim,
+        weight_distribution=None if weights is None else [int(v) for v in weights],
+        claimed_d=d, valid=valid, offending=offending, method=method,
+    )
+
+
+def check_generator(rows: np.ndarray, q: int, d: int | None = None) -> CodeReport:
+    """Check the linear code spanned by the rows of a generator matrix over GF(q), q prime.
+
+    The rows are first reduced to a basis (dependent rows are dropped), then all q^k codewords
+    are enumerated (Gray code for q = 2, an odometer otherwise) to get the weight distribution.
+    """
+    if not is_prime(q):
+        raise InputError(f"generator matrices need a prime q, got q={q}")
+    rows = np.ascontiguousarray(rows, dtype=np.uint8)
+    k_all, n = rows.shape
+    basis = _row_basis(rows, q)
+    k = basis.shape[0]
+    if q**k > 1 << 40:
+        raise InputError(f"{q}^{k} codewords are too many to enumerate (dimension {k})")
+    kern = _kernels()
+    if q == 2:
+        weights = kern.gray_weight_distribution_binary(kern.pack_words(basis, 2), n)
+    else:
+        weights = kern.odometer_weight_distribution(basis.astype(np.int64), q)
+    m = q**k
+    dist = [0] + [int(m * int(a) // 2) for a in weights[1:]]
+    mind = next((i for i, c in enumerate(dist) if c), None) if m >= 2 else None
+    valid = d is None or mind is None or mind >= d
+    return CodeReport(
+        n=n, q=q, size=m, min_distance=mind, distance_distribution=dist, duplicates=0,
+        linear=True, dimension=k, weight_distribution=[int(v) for v in weights],
+        claimed_d=d, valid=valid, offending=None, method="generator",
+    )
+
+
+def _row_basis(rows: np.ndarray, q: int) -> np.ndarray:
+    """Rows of ``rows`` forming a basis of their span (greedy, in order)."""
+    kern = _kernels()
+    keep: list[int] = []
+    for i in range(rows.shape[0]):
+        trial = np.ascontiguousarray(rows[keep + [i]])
+        if kern.gf_rank(trial, q, len(keep) + 1) == len(keep) + 1:
+            keep.append(i)
+    return np.ascontiguousarray(rows[keep]).reshape(len(keep), rows.shape[1])
+
+
+def assert_min_distance(code: Code, d: int) -> None:
+    """Raise :class:`VerificationError` if two rows of ``code`` are closer than ``d``."""
+    bad = first_close_pair(code, d)
+    if bad is not None:
+        i, j, dist = bad
+        raise VerificationError(
+            f"rows {i} and {j} are at distance {dist} < d={d} "
+            f"({code.to_strings()[i]} / {code.to_strings()[j]})"
+        )
 
 
 def assert_code(code: Code, params: Params) -> None:
-    """Raise :class:`VerificationError` unless ``code`` is a code of cell ``params``."""
+    """Raise :class:`VerificationError` unless ``code`` is a code of the cell ``params``."""
+    if not isinstance(code, Code):
+        raise VerificationError(f"expected a Code, got {type(code).__name__}")
     if code.q != params.q or code.n != params.n:
         raise VerificationError(
-            f"code has q={code.q}, n={code.n}; expected q={params.q}, n={params.n}"
+            f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}"
         )
-    if code.size >= 2 and min_distance(code) < params.d:
-        raise VerificationError(f"code has minimum distance below d={params.d}")
+    assert_min_distance(code, params.d)
+
+
+# ============================================================================ certificates
+
+
+def parse_fraction(text: Any) -> Fraction:
+    """Parse ``"p/q"`` or an integer (string or int) into a Fraction; floats are refused."""
+    if isinstance(text, bool) or isinstance(text, float):
+        raise ValueError(f"expected an exact rational, got {text!r}")
+    if isinstance(text, int):
+        return Fraction(text)
+    if not isinstance(text, str):
+        raise ValueError(f"expected a string 'p/q', got {type(text).__name__}")
+    if any(c in text for c in ".eE"):
+        raise ValueError(f"expected an exact rational 'p/q', got {text!r}")
+    return Fraction(text)
+
+
+#: Certificate kind -> checker ``f(cert) -> (valid, bound, reason)``. Checkers use exact
+#: arithmetic only and rebuild every coefficient themselves from (q, n, d).
+CERTIFICATE_CHECKERS: dict[str, Callable[[Mapping[str, Any]], tuple[bool, int | None, str]]] = {}
 
 
 def check_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
     """Re-check a bound certificate with exact arithmetic.
 
-    Returns ``(valid, bound, reason)``; dispatches on ``cert["kind"]`` through
-    :data:`CERTIFICATE_CHECKERS`. ``bound`` is the integer the certificate proves (None when
-    invalid). A malformed certificate raises :class:`~codesearch.errors.InputError`.
+    Returns
+    -------
+    (valid, bound, reason)
+        ``bound`` is the integer upper bound the certificate proves when valid.
+
+    Raises
+    ------
+    InputError
+        When the certificate is malformed (unknown kind, missing or non-exact fields).
     """
-    if not isinstance(cert, Mapping) or "kind" not in cert:
-        raise InputError("certificate: not a JSON object with a 'kind' key")
-    checker = CERTIFICATE_CHECKERS.get(cert["kind"])
+    if not isinstance(cert, Mapping):
+        raise InputError("certificate must be a JSON object")
+    kind = cert.get("kind")
+    checker = CERTIFICATE_CHECKERS.get(kind)  # type: ignore[arg-type]
     if checker is None:
-        raise InputError(f"certificate: unknown kind {cert['kind']!r}")
-    return checker(cert)
+        known = ", ".join(sorted(CERTIFICATE_CHECKERS)) or "none"
+        raise InputError(f"unknown certificate kind {kind!r} (known: {known})")
+    try:
+        return checker(cert)
+    except (KeyError, TypeError, ValueError, ZeroDivisionError) as exc:
+        raise InputError(f"malformed {kind} certificate: {exc}") from None
+
+
+def load_json_file(path: str) -> Any:
+    """Read a JSON file with one-line errors."""
+    from codesearch.codefile import _decode, _read_bytes
+
+    text = _decode(_read_bytes(path), path)
+    try:
+        return json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise InputError(f"{path}:{exc.lineno}: invalid JSON: {exc.msg}") from None
 
 
 # ======================================================================= delsarte-lp certificates
@@ -214,22 +492,4 @@ def load_certificate(path: str) -> dict[str, Any] | None:
     return obj if isinstance(obj, dict) and "kind" in obj else None
 
 
-def run_certificate_check(cert: Mapping[str, Any], *, as_json: bool = False) -> int:
-    """Check a certificate and print the verdict; exit status 0 valid, 1 invalid.
-
-    A malformed certificate raises :class:`InputError` (the CLI maps it to status 2).
-    """
-    import json
-
-    valid, bound, reason = check_certificate(cert)
-    if as_json:
-        print(json.dumps({"kind": cert["kind"], "valid": valid, "bound": bound, "reason": reason}))
-    else:
-        print(f"{cert['kind']} certificate {'VALID' if valid else 'INVALID'}: {reason}")
-    return 0 if valid else 1
-
-
-#: Certificate kind -> checker returning ``(valid, bound, reason)``.
-CERTIFICATE_CHECKERS: dict[str, Callable[[Mapping[str, Any]], tuple[bool, int | None, str]]] = {
-    "delsarte-lp": _check_delsarte_lp,
-}
+CERTIFICATE_CHECKERS["delsarte-lp"] = _check_delsarte_lp
