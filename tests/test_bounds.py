@@ -314,3 +314,37 @@ def test_registry_and_errors():
         upper_bound((2, 5, 3))
     with pytest.raises(ParameterError):
         upper_bound(Params(2, 5000, 3))
+
+
+@pytest.mark.parametrize("m", [5, 6])
+def test_lp_exact_on_long_hamming_codes(m):
+    # Hamming codes are perfect (MacWilliams-Sloane ch. 6): A(2^m-1, 3) = 2^(2^m-1-m), and
+    # the LP lies between the code size and the sphere-packing bound, so it equals it. These
+    # values are beyond double precision's reach; the high-precision simplex certifies them.
+    n = 2**m - 1
+    r = delsarte.delsarte_lp(Params(2, n, 3))
+    assert r.certified and r.value == 2 ** (n - m)
+    assert verify.check_certificate(r.certificate)[:2] == (True, r.value)
+
+
+def test_lp_distance_two_long():
+    # A(n,2) = 2^(n-1) (even-weight code; common practice); the LP reaches it exactly.
+    r = delsarte.delsarte_lp(Params(2, 64, 2))
+    assert r.certified and r.value == 2**63
+
+
+def test_fast_path_leaves_hard_cells_uncertified_not_wrong():
+    # Without the fallback a cell may stay uncertified, but it never enters ``upper``.
+    r = delsarte.delsarte_lp(Params(2, 100, 30), exact_fallback=False)
+    if not r.certified:
+        assert not r.usable
+        assert upper_bound(Params(2, 100, 30), lp_fallback=False).method != "delsarte-lp"
+    full = delsarte.delsarte_lp(Params(2, 100, 30))
+    assert full.certified and verify.check_certificate(full.certificate)[0]
+
+
+@pytest.mark.slow
+def test_lp_exact_on_hamming_127():
+    # [127,120,3] Hamming code is perfect: the LP equals 2^120 (MacWilliams-Sloane ch. 6).
+    r = delsarte.delsarte_lp(Params(2, 127, 3))
+    assert r.certified and r.value == 2**120
