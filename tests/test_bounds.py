@@ -348,3 +348,33 @@ def test_lp_exact_on_hamming_127():
     # [127,120,3] Hamming code is perfect: the LP equals 2^120 (MacWilliams-Sloane ch. 6).
     r = delsarte.delsarte_lp(Params(2, 127, 3))
     assert r.certified and r.value == 2**120
+
+
+def _extend(code):
+    """Append an overall parity bit (MacWilliams-Sloane ch. 1: odd d becomes d + 1)."""
+    from codesearch.model import Code
+
+    w = code.words.astype(np.int64)
+    return Code(np.hstack([w, w.sum(axis=1, keepdims=True) % 2]), 2)
+
+
+@pytest.mark.parametrize("name,build,d", [
+    ("golay23", golay23, 7),
+    ("golay24", lambda: _extend(golay23()), 8),
+    ("hamming15", lambda: hamming_code(4), 3),
+    ("hamming16", lambda: _extend(hamming_code(4)), 4),
+    ("rm1_4", lambda: reed_muller_1(4), 8),
+    ("rm2_4", lambda: reed_muller_2(4), 4),
+])
+def test_extra_inequalities_hold_on_real_codes(name, build, d):
+    # Each extra inequality is claimed per codeword (see extra_inequalities): check it on the
+    # distance distribution seen from every codeword of well-known codes.
+    code = build()
+    n = code.n
+    w = code.words.astype(np.int64)
+    for c in range(0, code.size, max(1, code.size // 64)):
+        dist = (w != w[c]).sum(axis=1)
+        counts = np.bincount(dist, minlength=n + 1)
+        for fam, idx, coeffs, rhs in delsarte.extra_inequalities(n, d):
+            lhs = sum(a * int(counts[i]) for i, a in coeffs.items())
+            assert lhs <= rhs, (name, fam, idx)
