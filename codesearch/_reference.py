@@ -159,3 +159,119 @@ def code_adjacency(words: np.ndarray, d: int) -> list[set[int]]:
     rows = [tuple(int(s) for s in r) for r in words]
     return [{j for j in range(len(rows)) if j != i and hamming(rows[i], rows[j]) >= d}
             for i in range(len(rows))]
+# ======================================================================= heuristics (greedy, local search)
+# Twins of the ``heur_*`` kernels. Words are integer indices in base q (first coordinate most
+# significant), as in the kernels; everything here goes through explicit digit tuples.
+
+_MASK64 = (1 << 64) - 1
+
+
+def heur_digits(x: int, q: int, n: int) -> tuple[int, ...]:
+    """Digits of word index ``x`` (first coordinate first)."""
+    out = []
+    for _ in range(n):
+        out.append(x % q)
+        x //= q
+    return tuple(reversed(out))
+
+
+def heur_index(digits, q: int) -> int:
+    """Inverse of :func:`heur_digits`."""
+    x = 0
+    for s in digits:
+        x = x * q + int(s)
+    return x
+
+
+def heur_index_dist(x: int, y: int, q: int, n: int) -> int:
+    """Hamming distance between two word indices, by their digits."""
+    return hamming(heur_digits(x, q, n), heur_digits(y, q, n))
+
+
+def heur_rand(state: list[int]) -> int:
+    """xorshift64* step on ``state[0]`` (Marsaglia 2003; Vigna 2016 multiplier)."""
+    x = state[0]
+    x ^= x >> 12
+    x ^= (x << 25) & _MASK64
+    x ^= x >> 27
+    state[0] = x
+    return (x * 0x2545F4914F6CDD1D) & _MASK64
+
+
+def heur_randint(state: list[int], bound: int) -> int:
+    """Same reduction as the kernel: drop two low bits, then modulo."""
+    return (heur_rand(state) >> 2) % bound
+
+
+def heur_order_at(t: int, kind: int, q: int, n: int, perm) -> int:
+    """t-th word of the scan: lexicographic, modular q-ary Gray code, or ``perm[t]``."""
+    if kind == 0:
+        return t
+    if kind == 2:
+        return int(perm[t])
+    b = heur_digits(t, q, n)
+    g = [b[0]] + [(b[j] - b[j - 1]) % q for j in range(1, n)]
+    return heur_index(g, q)
+
+
+def heur_greedy(q: int, n: int, d: int, kind: int, perm=None) -> list[int]:
+    """Greedy code of a whole scan, by comparing each word with every codeword kept."""
+    code: list[int] = []
+    kept_digits: list[tuple[int, ...]] = []
+    for t in range(q**n):
+        x = heur_order_at(t, kind, q, n, perm)
+        dx = heur_digits(x, q, n)
+        if all(hamming(dx, c) >= d for c in kept_digits):
+            code.append(x)
+            kept_digits.append(dx)
+    return code
+
+
+def heur_greedy_sample(q: int, n: int, d: int, space: int, max_fail: int, state: list[int],
+                       cap: int) -> list[int]:
+    """Random greedy with the kernel's random stream and stop rule."""
+    out: list[int] = []
+    fails = 0
+    while fails < max_fail and len(out) < cap:
+        x = heur_randint(state, space)
+        if all(heur_index_dist(x, y, q, n) >= d for y in out):
+            out.append(x)
+            fails = 0
+        else:
+            fails += 1
+    return out
+
+
+def heur_ball_counts(words, q: int, n: int, d: int) -> list[int]:
+    """For every word y of the space: the number of codewords within distance d - 1."""
+    return [sum(1 for w in words if heur_index_dist(y, int(w), q, n) < d) for y in range(q**n)]
+
+
+def heur_conflicts(words, q: int, n: int, d: int) -> list[int]:
+    """For each codeword: the number of other codewords closer than d."""
+    words = [int(w) for w in words]
+    return [sum(1 for j, v in enumerate(words) if j != i and heur_index_dist(u, v, q, n) < d)
+            for i, u in enumerate(words)]
+# ======================================================================= orbits (orbit search)
+
+
+def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj) -> None:
+    """Twin of :func:`codesearch._kernels.orbit_adjacency_rows`, by the definition.
+
+    Orbits i < j (i in ``lo..hi-1``) are compatible iff the representative of orbit i is at
+    distance >= d from every word of orbit j; distance = number of coordinates where some bit
+    plane differs.
+    """
+    nplanes, _ = planes.shape
+    k = len(reps)
+    for i in range(lo, hi):
+        r = int(reps[i])
+        for j in range(i + 1, k):
+            dists = []
+            for t in range(int(starts[j]), int(starts[j + 1])):
+                w = int(words[t])
+                diff = 0
+                for p in range(nplanes):
+                    diff |= int(planes[p, r]) ^ int(planes[p, w])
+                dists.append(bin(diff).count("1"))
+            adj[i, j] = 1 if min(dists) >= d else 0

@@ -193,6 +193,25 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
     p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
+    # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
+    p.add_argument("--size", type=int, metavar="M",
+                   help="ask for a code of M words (sat: decide it; heuristics: stop there); "
+                   "JSON then adds 'exists'")
+    p.add_argument("--proof", metavar="FILE",
+                   help="sat with --size: write FILE[.wW].cnf and the DRAT proof FILE[.wW] of "
+                   "each refuted branch (they cover the symmetry-reduced formula)")
+    # Orbit search (method orbit) and the portfolio (method auto); dest matches the option name.
+    p.add_argument(
+        "--group", metavar="SPEC",
+        help="orbit/auto: search only codes invariant under this group. SPEC joins factors "
+        "with '*'; coordinates are 0..n-1, BLOCKS is 'A-B,C-D' (default: whole word): "
+        "cyclic[:BLOCKS] shift, rev[:BLOCKS] reversal, mul:K[:BLOCKS] i->K*i, sym:BLOCKS "
+        "all permutations per block, perm:(0 1 2)(3 4) explicit, scale[:A] multiply symbols "
+        "(q prime), rep all-ones translations, rm1 cosets of RM(1,m) (n=2^m or 2^m-1), "
+        "span:ROW,ROW or span:@FILE cosets of the span of the rows. Examples: "
+        "'find 16 6 --method orbit --group rm1', 'find 20 10 --method orbit --group "
+        "\"cyclic:0-18*rep\"', 'find 5 3 --q 4 --method orbit --group cyclic'. "
+        "For auto: several specs separated by ';' (default: a few natural groups)")
     _COMMANDS["find"] = _cmd_find
 
 
@@ -203,7 +222,10 @@ def _cmd_find(args: argparse.Namespace) -> int:
 
     params = Params(args.q, args.n, args.d)
     with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
-        result = search(params, args.method, time_limit=args.time, seed=args.seed, progress=prog)
+        options = {name: getattr(args, name) for name in ("size", "proof", "group")
+                   if getattr(args, name, None) is not None}
+        result = search(params, args.method, time_limit=args.time, seed=args.seed,
+                        progress=prog, **options)
     if args.out and result.code is not None:
         from codesearch.codefile import write_code
 

@@ -493,3 +493,209 @@ def load_certificate(path: str) -> dict[str, Any] | None:
 
 
 CERTIFICATE_CHECKERS["delsarte-lp"] = _check_delsarte_lp
+# ===================================================================== three-point-sdp
+# Schrijver's three-point semidefinite bound (A. Schrijver, IEEE Trans. Inform. Theory 51
+# (2005) 2859-2866), re-checked from the certificate alone. This path rebuilds every
+# coefficient itself (block coefficients beta, which variables vanish, the linear rows, the
+# caps on the variables) and shares no code with codesearch.bounds.sdp / terwilliger.
+#
+# The inequality checked: for every binary code C of length n, minimum distance d (all
+# distances even when "even"), with x[i,j,t] its three-point frequencies,
+#   |C| = 1 + sum_i C(n,i) x[i,0,0]
+#       <= 1 + sum <Z, B(x)> + sum mu (rhs - row(x)) + sum_i C(n,i) x[i,0,0]
+#        = 1 + const + sum_tri r_tri x_tri  <=  1 + const + sum_tri max(r_tri, 0) cap_tri,
+# because every Z is PSD, B(x) is PSD for codes (Schrijver's theorem), mu >= 0, rows hold
+# for codes, and 0 <= x_tri <= cap_tri.
+
+
+def _tp_binom(a: int, b: int) -> int:
+    from math import comb
+
+    return comb(a, b) if 0 <= b <= a else 0
+
+
+def _tp_beta(n: int, i: int, j: int, k: int, t: int) -> int:
+    # beta^t_{i,j,k} = sum_u (-1)^(u-t) C(u,t) C(n-2k,u-k) C(n-k-u,i-u) C(n-k-u,j-u)
+    total = 0
+    for u in range(t, min(i, j) + 1):
+        total += (-1) ** (u - t) * _tp_binom(u, t) * _tp_binom(n - 2 * k, u - k) * _tp_binom(
+            n - k - u, i - u
+        ) * _tp_binom(n - k - u, j - u)
+    return total
+
+
+def _tp_johnson(n: int, half: int, w: int, memo: dict) -> int:
+    # Johnson's bounds for constant-weight codes with distance 2*half (MacWilliams-Sloane
+    # ch. 17): A(n,2e,w) <= floor(n/w A(n-1,2e,w-1)), <= floor(n/(n-w) A(n-1,2e,w)),
+    # = 1 when min(w, n-w) < e, <= C(n,w).
+    key = (n, w)
+    if key in memo:
+        return memo[key]
+    if min(w, n - w) < half:
+        val = 1
+    else:
+        val = _tp_binom(n, w)
+        if w > 0:
+            val = min(val, n * _tp_johnson(n - 1, half, w - 1, memo) // w)
+        if n - w > 0:
+            val = min(val, n * _tp_johnson(n - 1, half, w, memo) // (n - w))
+    memo[key] = val
+    return val
+
+
+def _tp_psd(mat: list[list[Fraction]]) -> bool:
+    """Exact LDL^T: True iff the symmetric rational matrix is positive semidefinite."""
+    a = [row[:] for row in mat]
+    m = len(a)
+    for p in range(m):
+        piv = a[p][p]
+        if piv < 0:
+            return False
+        if piv == 0:
+            # a PSD matrix with a zero diagonal entry has a zero row there
+            if any(a[p][s] != 0 for s in range(p + 1, m)):
+                return False
+            continue
+        for r in range(p + 1, m):
+            f = a[r][p] / piv
+            if f:
+                for s in range(p + 1, m):
+                    a[r][s] -= f * a[p][s]
+    return True
+
+
+def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Re-check a ``"three-point-sdp"`` certificate in exact arithmetic.
+
+    The certificate holds the cell (``q, n, d``), the program's cell (``sdp_n, sdp_d``: the
+    same, or ``n+1, d+1`` for odd ``d`` since ``A(n,d) = A(n+1,d+1)``), ``even`` (only even
+    distances, allowed for even ``sdp_d``), dual ``blocks`` (``family`` 0 or 1, ``k``, row
+    ``weights``, a symmetric ``matrix`` of ``"p/q"`` strings), ``multipliers`` (``row``
+    label and ``"p/q"`` value) and the claimed integer ``value``.
+
+    Returns
+    -------
+    (valid, bound, reason)
+    """
+    import math
+
+    if int(cert["q"]) != 2:
+        return False, None, "three-point certificates are for binary codes"
+    n0, d0 = int(cert["n"]), int(cert["d"])
+    n, d = int(cert["sdp_n"]), int(cert["sdp_d"])
+    even = bool(cert["even"])
+    claimed = int(cert["value"])
+    if not 1 <= d0 <= n0:
+        return False, None, f"bad cell n={n0}, d={d0}"
+    if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
+        return False, None, f"program cell ({n},{d}) does not bound A({n0},{d0})"
+    if even and d % 2:
+        return False, None, "the even-distance restriction needs even d"
+
+    def tri(i: int, j: int, t: int) -> tuple[int, int, int] | None:
+        """Sorted triangle of x[i,j,t]; None when the variable is zero for these codes."""
+        sides = sorted((i, j, i + j - 2 * t), reverse=True)
+        if any(0 < s < d or (even and s % 2) for s in sides):
+            return None
+        return (sides[0], sides[1], sides[2])
+
+    def ok_index(i: int, j: int, t: int) -> bool:
+        return 0 <= t <= min(i, j) and i + j - t <= n
+
+    const = Fraction(1)  # the term x[0,0,0] = 1 of |C|
+    coef: dict[tuple[int, int, int], Fraction] = {}
+
+    def add(triangle: tuple[int, int, int] | None, value: Fraction) -> None:
+        nonlocal const
+        if triangle is None or not value:
+            return
+        if triangle == (0, 0, 0):
+            const += value
+        else:
+            coef[triangle] = coef.get(triangle, Fraction(0)) + value
+
+    for i in range(1, n + 1):
+        add(tri(i, 0, 0), Fraction(_tp_binom(n, i)))
+
+    seen = set()
+    for block in cert["blocks"]:
+        family, k = int(block["family"]), int(block["k"])
+        weights = [int(w) for w in block["weights"]]
+        if family not in (0, 1) or not 0 <= k <= n // 2 or (family, k) in seen:
+            return False, None, f"bad block family={family}, k={k}"
+        seen.add((family, k))
+        if len(set(weights)) != len(weights) or any(not k <= w <= n - k for w in weights):
+            return False, None, f"bad weights in block family={family}, k={k}"
+        mat = [[parse_fraction(v) for v in row] for row in block["matrix"]]
+        m = len(weights)
+        if len(mat) != m or any(len(row) != m for row in mat):
+            return False, None, f"block family={family}, k={k} is not {m}x{m}"
+        if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
+            return False, None, f"block family={family}, k={k} is not symmetric"
+        if not _tp_psd(mat):
+            return False, None, f"block family={family}, k={k} is not positive semidefinite"
+        for r, i in enumerate(weights):
+            for s, j in enumerate(weights):
+                z = mat[r][s]
+                if not z:
+                    continue
+                for t in range(min(i, j) + 1):
+                    if i + j - t > n:
+                        continue
+                    b = _tp_beta(n, i, j, k, t)
+                    if not b:
+                        continue
+                    if family == 0:
+                        add(tri(i, j, t), z * b)
+                    else:
+                        add(tri(i + j - 2 * t, 0, 0), z * b)
+                        add(tri(i, j, t), -z * b)
+
+    for mult in cert["multipliers"]:
+        label = list(mult["row"])
+        mu = parse_fraction(mult["value"])
+        if mu < 0:
+            return False, None, f"negative multiplier on row {label}"
+        if label[0] in ("upper", "pair"):
+            i, j, t = (int(v) for v in label[1:4])
+            if not ok_index(i, j, t):
+                return False, None, f"bad row {label}"
+            if label[0] == "upper":  # x[i,j,t] - x[i,0,0] <= 0
+                add(tri(i, j, t), -mu)
+                add(tri(i, 0, 0), mu)
+            else:  # x[i,0,0] + x[j,0,0] - x[i,j,t] <= 1
+                const += mu
+                add(tri(i, 0, 0), -mu)
+                add(tri(j, 0, 0), -mu)
+                add(tri(i, j, t), mu)
+        elif label[0] == "delsarte":  # -sum_i C(n,i) K_k(i) x[i,0,0] <= 0
+            k = int(label[1])
+            if not 0 <= k <= n:
+                return False, None, f"bad row {label}"
+            for i in range(n + 1):
+                kraw = sum(
+                    (-1) ** s * _tp_binom(i, s) * _tp_binom(n - i, k - s) for s in range(k + 1)
+                )
+                add(tri(i, 0, 0), mu * _tp_binom(n, i) * kraw)
+        else:
+            return False, None, f"unknown row {label}"
+
+    memo: dict = {}
+    half = (d + 1) // 2
+    for (a, b, c), r in coef.items():
+        if r <= 0:
+            continue
+        caps = sorted(1 if s == 0 else _tp_johnson(n, half, s, memo) for s in (a, b, c))
+        p = (a + b + c) // 2
+        shapes = math.factorial(n) // (
+            math.factorial(p - a) * math.factorial(p - b) * math.factorial(p - c)
+            * math.factorial(n - p)
+        )
+        const += r * min(Fraction(1), Fraction(caps[0] * caps[1], shapes))
+    proven = math.floor(const)
+    if claimed < proven:
+        return False, None, f"claimed {claimed} but the certificate proves only {proven}"
+    return True, claimed, f"three-point SDP bound A({n0},{d0}) <= {proven} (exact {float(const):.6f})"
+
+
+CERTIFICATE_CHECKERS["three-point-sdp"] = check_three_point_certificate
