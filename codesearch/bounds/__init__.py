@@ -80,8 +80,8 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
     params : Params
         The cell.
     sdp : bool
-        Also try Schrijver's three-point semidefinite bound (``"sdp-three-point"``) when the
-        module :mod:`codesearch.bounds.sdp` is available; skipped silently otherwise.
+        Also compute Schrijver's three-point semidefinite bound (binary, d >= 3; seconds
+        to minutes per cell, see :func:`codesearch.bounds.sdp.three_point_cost`).
     lp : bool
         Include the Delsarte linear programs (the slow part of a grid run).
     lp_fallback : bool
@@ -103,7 +103,8 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
         if result is not None:
             out[name] = result
-    if sdp:
+    if sdp and params.q == 2 and params.d >= 3:
+        # Schrijver's bound is binary and needs d >= 3 (A(n,1), A(n,2) are known exactly).
         try:
             from codesearch.bounds.sdp import three_point_bound
         except ImportError:
