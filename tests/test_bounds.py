@@ -378,3 +378,29 @@ def test_extra_inequalities_hold_on_real_codes(name, build, d):
         for fam, idx, coeffs, rhs in delsarte.extra_inequalities(n, d):
             lhs = sum(a * int(counts[i]) for i, a in coeffs.items())
             assert lhs <= rhs, (name, fam, idx)
+
+
+def test_public_api_and_lazy_imports():
+    import subprocess
+    import sys
+
+    import codesearch.bounds as b
+
+    assert {"upper_bound", "all_bounds", "gv_lower_bound", "cell_summary", "BOUNDS",
+            "compute_bound", "best_lp_certificate"} <= set(b.__all__)
+    # Importing the front end must not load scipy, highspy or matplotlib (common practice for
+    # a fast CLI; the project rule is that imports stay cheap).
+    code = ("import sys, codesearch.bounds, codesearch.plot; "
+            "print(any(m in sys.modules for m in ('scipy', 'highspy', 'matplotlib')))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_qary_johnson_sound_and_never_above_hamming():
+    # Ternary Golay code [11,6,5]_3 is perfect (MacWilliams-Sloane ch. 20): Johnson = 729.
+    assert classical.johnson(Params(3, 11, 5)).value == 729
+    for q in (3, 4, 5):
+        for n in range(2, 16):
+            for d in range(1, n + 1):
+                p = Params(q, n, d)
+                assert classical.johnson(p).value <= classical.hamming(p).value
