@@ -476,7 +476,9 @@ def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallba
                 if cand is not None and (best is None or cand[0] < best[0]):
                     best = cand
     used = False
-    if need and fallback:
+    # Beyond 2^40 the double solve may also return a wrong (merely feasible) vertex whose
+    # exact solution certifies a loose value, so the high-precision simplex runs there too.
+    if fallback and (need or fobj > 2.0**40):
         cand = _decimal_fallback(ex, q, n)
         if cand is not None and (best is None or cand[0] < best[0]):
             best, used = cand, True
