@@ -159,3 +159,14 @@ def test_refutes_21_words_for_8_3():
     res = search(Params(2, 8, 3), "sat", size=21)
     assert res.status is Status.INFEASIBLE and res.upper == 20
     assert res.settings["branches_refuted"] == [3, 4, 5, 6, 7, 8]
+
+
+@pytest.mark.parametrize("q,n,d", [(2, 6, 3), (2, 7, 4), (3, 4, 3), (2, 8, 5)])
+def test_agrees_with_exact_search(q, n, d):
+    # the exact max-clique search lives in another module; compare when it is present
+    pytest.importorskip("codesearch.search.exact")
+    p = Params(q, n, d)
+    a = search(p, "sat")
+    b = search(p, "exact")
+    assert a.status is b.status is Status.OPTIMAL
+    assert a.size == b.size
