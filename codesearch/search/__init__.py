@@ -55,6 +55,10 @@ METHODS: dict[str, MethodSpec] = dict(
               "greedy packing in random / Gray / lexicographic order, restarted"),
         _spec("local", "codesearch.search.local", False,
               "min-conflicts tabu search at a fixed size, raising the size on success"),
+        _spec("orbit", "codesearch.search.orbit", False,
+              "largest union of orbits of a prescribed group (--group SPEC); codes are FEASIBLE"),
+        _spec("auto", "codesearch.search.auto", True,
+              "portfolio under one budget: bounds, heuristics, orbit, exact and SAT searches"),
     ]
 )
 
