@@ -16,8 +16,8 @@ search runs on orbits instead of words:
    distances from the representative r1 to the words of O2 are all cross distances;
 4. a maximum-weight clique (weight = orbit size) is a largest G-invariant code.
 
-Step 4 runs a randomised greedy with perturbation (fast, any size) and then, in the default
-mode, an exact weighted clique search under the time limit. Even a completed exact search
+Step 4 runs a randomised greedy with perturbation and a multi-neighbourhood tabu search (fast,
+any size) and then, in the default mode, an exact weighted clique search under the time limit. Even a completed exact search
 proves only "largest G-invariant code", never ``A_q(n,d)``, so the status is FEASIBLE and the
 invariant-optimality is recorded in ``settings["invariant_optimal"]``.
 
@@ -30,6 +30,8 @@ References
    automorphisms).
 .. [3] F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*,
    North-Holland, 1977 (isometries of Hamming space; Reed-Muller and cyclic codes).
+.. [4] Q. Wu, J.-K. Hao and F. Glover, "Multi-neighborhood tabu search for the maximum weight
+   clique problem", Annals of Operations Research 196 (2012) 611-634.
 """
 
 from __future__ import annotations
@@ -49,7 +51,8 @@ from codesearch.search import groups as _groups
 __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph"]
 
 #: Options accepted by :func:`run` (see its docstring).
-OPTIONS = frozenset({"group", "mode", "restarts", "max_words", "max_orbits"})
+OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
+                     "max_orbits"})
 
 _MODES = ("exact", "heuristic")
 DEFAULT_MAX_ORBITS = 12000
@@ -189,11 +192,12 @@ def _greedy_clique(adj: np.ndarray, w: np.ndarray, score: np.ndarray, start: lis
 
 
 def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int,
-                     deadline: float | None) -> tuple[list[int], int]:
+                     deadline: float | None, stop: int | None = None) -> tuple[list[int], int]:
     """Iterated greedy for a heavy clique: greedy starts, then drop-and-regrow perturbations.
 
-    Returns the best clique found and the number of greedy passes made. Deterministic for a
-    given seed when the deadline does not cut it short.
+    Returns the best clique found and the number of greedy passes made; stops early once the
+    weight reaches ``stop``. Deterministic for a given seed when the deadline does not cut it
+    short.
     """
     k = w.size
     if k == 0:
@@ -211,6 +215,8 @@ def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int
     for it in range(restarts):
         if deadline is not None and time.perf_counter() > deadline:
             break
+        if stop is not None and best_w >= stop:
+            break
         if it % 4 == 0 or len(current) <= 1:
             trial = _greedy_clique(adj, w, score, [], rng)
         else:
@@ -224,6 +230,93 @@ def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int
         if tw > best_w:
             best, best_w = trial, tw
     return best, passes
+
+
+def tabu_clique(adj: np.ndarray, w: np.ndarray, start: list[int], *, iterations: int,
+                seed: int, deadline: float | None, stall: int = 3000,
+                stop: int | None = None) -> tuple[list[int], int]:
+    """Multi-neighbourhood tabu search for a heavy clique, from the clique ``start``.
+
+    Moves (after Wu, Hao and Glover [4]_): ADD a vertex adjacent to the whole clique; else the
+    better of SWAP (add a vertex missing exactly one clique neighbour, drop that neighbour) and
+    DROP (the lightest member). A removed vertex is tabu for ``7 + random(|C|)`` iterations; after
+    ``stall`` iterations without a new best the search restarts from a randomised greedy clique.
+
+    Invariant: ``miss[v]`` is the number of clique members not adjacent to v (v outside C).
+    Returns the best clique and the iterations made (stopping once the weight reaches
+    ``stop``); deterministic for a seed when the deadline
+    does not cut it short.
+    """
+    k = w.size
+    if k == 0 or iterations <= 0:
+        return list(start), 0
+    rng = np.random.default_rng(seed)
+    nonadj = ~adj
+    np.fill_diagonal(nonadj, False)
+    wi = w.astype(np.int64)
+    score = wi.astype(np.float64)
+
+    def load(clique: list[int]) -> tuple[np.ndarray, np.ndarray]:
+        in_c = np.zeros(k, dtype=bool)
+        in_c[clique] = True
+        miss = nonadj[:, in_c].sum(axis=1).astype(np.int64) if clique else np.zeros(k, np.int64)
+        return in_c, miss
+
+    best = list(start)
+    best_w = int(wi[best].sum()) if best else 0
+    in_c, miss = load(best)
+    cur_w = best_w
+    tabu = np.zeros(k, dtype=np.int64)
+    since = 0
+    it = 0
+    for it in range(1, iterations + 1):
+        if deadline is not None and it % 128 == 0 and time.perf_counter() > deadline:
+            break
+        if stop is not None and best_w >= stop:
+            break
+        free = ~in_c & (tabu <= it)
+        add = np.flatnonzero(free & (miss == 0))
+        if add.size:
+            v = int(add[np.argmax(wi[add] + rng.random(add.size) * 0.5)])
+            in_c[v] = True
+            miss += nonadj[v]
+            cur_w += int(wi[v])
+        else:
+            members = np.flatnonzero(in_c)
+            if members.size == 0:
+                break
+            swap = np.flatnonzero(free & (miss == 1))
+            drop_u = int(members[np.argmin(wi[members] + rng.random(members.size) * 0.5)])
+            drop_gain = -int(wi[drop_u])
+            if swap.size:
+                # the unique non-neighbour in C of each swap candidate
+                out = members[np.argmax(nonadj[np.ix_(swap, members)], axis=1)]
+                gains = wi[swap] - wi[out]
+                j = int(np.argmax(gains + rng.random(swap.size) * 0.5))
+                if gains[j] >= drop_gain:
+                    u, v = int(out[j]), int(swap[j])
+                    in_c[u] = False
+                    miss -= nonadj[u]
+                    in_c[v] = True
+                    miss += nonadj[v]
+                    cur_w += int(wi[v] - wi[u])
+                    tabu[u] = it + 7 + int(rng.integers(0, members.size + 1))
+                    drop_u = -1
+            if drop_u >= 0:
+                in_c[drop_u] = False
+                miss -= nonadj[drop_u]
+                cur_w += drop_gain
+                tabu[drop_u] = it + 7
+        if cur_w > best_w:
+            best, best_w, since = np.flatnonzero(in_c).tolist(), cur_w, 0
+        else:
+            since += 1
+            if since >= stall:
+                since = 0
+                tabu[:] = 0
+                in_c, miss = load(_greedy_clique(adj, w, score, [], rng))
+                cur_w = int(wi[in_c].sum())
+    return best, it
 
 
 class _Deadline(Exception):
@@ -306,6 +399,7 @@ def _engine_result(out: Any, w: np.ndarray) -> tuple[list[int], bool, int, str]:
 def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
         progress: Callable[[dict[str, Any]], None] | None = None,
         group: str = "cyclic", mode: str = "exact", restarts: int = 200,
+        iterations: int = 20000, size: int | None = None,
         max_words: int = _groups.DEFAULT_MAX_WORDS,
         max_orbits: int = DEFAULT_MAX_ORBITS) -> SearchResult:
     """Largest code found that is invariant under the group ``group``.
@@ -327,7 +421,13 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         time limit (proving the largest G-invariant code when it finishes); ``"heuristic"``
         stops after the heuristic.
     restarts : int
-        Greedy passes of the heuristic (a deadline may cut them short).
+        Randomised greedy passes (a deadline may cut them short).
+    iterations : int
+        Moves of the tabu search that follows the greedy passes (see :func:`tabu_clique`),
+        capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded).
+    size : int, optional
+        Stop as soon as a G-invariant code of at least this many words is found (recorded as
+        the result's ``target``).
     max_words, max_orbits : int
         Limits on ``q**n`` and on the number of admissible orbits.
 
@@ -341,8 +441,11 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     deadline = None if time_limit is None else start + time_limit
     if mode not in _MODES:
         raise ParameterError(f"orbit mode must be one of {', '.join(_MODES)}, got {mode!r}")
-    if isinstance(restarts, bool) or not isinstance(restarts, int) or restarts < 0:
-        raise ParameterError(f"restarts must be a non-negative integer, got {restarts!r}")
+    if size is not None and (isinstance(size, bool) or not isinstance(size, int) or size < 1):
+        raise ParameterError(f"size must be a positive integer, got {size!r}")
+    for name, value in (("restarts", restarts), ("iterations", iterations)):
+        if isinstance(value, bool) or not isinstance(value, int) or value < 0:
+            raise ParameterError(f"{name} must be a non-negative integer, got {value!r}")
     seed = 0 if seed is None else int(seed)
     grp = _groups.parse_group(group, params.q, params.n)
     try:
@@ -364,11 +467,20 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
                       "elapsed": time.perf_counter() - start})
 
     report("graph", [])
+    # In exact mode the heuristics get at most half the budget left after the graph.
+    heur_deadline = deadline
+    if mode == "exact" and deadline is not None:
+        heur_deadline = time.perf_counter() + 0.5 * max(0.0, deadline - time.perf_counter())
     clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=seed,
-                                      deadline=deadline)
+                                      deadline=heur_deadline, stop=size)
+    # Small graphs need few moves (and the exact search settles them anyway).
+    iterations = min(iterations, 50 * int(w.size) + 500)
+    clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=seed,
+                                deadline=heur_deadline, stop=size)
     report("heuristic", clique)
-    complete, nodes, engine = False, passes, "greedy"
-    if mode == "exact" and w.size:
+    complete, nodes, engine = False, passes + moves, "greedy+tabu"
+    reached = size is not None and int(w[clique].sum()) >= size
+    if mode == "exact" and w.size and not reached:
         exact, complete, enodes, engine = _exact_clique(graph.adj, w, clique, deadline)
         nodes += enodes
         if int(w[exact].sum()) >= int(w[clique].sum()):
@@ -386,6 +498,7 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         "clique_engine": engine,
         "invariant_optimal": bool(complete),
         "restarts": restarts,
+        "iterations": iterations,
         "time_limit": time_limit,
         "version": __version__,
     }
@@ -399,4 +512,5 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         nodes=nodes,
         seed=seed,
         settings=settings,
+        target=size,
     )
