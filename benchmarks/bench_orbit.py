@@ -96,7 +96,7 @@ def run_orbit(cell: Cell, budget: float) -> tuple[int, str, float, bool]:
         if left <= 0.5:
             break
         try:
-            res = search(params, "orbit", group=spec, time_limit=left)
+            res = search(params, "orbit", group=spec, time_limit=left, size=cell.target or None)
         except ParameterError as exc:
             print(f"  {spec}: {exc}")
             continue
