@@ -156,7 +156,7 @@ def _peer_child(q, n, d, conn):
 
 
 def run_peer(cell: Cell, budget: float) -> tuple[str, int | None, float | None]:
-    ctx = mp.get_context("fork")
+    ctx = mp.get_context("spawn")  # a forked child could inherit numba worker threads
     parent, child = ctx.Pipe()
     proc = ctx.Process(target=_peer_child, args=(cell.q, cell.n, cell.d, child))
     proc.start()

@@ -350,3 +350,19 @@ def test_size_option_stops_at_the_target():
     res = search(params, "orbit", group="cyclic", size=30)
     _check(res, params, "cyclic")
     assert res.size >= 30 and res.target == 30 and res.exists is True
+
+
+def test_bitsets_layout():
+    rng = np.random.default_rng(5)
+    for k in (1, 63, 64, 65, 130):
+        upper = np.triu(rng.random((k, k)) < 0.5, 1)
+        adj = upper | upper.T
+        bits = orbit.bitsets(adj)
+        assert bits.dtype == np.uint64 and bits.shape == (k, (k + 63) // 64)
+        for i, j in itertools.product(range(k), repeat=2):
+            assert bool((int(bits[i, j >> 6]) >> (j & 63)) & 1) == adj[i, j]
+        try:
+            from codesearch.search.clique import bitsets_from_dense
+        except ImportError:
+            continue
+        assert np.array_equal(bits, bitsets_from_dense(adj))

@@ -361,38 +361,52 @@ def _exact_networkx(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
     return list(finder.incumbent_nodes), complete, _Timed.calls
 
 
-def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
-                  deadline: float | None) -> tuple[list[int], bool, int, str]:
-    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine name)``.
+def bitsets(adj: np.ndarray) -> np.ndarray:
+    """Dense bool adjacency -> ``(K, ceil(K/64))`` uint64 rows; bit ``j & 63`` of word
+    ``j >> 6`` of row i is set iff i ~ j (the clique engine's format)."""
+    k = adj.shape[0]
+    words = max(1, (k + 63) // 64)
+    packed = np.packbits(adj, axis=1, bitorder="little")
+    out = np.zeros((k, words * 8), dtype=np.uint8)
+    out[:, :packed.shape[1]] = packed
+    return out.view("<u8").astype(np.uint64)
 
-    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` once it is
-    available, networkx's branch and bound otherwise.
+
+def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
+                  deadline: float | None, goal: int | None
+                  ) -> tuple[list[int], bool, int, str, int | None]:
+    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine, upper)``.
+
+    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` when it is
+    available, networkx's branch and bound otherwise. ``complete`` means no heavier clique
+    exists; ``upper`` is a proven bound on the clique weight (None if unknown).
     """
     try:
         from codesearch.search import clique as engine  # the exact-search issue's engine
         fn = engine.max_weight_clique
     except (ImportError, AttributeError):
         fn = None
+    lower = int(w[incumbent].sum()) if incumbent else 0
     if fn is not None:
+        import inspect
+
         limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
-        out = fn(np.packbits(adj, axis=1, bitorder="little"), w, time_limit=limit)
-        return _engine_result(out, w)
+        accepted = inspect.signature(fn).parameters
+        extra = {k: v for k, v in (("lower", lower), ("goal", goal)) if k in accepted}
+        out = fn(bitsets(adj), w.astype(np.int64), time_limit=limit, **extra)
+        found = [int(v) for v in np.asarray(out.vertices).tolist()]
+        # With lower = the incumbent's weight the engine looks only for heavier cliques; when
+        # there is none the incumbent is the answer (and proved so if the search completed).
+        clique = found if int(w[found].sum()) > lower else list(incumbent)
+        upper = getattr(out, "upper", None)
+        return (clique, bool(out.complete), int(getattr(out, "nodes", 0)), "codesearch.clique",
+                None if upper is None else int(upper))
     if int(adj.sum()) // 2 > _NETWORKX_MAX_EDGES:
         # networkx holds the graph as dicts (hundreds of bytes per edge) and cannot be stopped
         # while building it: keep the heuristic's clique instead.
-        return list(incumbent), False, 0, "none (graph too large for networkx)"
+        return list(incumbent), False, 0, "none (graph too large for networkx)", None
     clique, complete, nodes = _exact_networkx(adj, w, incumbent, deadline)
-    return clique, complete, nodes, "networkx"
-
-
-def _engine_result(out: Any, w: np.ndarray) -> tuple[list[int], bool, int, str]:
-    """Normalise the engine's return value (kept in one place for when its shape settles)."""
-    members = getattr(out, "clique", None)
-    if members is None and isinstance(out, tuple):
-        members = out[0]
-    complete = bool(getattr(out, "optimal", getattr(out, "complete", False)))
-    nodes = int(getattr(out, "nodes", 0))
-    return [int(v) for v in members], complete, nodes, "codesearch.clique"
+    return clique, complete, nodes, "networkx", int(w[clique].sum()) if complete else None
 
 
 # ------------------------------------------------------------------------------ method entry
@@ -478,10 +492,11 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=seed,
                                 deadline=heur_deadline, stop=size)
     report("heuristic", clique)
-    complete, nodes, engine = False, passes + moves, "greedy+tabu"
+    complete, nodes, engine, inv_upper = False, passes + moves, "greedy+tabu", None
     reached = size is not None and int(w[clique].sum()) >= size
     if mode == "exact" and w.size and not reached:
-        exact, complete, enodes, engine = _exact_clique(graph.adj, w, clique, deadline)
+        exact, complete, enodes, engine, inv_upper = _exact_clique(graph.adj, w, clique,
+                                                                   deadline, size)
         nodes += enodes
         if int(w[exact].sum()) >= int(w[clique].sum()):
             clique = exact
@@ -497,6 +512,8 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         "mode": mode,
         "clique_engine": engine,
         "invariant_optimal": bool(complete),
+        # a proven bound on the size of every G-invariant code (not on A_q(n,d))
+        "invariant_upper": inv_upper,
         "restarts": restarts,
         "iterations": iterations,
         "time_limit": time_limit,
