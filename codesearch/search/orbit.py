@@ -43,7 +43,7 @@ from typing import Any, Callable
 import numpy as np
 
 from codesearch._version import __version__
-from codesearch.errors import ParameterError
+from codesearch.errors import ParameterError, VerificationError
 from codesearch.model import Code, Params
 from codesearch.results import SearchResult, Status
 from codesearch.search import groups as _groups
@@ -105,6 +105,17 @@ def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
     return out
 
 
+_BYTE_POPCOUNT = np.array([bin(i).count("1") for i in range(256)], dtype=np.int64)
+
+
+def _popcount(x: np.ndarray) -> np.ndarray:
+    """Bits set in each uint64 (numpy >= 2 has ``bitwise_count``; a byte table otherwise)."""
+    if hasattr(np, "bitwise_count"):
+        return np.bitwise_count(x).astype(np.int64)
+    as_bytes = np.ascontiguousarray(x, dtype=np.uint64).view(np.uint8).reshape(x.size, 8)
+    return _BYTE_POPCOUNT[as_bytes].sum(axis=1)
+
+
 class _GraphTimeout(Exception):
     """The time limit ran out while the orbit graph was being built."""
 
@@ -133,7 +144,7 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     diff = planes[0] ^ planes[0][orbits.label]
     for pl in planes[1:]:
         diff |= pl ^ pl[orbits.label]
-    to_rep = np.bitwise_count(diff).astype(np.int64)
+    to_rep = _popcount(diff)
     to_rep[orbits.reps] = params.n + 1
     inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
     kept = np.flatnonzero(inner >= d)
@@ -502,6 +513,8 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
             clique = exact
         report("exact", clique)
     code = graph.code_of(sorted(clique), params.q) if clique else None
+    if code is not None and not _groups.is_invariant(code, grp):
+        raise VerificationError(f"orbit search built a code not invariant under {grp.spec!r}")
     settings = {
         "group": grp.spec,
         "generators": len(grp.generators),
