@@ -1,0 +1,88 @@
+"""Tests of batch runs: local pool, skipping and resuming, Dask LocalCluster."""
+
+from __future__ import annotations
+
+import os
+import pathlib
+
+import pytest
+
+from codesearch.batch import run_table, table_cells
+from codesearch.errors import ParameterError
+from codesearch.model import Params
+from codesearch.store import Store
+import table_stub_lex
+
+TESTS = str(pathlib.Path(__file__).parent)
+
+
+@pytest.fixture(autouse=True)
+def _stubs():
+    table_stub_lex.register()
+
+
+def test_table_cells():
+    cells = table_cells(2, range(3, 6), range(3, 5))
+    assert cells == [Params(2, 3, 3), Params(2, 4, 3), Params(2, 4, 4), Params(2, 5, 3),
+                     Params(2, 5, 4)]
+
+
+def test_local_run_fills_skips_and_resumes(tmp_path):
+    path = tmp_path / "t.sqlite"
+    cells = table_cells(2, range(3, 8), range(3, 5))
+    events = []
+    out = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1,
+                    progress=events.append)
+    assert out.ran + out.skipped == len(cells) and not out.failed
+    assert {"start", "submit", "done", "finish"} <= {e["event"] for e in events}
+    with Store(path) as s:
+        # The lexicode of length 7, distance 3 is the Hamming code: 16 words (Conway-Sloane 1986).
+        assert s.summary(Params(2, 7, 3)).lower == 16
+        # Parity extension gives the [8,4,4]-like sizes for even d: A(7,4) >= A(6,3) = 8.
+        assert s.summary(Params(2, 7, 4)).lower >= 8
+        counts = s.counts()
+        assert s.audit() == []
+    again = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1)
+    assert again.ran == 0 and again.skipped == len(cells)
+    with Store(path) as s:
+        assert s.counts() == counts
+    # A larger budget reruns the searches (and adds no duplicate codes).
+    more = run_table(str(path), cells, budget=2.0, methods=["stub-lex"], workers=1)
+    assert more.ran > 0
+    with Store(path) as s:
+        assert s.counts()["codes"] == counts["codes"]
+
+
+def test_exhaustive_method_settles_cells(tmp_path):
+    path = tmp_path / "t.sqlite"
+    cells = table_cells(2, range(2, 6), range(2, 4))
+    run_table(str(path), cells, budget=2.0, methods=["stub-clique"], workers=1)
+    with Store(path) as s:
+        # A(n,2) = 2^(n-1) (common practice); A(5,3) = 4 (from memory).
+        assert s.summary(Params(2, 5, 2)).exact and s.summary(Params(2, 5, 2)).lower == 16
+        assert s.summary(Params(2, 5, 3)).exact and s.summary(Params(2, 5, 3)).lower == 4
+        assert s.audit() == []
+
+
+def test_bad_arguments():
+    with pytest.raises(ParameterError):
+        run_table(":memory:", [Params(2, 3, 3)], methods=["no-such-method"])
+    with pytest.raises(ParameterError):
+        run_table(":memory:", [Params(2, 3, 3)], budget=0)
+
+
+def test_dask_local_cluster(tmp_path, monkeypatch):
+    distributed = pytest.importorskip("distributed")
+    # Worker processes need the stub methods importable.
+    monkeypatch.setenv("PYTHONPATH", os.pathsep.join([TESTS, os.environ.get("PYTHONPATH", "")]))
+    path = tmp_path / "t.sqlite"
+    cells = table_cells(2, range(3, 7), range(3, 4))
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  host="127.0.0.1", dashboard_address=None) as cluster:
+        out = run_table(str(path), cells, budget=1.0, methods=["stub-lex"],
+                        scheduler=cluster.scheduler_address)
+    assert out.ran == len(cells) and not out.failed and not out.errors
+    with Store(path) as s:
+        # Lexicode sizes: A(6,3) >= 8 (shortened Hamming code; from memory).
+        assert s.summary(Params(2, 6, 3)).lower == 8
+        assert s.audit() == []
