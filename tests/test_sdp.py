@@ -352,11 +352,9 @@ def test_constant_weight_cap_is_johnson_on_small_cases():
     assert constant_weight_cap(10, 6, 2) == 1  # two weight-2 words are at distance <= 4
 
 
-def test_parameter_errors():
-    with pytest.raises(ParameterError):
-        three_point_bound(Params(3, 6, 3))
-    with pytest.raises(ParameterError):
-        three_point_bound(Params(2, 6, 2))
+def test_parameter_errors_and_cells_out_of_scope():
+    assert three_point_bound(Params(3, 6, 3)) is None  # q-ary: not implemented
+    assert three_point_bound(Params(2, 6, 2)) is None  # A(n,2) = 2^(n-1) is known
     with pytest.raises(ParameterError):
         three_point_bound(Params(2, 8, 4), solver="nope")
 

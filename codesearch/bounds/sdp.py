@@ -108,13 +108,13 @@ def _sdp_cell(params: Params) -> tuple[int, int]:
 
 def three_point_bound(
     params: Params, *, solver: str | None = None, time_limit: float | None = None
-) -> BoundResult:
+) -> BoundResult | None:
     """Schrijver's three-point bound on ``A(n, d)`` with an exact certificate.
 
     Parameters
     ----------
     params : Params
-        A binary cell (``q == 2``) with ``d >= 3``.
+        The cell; the bound applies to binary cells with ``d >= 3``.
     solver : str, optional
         ``"clarabel"`` (default) or ``"scs"`` (kept for comparison; see the module notes).
     time_limit : float, optional
@@ -122,22 +122,22 @@ def three_point_bound(
 
     Returns
     -------
-    BoundResult
+    BoundResult or None
         ``method="three-point-sdp"``; ``certified=False`` when the rounded dual could not be
-        made exactly feasible (the value must not be used then).
+        made exactly feasible (the value is then the solver's float estimate and must not
+        be used). None when the bound does not apply: ``q != 2`` (the q-ary version is not
+        implemented) or ``d < 3`` (``A(n,1) = 2^n``, ``A(n,2) = 2^(n-1)``).
 
     Raises
     ------
     ParameterError
-        For ``q != 2``, ``d < 3`` or an unknown solver.
+        For an unknown solver.
     """
-    if params.q != 2:
-        raise ParameterError("the three-point bound is implemented for binary codes only (q=2)")
-    if params.d < 3:
-        raise ParameterError("the three-point bound needs d >= 3 (A(n,1), A(n,2) are known)")
     solver = (solver or "clarabel").lower()
     if solver not in SOLVERS:
         raise ParameterError(f"unknown solver {solver!r}; choose from {', '.join(SOLVERS)}")
+    if params.q != 2 or params.d < 3:
+        return None  # not applicable: q-ary version not implemented; A(n,1), A(n,2) known
     sn, sd = _sdp_cell(params)
     res = solve_three_point(sn, sd, time_limit=time_limit, solver=solver)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
