@@ -108,6 +108,7 @@ class CellTask:
     seed: int
     known_lower: int = 0
     known_upper: int | None = None
+    sdp: bool = False
 
 
 def run_cell(task: CellTask) -> dict[str, Any]:
@@ -129,7 +130,7 @@ def run_cell(task: CellTask) -> dict[str, Any]:
         try:
             from codesearch.bounds import all_bounds
 
-            found = all_bounds(p)
+            found = all_bounds(p, sdp=True) if task.sdp else all_bounds(p)
         except (ImportError, AttributeError, NotImplementedError):
             found = None  # the bounds front end is not available in this installation
         except Exception as exc:  # a failing bound must not lose the cell's searches
@@ -341,6 +342,7 @@ def run_table(
     scheduler: str | None = None,
     seed: int = 0,
     bounds: bool = True,
+    sdp: bool = False,
     propagate: bool = True,
     progress: Progress | None = None,
 ) -> TableSummary:
@@ -365,6 +367,9 @@ def run_table(
         Run seed; each cell's seed is :func:`cell_seed` of it and is stored with its results.
     bounds, propagate : bool
         Run the bounds stage; propagate between cells after each finished cell.
+    sdp : bool
+        Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
+        already ran are not redone).
     progress : callable, optional
         Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
         ``finish``).
@@ -404,7 +409,7 @@ def run_table(
         crashes: dict[Params, int] = {}
         while pending or running:
             while pending and len(running) < slots:
-                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed)
+                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
                 if task is None:
                     summary.skipped += 1
                     emit({"event": "skip", "cell": None})
@@ -479,7 +484,7 @@ def _bounds_available() -> bool:
 
 
 def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds: bool,
-               seed: int) -> CellTask | None:
+               seed: int, sdp: bool = False) -> CellTask | None:
     """The work left on cell ``p`` (None when nothing is left)."""
     s = st.summary(p)
     if s.exact:
@@ -489,7 +494,8 @@ def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds
                  if (st.run_budget(p, spec.name) or 0.0) < budget)
     if not run_bounds and not todo:
         return None
-    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper)
+    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper,
+                    sdp)
 
 
 def _propagate(st: Any, cells: Sequence[Params], summary: TableSummary, emit: Progress) -> None:

@@ -201,6 +201,7 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
     g.add_argument("--scheduler", help="Dask scheduler address, e.g. tcp://host:8786")
     p.add_argument("--seed", type=int, default=0, help="run seed (default 0)")
     p.add_argument("--no-bounds", action="store_true", help="skip the bounds stage")
+    p.add_argument("--sdp", action="store_true", help="bounds stage also tries the SDP bound")
     p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
     p.add_argument("--quiet", action="store_true", help="no live display")
     p.add_argument("--json", action="store_true", help="print a JSON summary")
@@ -218,7 +219,7 @@ def _cmd_table(args: argparse.Namespace) -> int:
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
-                  propagate=not args.no_propagate)
+                  sdp=args.sdp, propagate=not args.no_propagate)
     if args.quiet or args.json:
         summary = batch.run_table(args.store, cells, **kwargs)
     else:
