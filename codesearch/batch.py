@@ -21,12 +21,10 @@ Dask ``distributed`` documentation, "Futures" and "Setup" (https://distributed.d
 from __future__ import annotations
 
 import concurrent.futures as cf
-import math
 import multiprocessing
 import os
 import signal
 import time
-import traceback
 from dataclasses import dataclass, field
 from fractions import Fraction
 from types import MappingProxyType
