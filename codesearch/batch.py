@@ -202,8 +202,9 @@ def _store_outcome(store: Any, task: CellTask, out: Mapping[str, Any]) -> None:
             settings.setdefault("time_limit", s["time_limit"])
             settings.setdefault("cell_budget", task.budget)
             settings.setdefault("nodes", s["nodes"])
+            seed = s["seed"] if s["seed"] is not None else task.seed
             res = SearchResult(p, Status(s["status"]), code, s["upper"], s["method"],
-                               s["seconds"], s["nodes"], s["seed"], settings)
+                               s["seconds"], s["nodes"], seed, settings)
             store.add_search_result(res, exhaustive=s["exhaustive"])
             store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
                            status=s["status"], seed=task.seed)
