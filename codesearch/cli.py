@@ -146,34 +146,97 @@ def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> in
 
 # --------------------------------------------------------------------------------- bounds
 def _add_bounds(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("bounds", help="upper bounds on A_q(n,d) with exact certificates")
+    p = sub.add_parser(
+        "bounds",
+        help="upper bounds on A_q(n,d) with exact certificates",
+        description="Every closed-form bound, Delsarte's LP with an exact certificate, the "
+        "least one (upper) and the Gilbert-Varshamov existential lower bound, per cell. "
+        "Python: codesearch.bounds.cell_summary(Params(q, n, d)).",
+    )
     p.add_argument("n", type=_int_range, help="length N or range A..B")
     p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
+    p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
+    p.add_argument("--certificate", metavar="FILE",
+                   help="write the LP certificate of the (single) cell as JSON")
     _COMMANDS["bounds"] = _cmd_bounds
 
 
 def _cmd_bounds(args: argparse.Namespace) -> int:
-    raise InputError("the bounds command is not available yet")
+    from codesearch.bounds import report
+
+    return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
+                                     lp=not args.no_lp, certificate=args.certificate)
 
 
 # ----------------------------------------------------------------------------------- find
 def _add_find(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("find", help="search for a large code in one cell")
+    p = sub.add_parser(
+        "find",
+        help="search for a large code in one cell",
+        description="Search for a large code of length N and minimum distance D. With an "
+        "exhaustive method (exact) the result is proved optimal when the search finishes; "
+        "on the time limit the best code and the upper bound proved so far are reported. "
+        "Python: codesearch.search.search(Params(q, n, d), method, time_limit=, seed=).",
+    )
     p.add_argument("n", type=int, help="length")
     p.add_argument("d", type=int, help="minimum distance")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
-    p.add_argument("--method", default="exact", help="search method")
+    p.add_argument("--method", default="exact", help="search method (default exact)")
     p.add_argument("--time", type=float, help="time limit in seconds")
     p.add_argument("--seed", type=int, help="random seed")
-    p.add_argument("--out", help="write the code found to this file")
+    p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
+    # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
+    p.add_argument("--size", type=int, metavar="M",
+                   help="ask for a code of M words (sat: decide it; heuristics: stop there); "
+                   "JSON then adds 'exists'")
+    p.add_argument("--proof", metavar="FILE",
+                   help="sat with --size: write FILE[.wW].cnf and the DRAT proof FILE[.wW] of "
+                   "each refuted branch (they cover the symmetry-reduced formula)")
+    # Orbit search (method orbit) and the portfolio (method auto); dest matches the option name.
+    p.add_argument(
+        "--group", metavar="SPEC",
+        help="orbit/auto: search only codes invariant under this group. SPEC joins factors "
+        "with '*'; coordinates are 0..n-1, BLOCKS is 'A-B,C-D' (default: whole word): "
+        "cyclic[:BLOCKS] shift, rev[:BLOCKS] reversal, mul:K[:BLOCKS] i->K*i, sym:BLOCKS "
+        "all permutations per block, perm:(0 1 2)(3 4) explicit, scale[:A] multiply symbols "
+        "(q prime), rep all-ones translations, rm1 cosets of RM(1,m) (n=2^m or 2^m-1), "
+        "span:ROW,ROW or span:@FILE cosets of the span of the rows. Examples: "
+        "'find 16 6 --method orbit --group rm1', 'find 20 10 --method orbit --group "
+        "\"cyclic:0-18*rep\"', 'find 5 3 --q 4 --method orbit --group cyclic'. "
+        "For auto: several specs separated by ';' (default: a few natural groups)")
     _COMMANDS["find"] = _cmd_find
 
 
 def _cmd_find(args: argparse.Namespace) -> int:
-    raise InputError("the find command is not available yet")
+    from codesearch.model import Params
+    from codesearch.search import search
+    from codesearch.search.progress import live_progress
+
+    params = Params(args.q, args.n, args.d)
+    with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
+        options = {name: getattr(args, name) for name in ("size", "proof", "group")
+                   if getattr(args, name, None) is not None}
+        result = search(params, args.method, time_limit=args.time, seed=args.seed,
+                        progress=prog, **options)
+    if args.out and result.code is not None:
+        from codesearch.codefile import write_code
+
+        write_code(args.out, result.code, params.d,
+                   {"method": result.method, "status": result.status.value,
+                    "upper": result.upper, "seed": result.seed})
+    summary = result.to_json(args.out if (args.out and result.code is not None) else None)
+    if args.json:
+        _print_json(summary)
+    else:
+        verdict = "proved optimal" if result.optimal else (
+            f"{result.status.value}; upper bound {result.upper}")
+        print(f"{params}: code of size {result.size} ({verdict}) "
+              f"by {result.method} in {result.seconds:.2f} s, {result.nodes} nodes")
+    return 0
 
 
 # ---------------------------------------------------------------------------------- table
@@ -308,21 +371,36 @@ def _cmd_import(args: argparse.Namespace) -> int:
 
 # ----------------------------------------------------------------------------------- plot
 def _add_plot(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("plot", help="draw the rate-distance picture")
-    p.add_argument("--store", help="draw the table stored here (codesearch.report.plot_store)")
-    p.add_argument("--out", help="image file to write")
+    p = sub.add_parser(
+        "plot",
+        help="draw the rate-distance picture",
+        description="Asymptotic bounds on the rate against relative distance (Singleton, "
+        "Hamming, Plotkin, Elias-Bassalygo, first LP bound, Gilbert-Varshamov) and, with "
+        "--n, the finite cells of those lengths (bar from GV to the best upper bound). "
+        "Python: codesearch.plot.save_rate_distance(path, q, points).",
+    )
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
+    p.add_argument("--no-lp", action="store_true", help="finite cells from closed forms only")
+    p.add_argument("--store", help="draw the cells of this results store instead "
+                   "(codesearch.report.plot_store)")
+    p.add_argument("--out", default="rate-distance.png",
+                   help="output file, .png, .svg or .pdf (default rate-distance.png)")
     _COMMANDS["plot"] = _cmd_plot
 
 
 def _cmd_plot(args: argparse.Namespace) -> int:
     if args.store:
-        from codesearch import report
+        from codesearch import report as table_report
 
-        out = args.out or "table.png"
-        count = report.plot_store(args.store, out, q=getattr(args, "q", None))
-        print(f"drew {count} cells to {out}")
+        count = table_report.plot_store(args.store, args.out, q=args.q)
+        print(f"{args.out} ({count} stored cells)")
         return 0
-    raise InputError("the plot command is not available yet")
+    from codesearch.bounds import report
+
+    path = report.run_plot_command(args.q, args.n, out=args.out, lp=not args.no_lp)
+    print(path)
+    return 0
 
 
 # ----------------------------------------------------------------------------------- demo

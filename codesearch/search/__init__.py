@@ -47,6 +47,18 @@ METHODS: dict[str, MethodSpec] = dict(
     [
         _spec("exact", "codesearch.search.exact", True,
               "branch-and-bound maximum clique with symmetry reduction; proves optimality"),
+        _spec("sat", "codesearch.search.sat", True,
+              "SAT encoding with symmetry breaking (CaDiCaL); proves sizes impossible"),
+        _spec("lexicode", "codesearch.search.lexicode", False,
+              "greedy code in lexicographic order (lexicode), by ball marking"),
+        _spec("greedy", "codesearch.search.greedy", False,
+              "greedy packing in random / Gray / lexicographic order, restarted"),
+        _spec("local", "codesearch.search.local", False,
+              "min-conflicts tabu search at a fixed size, raising the size on success"),
+        _spec("orbit", "codesearch.search.orbit", False,
+              "largest union of orbits of a prescribed group (--group SPEC); codes are FEASIBLE"),
+        _spec("auto", "codesearch.search.auto", True,
+              "portfolio under one budget: bounds, heuristics, orbit, exact and SAT searches"),
     ]
 )
 

@@ -1,0 +1,402 @@
+"""Prescribed-symmetry search: the largest code that is a union of orbits of a given group.
+
+Problem
+-------
+Given a cell ``(q, n, d)`` and a group G of isometries of Hamming space (parsed from a spec by
+:func:`codesearch.search.groups.parse_group`), find a large code C with minimum distance
+``>= d`` such that ``g(C) = C`` for every g in G. Such a code is a union of G-orbits, so the
+search runs on orbits instead of words:
+
+1. compute the orbits of G on all ``q**n`` words;
+2. drop every orbit whose own words are closer than d. Since G acts by isometries and
+   transitively on an orbit O with representative r, the distances inside O are exactly
+   ``{d(r, g r)}``, so one row of distances per orbit suffices;
+3. build the orbit compatibility graph: orbits O1 and O2 are adjacent iff every cross distance
+   is ``>= d``. Again by isometry, ``d(g r1, y) = d(r1, g^-1 y)`` and ``g^-1 O2 = O2``, so the
+   distances from the representative r1 to the words of O2 are all cross distances;
+4. a maximum-weight clique (weight = orbit size) is a largest G-invariant code.
+
+Step 4 runs a randomised greedy with perturbation (fast, any size) and then, in the default
+mode, an exact weighted clique search under the time limit. Even a completed exact search
+proves only "largest G-invariant code", never ``A_q(n,d)``, so the status is FEASIBLE and the
+invariant-optimality is recorded in ``settings["invariant_optimal"]``.
+
+References
+----------
+.. [1] E. S. Kramer and D. M. Mesner, "t-designs on hypergraphs", Discrete Math. 15 (1976)
+   263-296 (prescribed automorphisms: collapse the search onto orbits).
+.. [2] P. R. J. Ostergard, "A new algorithm for the maximum-weight clique problem", Nordic J.
+   Computing 8 (2001) 424-436 (weighted clique search, as used for codes with prescribed
+   automorphisms).
+.. [3] F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*,
+   North-Holland, 1977 (isometries of Hamming space; Reed-Muller and cyclic codes).
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from typing import Any, Callable
+
+import numpy as np
+
+from codesearch._version import __version__
+from codesearch.errors import ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import SearchResult, Status
+from codesearch.search import groups as _groups
+
+__all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph"]
+
+#: Options accepted by :func:`run` (see its docstring).
+OPTIONS = frozenset({"group", "mode", "restarts", "max_words", "max_orbits"})
+
+_MODES = ("exact", "heuristic")
+DEFAULT_MAX_ORBITS = 12000
+_NETWORKX_MAX_EDGES = 2_000_000
+
+
+@dataclass(frozen=True, eq=False)
+class OrbitGraph:
+    """The weighted orbit compatibility graph of one cell and group.
+
+    Attributes
+    ----------
+    orbits : Orbits
+        All orbits of the group.
+    kept : numpy.ndarray
+        Indices (into ``orbits``) of the admissible orbits, the vertices of the graph.
+    weights : numpy.ndarray
+        Size of each kept orbit (int64).
+    adj : numpy.ndarray
+        ``(K, K)`` symmetric bool adjacency matrix with a False diagonal.
+    """
+
+    orbits: _groups.Orbits
+    kept: np.ndarray
+    weights: np.ndarray
+    adj: np.ndarray
+
+    def code_of(self, vertices: list[int] | np.ndarray, q: int) -> Code:
+        """The union of the kept orbits ``vertices`` as a code."""
+        o = self.orbits
+        idx = [o.order[o.starts[k]:o.starts[k + 1]] for k in self.kept[np.asarray(vertices, int)]]
+        rows = np.concatenate(idx) if idx else np.zeros(0, dtype=np.int64)
+        return Code(o.words[np.sort(rows)].reshape(len(rows), o.words.shape[1]), q)
+
+
+def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
+    """Bit planes of every word as uint64 integers: bit i of plane p is bit p of symbol i.
+
+    Two words differ at coordinate i iff some plane differs at bit i, so
+    ``dist = popcount(OR_p plane_p(x) XOR plane_p(y))``.
+    """
+    n = words.shape[1]
+    nplanes = max(1, (q - 1).bit_length())
+    out = []
+    for p in range(nplanes):
+        acc = np.zeros(words.shape[0], dtype=np.uint64)
+        for i in range(n):
+            acc |= ((words[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
+        out.append(acc)
+    return out
+
+
+class _GraphTimeout(Exception):
+    """The time limit ran out while the orbit graph was being built."""
+
+
+def orbit_graph(params: Params, group: _groups.Group, *,
+                max_words: int = _groups.DEFAULT_MAX_WORDS,
+                max_orbits: int = DEFAULT_MAX_ORBITS,
+                deadline: float | None = None) -> OrbitGraph:
+    """Orbits of ``group``, the admissible ones, and their compatibility graph.
+
+    ``deadline`` (a :func:`time.perf_counter` value) stops the graph construction early by
+    raising ``_GraphTimeout``.
+
+    Raises
+    ------
+    ParameterError
+        When the space or the number of admissible orbits exceeds its limit.
+    """
+    if (group.q, group.n) != (params.q, params.n):
+        raise ParameterError(f"group acts on q={group.q}, n={group.n}; cell is {params}")
+    orbits = _groups.compute_orbits(group, max_words=max_words)
+    planes = _planes(orbits.words, params.q)
+    d = params.d
+    # Distance from each word to its orbit's representative; min over the orbit (excluding the
+    # representative itself) is the orbit's own minimum distance (isometry argument, step 2).
+    diff = planes[0] ^ planes[0][orbits.label]
+    for pl in planes[1:]:
+        diff |= pl ^ pl[orbits.label]
+    to_rep = np.bitwise_count(diff).astype(np.int64)
+    to_rep[orbits.reps] = params.n + 1
+    inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
+    kept = np.flatnonzero(inner >= d)
+    k = kept.size
+    if k > max_orbits:
+        raise ParameterError(
+            f"group {group.spec!r} leaves {k} admissible orbits, above the limit {max_orbits}; "
+            f"use a larger group")
+    sizes = orbits.sizes[kept].astype(np.int64)
+    seg = [orbits.order[orbits.starts[j]:orbits.starts[j + 1]] for j in kept]
+    words = np.ascontiguousarray(np.concatenate(seg) if seg else np.zeros(0, dtype=np.int64),
+                                 dtype=np.int64)
+    starts = np.r_[0, np.cumsum(sizes)].astype(np.int64)
+    reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
+    plane_arr = np.ascontiguousarray(np.stack(planes))
+    adj8 = np.zeros((k, k), dtype=np.uint8)
+    if k > 1:
+        from codesearch import _kernels
+
+        # Rows in chunks of about equal work (row i scans the words of orbits > i), so the
+        # deadline is checked every few tenths of a second at most.
+        tail_work = (words.size - starts[1:]).astype(np.float64)
+        chunk_work = max(1.0, 2e7 / max(1, params.n))
+        lo = 0
+        while lo < k:
+            cum = np.cumsum(tail_work[lo:])
+            hi = lo + 1 + int(np.searchsorted(cum, chunk_work))
+            hi = min(hi, k)
+            _kernels.orbit_adjacency_rows(plane_arr, reps, words, starts, d, lo, hi, adj8)
+            lo = hi
+            if deadline is not None and time.perf_counter() > deadline and lo < k:
+                raise _GraphTimeout(f"orbit graph incomplete at row {lo} of {k}")
+    adj = adj8.astype(bool)
+    adj |= adj.T
+    return OrbitGraph(orbits=orbits, kept=kept, weights=sizes, adj=adj)
+
+
+# ------------------------------------------------------------------------------ clique search
+def _greedy_clique(adj: np.ndarray, w: np.ndarray, score: np.ndarray, start: list[int],
+                   rng: np.random.Generator | None) -> list[int]:
+    """Extend the clique ``start`` greedily by ``score`` (with multiplicative noise if rng)."""
+    clique = list(start)
+    cand = np.ones(w.size, dtype=bool)
+    for v in clique:
+        cand &= adj[v]
+    while True:
+        idx = np.flatnonzero(cand)
+        if idx.size == 0:
+            return clique
+        s = score[idx]
+        if rng is not None:
+            s = s * rng.uniform(0.5, 1.5, idx.size)
+        v = int(idx[np.argmax(s)])
+        clique.append(v)
+        cand &= adj[v]
+
+
+def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int,
+                     deadline: float | None) -> tuple[list[int], int]:
+    """Iterated greedy for a heavy clique: greedy starts, then drop-and-regrow perturbations.
+
+    Returns the best clique found and the number of greedy passes made. Deterministic for a
+    given seed when the deadline does not cut it short.
+    """
+    k = w.size
+    if k == 0:
+        return [], 0
+    rng = np.random.default_rng(seed)
+    # Weight times weighted degree favours heavy orbits that leave many heavy neighbours.
+    wf = w.astype(np.float64)
+    # Row blocks keep the temporary float copy of the matrix small.
+    wdeg = np.concatenate([adj[i:i + 1024].astype(np.float64) @ wf for i in range(0, k, 1024)])
+    score = wf * (1.0 + wdeg)
+    best = _greedy_clique(adj, w, score, [], None)
+    best_w = int(w[best].sum())
+    passes = 1
+    current = best
+    for it in range(restarts):
+        if deadline is not None and time.perf_counter() > deadline:
+            break
+        if it % 4 == 0 or len(current) <= 1:
+            trial = _greedy_clique(adj, w, score, [], rng)
+        else:
+            drop = max(1, len(current) // 3)
+            keep = list(rng.permutation(current)[drop:])
+            trial = _greedy_clique(adj, w, score, [int(v) for v in keep], rng)
+        passes += 1
+        tw = int(w[trial].sum())
+        if tw >= int(w[current].sum()):
+            current = trial
+        if tw > best_w:
+            best, best_w = trial, tw
+    return best, passes
+
+
+class _Deadline(Exception):
+    pass
+
+
+def _exact_networkx(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
+                    deadline: float | None) -> tuple[list[int], bool, int]:
+    """Weighted clique by networkx's branch and bound, stopped at the deadline.
+
+    Returns ``(clique, complete, nodes)``; ``complete`` is True when the search finished, so
+    the clique is of maximum weight.
+    """
+    import networkx as nx
+    from networkx.algorithms.clique import MaxWeightClique
+
+    graph = nx.Graph()
+    for v in range(w.size):
+        graph.add_node(v, weight=int(w[v]))
+    rows, cols = np.nonzero(np.triu(adj, 1))
+    graph.add_edges_from(zip(rows.tolist(), cols.tolist()))
+
+    class _Timed(MaxWeightClique):
+        calls = 0
+
+        def expand(self, C, C_weight, P):  # noqa: N803 (networkx's names)
+            _Timed.calls += 1
+            if deadline is not None and _Timed.calls % 64 == 0 and time.perf_counter() > deadline:
+                raise _Deadline
+            super().expand(C, C_weight, P)
+
+    finder = _Timed(graph, "weight")
+    # Starting from the heuristic's clique only prunes more: the search still proves that no
+    # heavier clique exists before it returns.
+    finder.incumbent_nodes = list(incumbent)
+    finder.incumbent_weight = int(w[incumbent].sum()) if incumbent else 0
+    try:
+        finder.find_max_weight_clique()
+        complete = True
+    except (_Deadline, RecursionError):
+        complete = False
+    return list(finder.incumbent_nodes), complete, _Timed.calls
+
+
+def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
+                  deadline: float | None) -> tuple[list[int], bool, int, str]:
+    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine name)``.
+
+    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` once it is
+    available, networkx's branch and bound otherwise.
+    """
+    try:
+        from codesearch.search import clique as engine  # the exact-search issue's engine
+        fn = engine.max_weight_clique
+    except (ImportError, AttributeError):
+        fn = None
+    if fn is not None:
+        limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
+        out = fn(np.packbits(adj, axis=1, bitorder="little"), w, time_limit=limit)
+        return _engine_result(out, w)
+    if int(adj.sum()) // 2 > _NETWORKX_MAX_EDGES:
+        # networkx holds the graph as dicts (hundreds of bytes per edge) and cannot be stopped
+        # while building it: keep the heuristic's clique instead.
+        return list(incumbent), False, 0, "none (graph too large for networkx)"
+    clique, complete, nodes = _exact_networkx(adj, w, incumbent, deadline)
+    return clique, complete, nodes, "networkx"
+
+
+def _engine_result(out: Any, w: np.ndarray) -> tuple[list[int], bool, int, str]:
+    """Normalise the engine's return value (kept in one place for when its shape settles)."""
+    members = getattr(out, "clique", None)
+    if members is None and isinstance(out, tuple):
+        members = out[0]
+    complete = bool(getattr(out, "optimal", getattr(out, "complete", False)))
+    nodes = int(getattr(out, "nodes", 0))
+    return [int(v) for v in members], complete, nodes, "codesearch.clique"
+
+
+# ------------------------------------------------------------------------------ method entry
+def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
+        progress: Callable[[dict[str, Any]], None] | None = None,
+        group: str = "cyclic", mode: str = "exact", restarts: int = 200,
+        max_words: int = _groups.DEFAULT_MAX_WORDS,
+        max_orbits: int = DEFAULT_MAX_ORBITS) -> SearchResult:
+    """Largest code found that is invariant under the group ``group``.
+
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    time_limit : float, optional
+        Wall-clock budget in seconds for the whole run (orbits, graph, clique search).
+    seed : int, optional
+        Seed of the randomised greedy (default 0; recorded).
+    progress : callable, optional
+        Called with ``{"phase", "orbits", "incumbent", "elapsed"}`` after each phase.
+    group : str
+        Group spec (see :mod:`codesearch.search.groups`), default ``"cyclic"``.
+    mode : {"exact", "heuristic"}
+        ``"exact"`` runs the heuristic and then an exact weighted clique search within the
+        time limit (proving the largest G-invariant code when it finishes); ``"heuristic"``
+        stops after the heuristic.
+    restarts : int
+        Greedy passes of the heuristic (a deadline may cut them short).
+    max_words, max_orbits : int
+        Limits on ``q**n`` and on the number of admissible orbits.
+
+    Returns
+    -------
+    SearchResult
+        Status FEASIBLE (UNKNOWN if no orbit is admissible); ``settings["invariant_optimal"]``
+        is True when the code is proved to be a largest G-invariant code.
+    """
+    start = time.perf_counter()
+    deadline = None if time_limit is None else start + time_limit
+    if mode not in _MODES:
+        raise ParameterError(f"orbit mode must be one of {', '.join(_MODES)}, got {mode!r}")
+    if isinstance(restarts, bool) or not isinstance(restarts, int) or restarts < 0:
+        raise ParameterError(f"restarts must be a non-negative integer, got {restarts!r}")
+    seed = 0 if seed is None else int(seed)
+    grp = _groups.parse_group(group, params.q, params.n)
+    try:
+        graph = orbit_graph(params, grp, max_words=max_words, max_orbits=max_orbits,
+                            deadline=deadline)
+    except _GraphTimeout as exc:
+        return SearchResult(
+            params=params, status=Status.UNKNOWN, code=None, upper=None, method="orbit",
+            seconds=time.perf_counter() - start, nodes=0, seed=seed,
+            settings={"group": grp.spec, "mode": mode, "stopped": str(exc),
+                      "invariant_optimal": False, "restarts": restarts,
+                      "time_limit": time_limit, "version": __version__})
+    w = graph.weights
+
+    def report(phase: str, clique: list[int]) -> None:
+        if progress is not None:
+            progress({"phase": phase, "orbits": int(w.size),
+                      "incumbent": int(w[clique].sum()) if clique else 0,
+                      "elapsed": time.perf_counter() - start})
+
+    report("graph", [])
+    clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=seed,
+                                      deadline=deadline)
+    report("heuristic", clique)
+    complete, nodes, engine = False, passes, "greedy"
+    if mode == "exact" and w.size:
+        exact, complete, enodes, engine = _exact_clique(graph.adj, w, clique, deadline)
+        nodes += enodes
+        if int(w[exact].sum()) >= int(w[clique].sum()):
+            clique = exact
+        report("exact", clique)
+    code = graph.code_of(sorted(clique), params.q) if clique else None
+    settings = {
+        "group": grp.spec,
+        "generators": len(grp.generators),
+        "orbits": graph.orbits.count,
+        "admissible_orbits": int(w.size),
+        "edges": int(graph.adj.sum() // 2),
+        "orbits_used": len(clique),
+        "mode": mode,
+        "clique_engine": engine,
+        "invariant_optimal": bool(complete),
+        "restarts": restarts,
+        "time_limit": time_limit,
+        "version": __version__,
+    }
+    return SearchResult(
+        params=params,
+        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
+        code=code,
+        upper=None,
+        method="orbit",
+        seconds=time.perf_counter() - start,
+        nodes=nodes,
+        seed=seed,
+        settings=settings,
+    )

@@ -1,0 +1,139 @@
+"""The portfolio method 'auto': verified codes, and OPTIMAL only when a proof backs it."""
+
+from __future__ import annotations
+
+import sys
+import types
+
+import numpy as np
+import pytest
+
+from codesearch import bounds, verify
+from codesearch.errors import VerificationError
+from codesearch.model import Params
+from codesearch.results import BoundResult, SearchResult, Status
+from codesearch.search import METHODS, MethodSpec, auto, search
+
+import known_codes as kc
+
+HAMMING = Params(2, 7, 3)
+
+
+def _no_bounds(monkeypatch):
+    monkeypatch.delattr(bounds, "upper_bound", raising=False)
+
+
+def _only(monkeypatch, names):
+    """Keep only the named methods registered (plus any fakes added by the test)."""
+    for name in list(METHODS):
+        if name not in names:
+            monkeypatch.delitem(METHODS, name)
+
+
+def test_without_proof_auto_reports_feasible(monkeypatch):
+    _no_bounds(monkeypatch)
+    _only(monkeypatch, {"orbit", "auto"})
+    res = search(HAMMING, "auto", time_limit=20, seed=3)
+    verify.assert_code(res.code, HAMMING)
+    # The [7,4] Hamming code is cyclic (MacWilliams & Sloane ch. 7, from memory): found by orbits.
+    assert res.size == 16
+    assert res.status is Status.FEASIBLE and res.upper is None and not res.optimal
+    assert res.settings["lower_method"].startswith("orbit[")
+    assert res.settings["upper_method"] is None
+    assert res.seed == 3
+    assert any("not registered" in s for s in res.settings["steps"])
+
+
+def _fake_bound(value, certified=True, scope="all", method="sphere-packing"):
+    def upper_bound(params, **_):
+        return BoundResult(params, value, method, certified=certified, scope=scope)
+    return upper_bound
+
+
+def test_code_meeting_a_usable_bound_is_optimal(monkeypatch):
+    # Sphere packing: A(7,3) <= 2^7 / (1 + 7) = 16 (Hamming bound, a theorem; common practice).
+    _only(monkeypatch, {"orbit", "auto"})
+    monkeypatch.setattr(bounds, "upper_bound", _fake_bound(16), raising=False)
+    res = search(HAMMING, "auto", time_limit=20)
+    assert res.status is Status.OPTIMAL and res.size == res.upper == 16
+    assert res.settings["upper_method"] == "bound:sphere-packing"
+    # it stops as soon as the bound is met: no orbit step after the one that met it
+    orbit_steps = [s for s in res.settings["steps"] if s.startswith("orbit[")]
+    assert orbit_steps[-1].startswith(res.settings["lower_method"])
+
+
+@pytest.mark.parametrize("certified,scope", [(False, "all"), (True, "linear")])
+def test_unusable_bounds_never_make_optimal(monkeypatch, certified, scope):
+    _only(monkeypatch, {"orbit", "auto"})
+    monkeypatch.setattr(bounds, "upper_bound", _fake_bound(16, certified, scope), raising=False)
+    res = search(HAMMING, "auto", time_limit=10)
+    assert res.status is Status.FEASIBLE and res.upper is None
+
+
+def test_bound_below_a_verified_code_is_a_bug(monkeypatch):
+    _only(monkeypatch, {"orbit", "auto"})
+    monkeypatch.setattr(bounds, "upper_bound", _fake_bound(15), raising=False)
+    with pytest.raises(VerificationError):
+        search(HAMMING, "auto", time_limit=10)
+
+
+def _register_fake(monkeypatch, name, exhaustive, run):
+    module = types.ModuleType(f"fake_{name}")
+    module.OPTIONS = frozenset({"size"})
+    module.run = run
+    monkeypatch.setitem(sys.modules, module.__name__, module)
+    monkeypatch.setitem(METHODS, name, MethodSpec(name, module.__name__, exhaustive, "fake"))
+
+
+def test_exhaustive_step_proof_is_used(monkeypatch):
+    _no_bounds(monkeypatch)
+    _only(monkeypatch, {"auto"})
+    calls = []
+
+    def exact_run(params, *, time_limit, seed, progress, **options):
+        calls.append(options)
+        return SearchResult(params, Status.OPTIMAL, kc.hamming_7_4(), 16, "exact", 0.01)
+
+    _register_fake(monkeypatch, "exact", True, exact_run)
+    res = search(HAMMING, "auto", time_limit=10)
+    assert res.status is Status.OPTIMAL and res.upper == 16
+    assert res.settings["upper_method"] == "exact" and res.settings["lower_method"] == "exact"
+
+
+def test_heuristic_upper_is_ignored_and_sat_gets_the_next_size(monkeypatch):
+    _no_bounds(monkeypatch)
+    _only(monkeypatch, {"auto"})
+    asked = []
+
+    def local_run(params, *, time_limit, seed, progress, **options):
+        # a heuristic that (wrongly) fills 'upper': auto must not trust it
+        return SearchResult(params, Status.FEASIBLE, kc.hamming_7_4(), 16, "local", 0.01)
+
+    def sat_run(params, *, time_limit, seed, progress, size=None):
+        asked.append(size)
+        return SearchResult(params, Status.INFEASIBLE, None, size - 1, "sat", 0.01, target=size)
+
+    _register_fake(monkeypatch, "local", False, local_run)
+    _register_fake(monkeypatch, "sat", True, sat_run)
+    res = search(HAMMING, "auto", time_limit=10)
+    assert asked == [17]
+    assert res.status is Status.OPTIMAL and res.upper == 16
+    assert res.settings["lower_method"] == "local" and res.settings["upper_method"] == "sat"
+
+
+def test_failing_step_is_skipped(monkeypatch):
+    _no_bounds(monkeypatch)
+    _only(monkeypatch, {"orbit", "auto"})
+    monkeypatch.setitem(METHODS, "greedy", MethodSpec("greedy", "codesearch.no_such_module",
+                                                      False, "missing"))
+    res = search(HAMMING, "auto", time_limit=10, group="cyclic")
+    assert res.size == 16
+    assert any(s.startswith("greedy: skipped") for s in res.settings["steps"])
+
+
+def test_natural_groups_parse_for_many_cells():
+    from codesearch.search import groups
+
+    for q, n in [(2, 7), (2, 8), (2, 15), (2, 16), (3, 6), (4, 5), (2, 3), (5, 4)]:
+        for spec in auto.natural_groups(q, n):
+            groups.parse_group(spec, q, n)

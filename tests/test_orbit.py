@@ -1,0 +1,323 @@
+"""Prescribed-symmetry (orbit) search: group specs, orbits, the orbit graph, the searcher."""
+
+from __future__ import annotations
+
+import itertools
+import math
+
+import networkx as nx
+import numpy as np
+import pytest
+from hypothesis import given, strategies as st
+
+from codesearch import _reference as ref
+from codesearch import verify
+from codesearch.errors import InputError, ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import Status
+from codesearch.search import groups, orbit, search
+
+import known_codes as kc
+
+
+# ------------------------------------------------------------------------------ orbit counts
+def _necklaces(n: int, q: int) -> int:
+    # Burnside's lemma for the cyclic group: (1/n) sum_{e | n} phi(e) q^(n/e) (common practice).
+    return sum(_phi(e) * q ** (n // e) for e in range(1, n + 1) if n % e == 0) // n
+
+
+def _phi(m: int) -> int:
+    return sum(1 for k in range(1, m + 1) if math.gcd(k, m) == 1)
+
+
+def _bracelets(n: int, q: int) -> int:
+    # Burnside's lemma for the dihedral group (common practice):
+    # N = necklaces/2 + (q+1)/4 q^(n/2) for n even, necklaces/2 + q^((n+1)/2)/2 for n odd.
+    if n % 2:
+        return (_necklaces(n, q) + q ** ((n + 1) // 2)) // 2
+    return (2 * _necklaces(n, q) + (q + 1) * q ** (n // 2)) // 4
+
+
+@pytest.mark.parametrize("n", range(1, 11))
+def test_cyclic_orbits_count_necklaces(n):
+    for q in (2, 3) if n <= 7 else (2,):
+        o = groups.compute_orbits(groups.parse_group("cyclic", q, n))
+        assert o.count == _necklaces(n, q)
+        assert o.sizes.sum() == q**n
+
+
+@pytest.mark.parametrize("n", range(3, 11))
+def test_dihedral_orbits_count_bracelets(n):
+    o = groups.compute_orbits(groups.parse_group("cyclic*rev", 2, n))
+    assert o.count == _bracelets(n, 2)
+
+
+def test_blockwise_symmetric_orbits_are_weight_profiles():
+    # Under S_4 x S_3 x S_1 a binary word's orbit is fixed by its weight on each block:
+    # (4+1)(3+1)(1+1) orbits (common practice).
+    o = groups.compute_orbits(groups.parse_group("sym:0-3,4-6", 2, 8))
+    assert o.count == 5 * 4 * 2
+
+
+def test_rm1_translations_give_cosets():
+    # RM(1,4) has 32 words and weights 0, 8, 16 (MacWilliams & Sloane ch. 13, from memory);
+    # its cosets split the 2^16 words into 2048 orbits of size 32.
+    g = groups.parse_group("rm1", 2, 16)
+    o = groups.compute_orbits(g)
+    assert o.count == 2048 and set(o.sizes.tolist()) == {32}
+    zero_orbit = o.words[o.order[o.starts[0]:o.starts[1]]]
+    rm = kc.reed_muller_1(4)
+    assert sorted(zero_orbit.sum(axis=1).tolist()) == sorted(rm.words.sum(axis=1).tolist())
+    # punctured form for n = 15: 1024 cosets of the [15,5,7] code
+    o15 = groups.compute_orbits(groups.parse_group("rm1", 2, 15))
+    assert o15.count == 1024
+
+
+def _generator_graph_components(group: groups.Group) -> list[set[int]]:
+    # networkx as an outside oracle: orbits are the connected components of the graph with an
+    # edge w -- g(w) for every word w and generator g.
+    words = groups.all_words(group.q, group.n)
+    graph = nx.Graph()
+    graph.add_nodes_from(range(words.shape[0]))
+    for g in group.generators:
+        img = groups.encode(g.apply(words, group.q), group.q)
+        graph.add_edges_from(zip(range(words.shape[0]), img.tolist()))
+    return [set(c) for c in nx.connected_components(graph)]
+
+
+@given(
+    q=st.sampled_from([2, 3]),
+    n=st.integers(2, 6),
+    data=st.data(),
+)
+def test_orbits_equal_generator_graph_components(q, n, data):
+    nperm = data.draw(st.integers(0, 2))
+    factors = []
+    for _ in range(nperm):
+        perm = data.draw(st.permutations(range(n)))
+        cycles = "".join(f"({a} {b})" for a, b in zip(range(n), perm) if a < b and perm[b] == a)
+        if cycles:
+            factors.append(f"perm:{cycles}")
+    if data.draw(st.booleans()):
+        factors.append("cyclic")
+    if data.draw(st.booleans()):
+        row = "".join(str(data.draw(st.integers(0, q - 1))) for _ in range(n))
+        factors.append(f"span:{row}")
+    if q == 3 and data.draw(st.booleans()):
+        factors.append("scale")
+    group = groups.parse_group("*".join(factors) or "id", q, n)
+    o = groups.compute_orbits(group)
+    mine = sorted(sorted(o.order[o.starts[k]:o.starts[k + 1]].tolist()) for k in range(o.count))
+    theirs = sorted(sorted(c) for c in _generator_graph_components(group))
+    assert mine == theirs
+    # each representative is its orbit's least index
+    assert all(o.reps[k] == o.order[o.starts[k]:o.starts[k + 1]].min() for k in range(o.count))
+
+
+# ------------------------------------------------------------------------------ specs
+def test_known_codes_are_invariant_under_their_groups():
+    # The Hamming [7,4] code from g(x) = 1 + x + x^3 and the Golay codes are cyclic; the ternary
+    # Golay code is linear, so closed under scalar multiples (MacWilliams & Sloane, from memory).
+    assert groups.is_invariant(kc.hamming_7_4(), groups.parse_group("cyclic", 2, 7))
+    assert groups.is_invariant(kc.golay_23(), groups.parse_group("cyclic", 2, 23))
+    assert groups.is_invariant(kc.ternary_golay(), groups.parse_group("cyclic*scale", 3, 11))
+    # a linear code is a union of cosets of (here: equal to) its own span
+    rm = kc.reed_muller_1(4)
+    assert groups.is_invariant(rm, groups.parse_group("rm1", 2, 16))
+    assert not groups.is_invariant(kc.hamming_7_4(), groups.parse_group("rep*perm:(0 1)", 2, 7))
+
+
+def test_spec_parsing_builds_the_right_permutations():
+    g = groups.parse_group("cyclic:0-2,3-5", 2, 7)
+    assert g.generators[0].data.tolist() == [1, 2, 0, 4, 5, 3, 6]
+    g = groups.parse_group("rev:1-4", 2, 6)
+    assert g.generators[0].data.tolist() == [0, 4, 3, 2, 1, 5]
+    g = groups.parse_group("mul:2:0-4", 2, 5)
+    assert g.generators[0].data.tolist() == [0, 2, 4, 1, 3]
+    g = groups.parse_group("perm:(0 2)(1 3 4)", 2, 5)
+    assert g.generators[0].data.tolist() == [2, 3, 0, 4, 1]
+    g = groups.parse_group("scale", 5, 3)
+    assert g.generators[0].data.tolist() == [0, 2, 4, 1, 3]  # 2 is the least primitive root mod 5
+    assert groups.parse_group("id", 2, 4).generators == ()
+
+
+@pytest.mark.parametrize("spec", [
+    "", "cyclic:0-9", "cyclic:3-1", "sym", "mul:2", "mul:x:0-3", "perm:(0 1", "perm:(0 0)",
+    "perm:(0 9)", "scale", "rm1", "span:101", "span:", "frob", "cyclic**rev", "sym:0-3,2-5",
+])
+def test_bad_specs_raise_parameter_error(spec):
+    # q = 4 (not prime: 'scale' refused), n = 6 (not 2^m or 2^m - 1: 'rm1' refused),
+    # 'mul:2' on length 6 (gcd 2)
+    with pytest.raises(InputError):
+        groups.parse_group(spec, 4, 6)
+
+
+def test_span_from_file(tmp_path):
+    f = tmp_path / "sub.txt"
+    f.write_text("# a subcode\n1100\n0011\n")
+    g = groups.parse_group("span:@" + str(f), 2, 4)
+    assert groups.compute_orbits(g).count == 4
+    with pytest.raises(InputError, match="sub.txt:2"):
+        f.write_text("1100\n110\n")
+        g = groups.parse_group("span:@" + str(f), 2, 4)
+    with pytest.raises(InputError):
+        groups.parse_group("span:@" + str(tmp_path / "missing.txt"), 2, 4)
+
+
+# ------------------------------------------------------------------------------ graph
+def _all_distances(words: np.ndarray) -> np.ndarray:
+    """Full distance matrix by broadcasting (independent of the project's kernels)."""
+    return (words[:, None, :] != words[None, :, :]).sum(axis=2)
+
+
+def _orbit_tables(params: Params, spec: str):
+    """Admissible orbits and their compatibility, from all pairwise distances."""
+    o = groups.compute_orbits(groups.parse_group(spec, params.q, params.n))
+    dist = _all_distances(o.words.astype(np.int64))
+    members = [o.order[o.starts[k]:o.starts[k + 1]] for k in range(o.count)]
+
+    def far(a, b):
+        sub = dist[np.ix_(a, b)]
+        if a is b:
+            sub = sub + np.eye(len(a), dtype=np.int64) * (params.n + 1)
+        return sub.min() >= params.d
+
+    admissible = [k for k in range(o.count) if far(members[k], members[k])]
+    compat = {(a, b): far(members[a], members[b]) for a in admissible for b in admissible
+              if a != b}
+    return o, members, admissible, compat
+
+
+@given(q=st.sampled_from([2, 3]), n=st.integers(3, 6), d=st.integers(2, 4), data=st.data())
+def test_orbit_graph_matches_all_pairs(q, n, d, data):
+    n = min(n, 4) if q == 3 else n
+    d = min(d, n)
+    spec = data.draw(st.sampled_from(["cyclic", "cyclic*rev", "rep", "id", "cyclic:0-1"]))
+    params = Params(q, n, d)
+    g = orbit.orbit_graph(params, groups.parse_group(spec, q, n))
+    _, _, admissible, compat = _orbit_tables(params, spec)
+    assert g.kept.tolist() == admissible
+    for i, a in enumerate(g.kept):
+        for j, b in enumerate(g.kept):
+            if i != j:
+                assert g.adj[i, j] == compat[(a, b)]
+    assert not g.adj.diagonal().any()
+
+
+@given(data=st.data())
+def test_adjacency_kernel_equals_twin(data):
+    from codesearch import _kernels
+
+    nplanes = data.draw(st.integers(1, 2))
+    nwords = data.draw(st.integers(2, 40))
+    planes = np.array(data.draw(st.lists(st.lists(st.integers(0, 2**12 - 1), min_size=nwords,
+                                                  max_size=nwords), min_size=nplanes,
+                                         max_size=nplanes)), dtype=np.uint64)
+    cuts = sorted(set(data.draw(st.lists(st.integers(1, nwords - 1), max_size=6))))
+    starts = np.array([0, *cuts, nwords], dtype=np.int64)
+    words = np.array(data.draw(st.permutations(range(nwords))), dtype=np.int64)
+    reps = np.array([words[s] for s in starts[:-1]], dtype=np.int64)
+    d = data.draw(st.integers(1, 8))
+    k = reps.size
+    fast = np.zeros((k, k), dtype=np.uint8)
+    slow = np.zeros((k, k), dtype=np.uint8)
+    _kernels.orbit_adjacency_rows(np.ascontiguousarray(planes), reps, words, starts, d, 0, k, fast)
+    ref.orbit_adjacency_rows(planes, reps, words, starts, d, 0, k, slow)
+    assert np.array_equal(fast, slow)
+
+
+# ------------------------------------------------------------------------------ search
+def _check(result, params, spec):
+    assert result.status in (Status.FEASIBLE, Status.UNKNOWN)
+    assert not result.optimal
+    verify.assert_code(result.code, params)
+    assert groups.is_invariant(result.code, groups.parse_group(spec, params.q, params.n))
+    # invariance again, generator by generator, straight from the definition
+    words = {tuple(w) for w in result.code.words.tolist()}
+    for g in groups.parse_group(spec, params.q, params.n).generators:
+        img = g.apply(np.asarray(result.code.words), params.q)
+        assert {tuple(w) for w in img.tolist()} == words
+
+
+def _largest_invariant_by_brute_force(params: Params, spec: str) -> int:
+    """Largest union of orbits with minimum distance >= d: every clique of compatible
+    admissible orbits, enumerated exhaustively."""
+    _, members, admissible, compat = _orbit_tables(params, spec)
+    best = 0
+
+    def grow(chosen: list[int], rest: list[int], weight: int) -> None:
+        nonlocal best
+        best = max(best, weight)
+        for i, v in enumerate(rest):
+            if all(compat[(u, v)] for u in chosen):
+                grow(chosen + [v], rest[i + 1:], weight + len(members[v]))
+
+    grow([], admissible, 0)
+    return best
+
+
+@pytest.mark.parametrize("q,n,d,spec", [
+    (2, 5, 3, "cyclic"), (2, 6, 3, "cyclic*rev"), (2, 5, 2, "rep"), (3, 4, 3, "cyclic*scale"),
+    (2, 6, 4, "sym:0-2,3-5"), (2, 4, 2, "cyclic"),
+])
+def test_small_cells_agree_with_brute_force(q, n, d, spec):
+    params = Params(q, n, d)
+    res = search(params, "orbit", group=spec)
+    _check(res, params, spec)
+    assert res.settings["invariant_optimal"]
+    assert res.size == _largest_invariant_by_brute_force(params, spec)
+
+
+def test_trivial_group_reaches_known_small_values():
+    # With the trivial group the orbit search is an exact clique search on the whole space:
+    # A(6,3) = 8, A(5,2) = 2^4 (A_q(n,2) = q^(n-1)), A_3(4,3) = 9 (ternary Hamming code,
+    # perfect), all from memory / closed forms.
+    for (q, n, d), value in {(2, 6, 3): 8, (2, 5, 2): 16, (3, 4, 3): 9}.items():
+        res = search(Params(q, n, d), "orbit", group="id")
+        assert res.size == value and res.settings["invariant_optimal"]
+
+
+def test_hamming_7_4_found_as_cyclic_code():
+    # The [7,4,3] Hamming code is cyclic and perfect: 2^7 / (1 + 7) = 16 words (sphere packing).
+    params = Params(2, 7, 3)
+    res = search(params, "orbit", group="cyclic")
+    _check(res, params, "cyclic")
+    assert res.size == 16
+
+
+def test_nordstrom_robinson_as_union_of_rm1_cosets():
+    # A(16,6) = 256, met by the Nordstrom-Robinson code, a union of 8 cosets of RM(1,4)
+    # (MacWilliams & Sloane ch. 2 section 8 and ch. 15, from memory).
+    params = Params(2, 16, 6)
+    res = search(params, "orbit", group="rm1", time_limit=60)
+    _check(res, params, "rm1")
+    assert res.size == 256 and res.settings["orbits_used"] == 8
+
+
+def test_heuristic_mode_is_reproducible_and_never_optimal():
+    params = Params(2, 12, 4)
+    a = search(params, "orbit", group="cyclic", mode="heuristic", seed=7, restarts=30)
+    b = search(params, "orbit", group="cyclic", mode="heuristic", seed=7, restarts=30)
+    _check(a, params, "cyclic")
+    assert a.code == b.code and a.seed == 7
+    assert a.settings["invariant_optimal"] is False
+
+
+def test_bad_options_raise():
+    params = Params(2, 7, 3)
+    with pytest.raises(ParameterError):
+        search(params, "orbit", group="cyclic", mode="fast")
+    with pytest.raises(ParameterError):
+        search(params, "orbit", group="cyclic", restarts=-1)
+    with pytest.raises(ParameterError):
+        search(params, "orbit", group="cyclic", colour="red")
+    with pytest.raises(ParameterError, match="limit"):
+        search(Params(2, 23, 7), "orbit", group="cyclic")
+    with pytest.raises(ParameterError, match="admissible orbits"):
+        search(Params(2, 16, 2), "orbit", group="cyclic", max_orbits=100)
+
+
+def test_no_admissible_orbit_gives_unknown():
+    # Every coset of the span of 1100 holds two words at distance 2 < d = 4: nothing admissible.
+    res = search(Params(2, 4, 4), "orbit", group="span:1100")
+    assert res.status is Status.UNKNOWN and res.code is None
