@@ -722,18 +722,21 @@ def heur_greedy_mark_qary(t0, t1, kind, q, n, pw, perm, pat_ptr, pat_pos, pat_ad
 
 
 @nb.njit(
-    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.uint64[:], nb.int64[:],
-             nb.int64),
+    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:],
+             nb.uint64[:], nb.int64[:], nb.int64),
     cache=True,
 )
-def heur_greedy_sample(q, n, d, space, max_fail, rng, out, count):
+def heur_greedy_sample(q, n, d, space, max_fail, max_draws, fail_state, rng, out, count):
     """Random greedy for spaces too large to mark: draw words, keep those at distance >= d.
 
-    Stops after ``max_fail`` consecutive rejected draws or when ``out`` is full; pairwise
-    checks only, so memory is the code itself.
+    Stops after ``max_fail`` consecutive rejected draws (counted in ``fail_state[0]`` across
+    calls), when ``out`` is full, or after ``max_draws`` draws in this call (so the caller can
+    check a clock). Pairwise checks only: memory is the code itself.
     """
-    fails = 0
-    while fails < max_fail and count < out.shape[0]:
+    fails = fail_state[0]
+    draws = 0
+    while fails < max_fail and count < out.shape[0] and draws < max_draws:
+        draws += 1
         x = heur_randint(rng, space)
         ok = True
         for i in range(count):
@@ -746,6 +749,7 @@ def heur_greedy_sample(q, n, d, space, max_fail, rng, out, count):
             fails = 0
         else:
             fails += 1
+    fail_state[0] = fails
     return count
 
 
