@@ -99,11 +99,13 @@ def main() -> None:
     run_certified(6)
     run_float(6)
     t_cert, t_float = [], []
-    for _ in range(args.repeat):
+    for rep in range(args.repeat):
         t, bounds = run_certified(args.nmax)
         t_cert.append(t)
+        print(f"  [repeat {rep + 1}] certified: wall {t[0]:.2f} s, CPU {t[1]:.2f} s", flush=True)
         t, floats = run_float(args.nmax)
         t_float.append(t)
+        print(f"  [repeat {rep + 1}] float:     wall {t[0]:.2f} s, CPU {t[1]:.2f} s", flush=True)
     cells = _cells(args.nmax)
     mc = statistics.median(t[0] for t in t_cert)
     mf = statistics.median(t[0] for t in t_float)

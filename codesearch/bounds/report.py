@@ -104,7 +104,7 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
                    format_value(s["gv"])]
             for k in names:
                 v = s["bounds"].get(k)
-                row.append("-" if v is None else format_value(v) + ("" if k not in s["uncertified"] else "?"))
+                row.append("-" if v is None else format_value(v))
             g = s["linear"].get("griesmer")
             row.append("-" if g is None else format_value(g))
             rows.append(row)
