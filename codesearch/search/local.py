@@ -9,7 +9,7 @@ returns is verified, and it never claims optimality (status FEASIBLE).
 
 Method
 ------
-Start from a random greedy code. A move takes a random word in conflict and replaces it by the
+Start from the larger of a random greedy code and the lexicode. A move takes a random word in conflict and replaces it by the
 best of its ``n(q-1)`` neighbours at distance 1 and a few uniform random words (fewest
 conflicts with the rest of the code, ties at random), never moving back to a recently removed
 word unless the move clears all its conflicts (tabu list). Conflicts are counted either
@@ -126,9 +126,15 @@ def run(
     # local search is hopeless anyway, and the cap bounds the memory of the word arrays
     cap = min(space // ws.ball_size(q, n, radius // 2), MAX_WORDS)
 
-    # initial code: one random greedy pass (stream 0 of the seed)
+    # initial code: the larger of one random greedy pass (stream 0 of the seed) and the
+    # lexicode (when the space is small enough to mark; lexicodes are often much larger)
     init, _, _ = greedy.greedy_indices(cell, "random", seed=seed_used, stream=0,
                                        deadline=deadline)
+    start_from = "random greedy"
+    if space <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
+        lex, complete, _ = greedy.greedy_indices(cell, "lex", deadline=deadline)
+        if lex.size > init.size:
+            init, start_from = lex, "lexicode" if complete else "partial lexicode"
     best = init.copy()
     M = int(init.size)
     n_cand = n * (q - 1) + _N_RANDOM
@@ -208,7 +214,7 @@ def run(
         seed=seed_used,
         settings={"size": target, "steps": steps, "tenure": int(tenure), "parity": extended,
                   "searched_cell": [q, n, d], "scoring": "ball-counts" if mode == 1 else
-                  "pairwise", "start_size": int(init.size), "moves_per_size": levels[-50:],
+                  "pairwise", "start_size": int(init.size), "start": start_from, "moves_per_size": levels[-50:],
                   "stopped_by_time": out_of_time, "time_limit": time_limit,
                   "version": greedy._version()},
         target=target,
