@@ -135,7 +135,7 @@ def section_heur(budget: float, seed: int) -> None:
         try:
             r = search(p, "lexicode", time_limit=budget)
             row.append(f"{r.size}")
-        except Exception as exc:  # too large to mark: say so
+        except Exception:  # too large to mark: say so
             row.append("n/a")
         try:
             r = search(p, "greedy", order="random", time_limit=budget / 4, seed=seed)
