@@ -533,6 +533,29 @@ def clique_greedy(adj, weights, n, starts):
 
 
 @nb.njit(cache=True)
+def clique_prepare(adj, weights, n, starts):
+    """Set-up of a search in one call (one cache load instead of four): degeneracy order,
+    relabelled graph and weights, best greedy clique (relabelled vertices) and the number of
+    greedy colour classes of the whole relabelled graph (which bounds the clique size, hence
+    the stack depth)."""
+    order = clique_degeneracy_order(adj, n)
+    padj = clique_permute(adj, order, n)
+    pw = np.empty(n, np.int64)
+    for i in range(n):
+        pw[i] = weights[order[i]]
+    gw, gclique = clique_greedy(padj, pw, n, starts)
+    nwords = padj.shape[1]
+    root = np.zeros((1, nwords), np.uint64)
+    for v in range(n):
+        root[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
+    classes = clique_colour_level(padj, np.ones(n, np.int64), root, np.empty((1, n), np.int64),
+                                  np.empty((1, n), np.int64), np.empty(1, np.int64),
+                                  np.empty(1, np.int64), 0, -1, np.empty(nwords, np.uint64),
+                                  np.empty(nwords, np.uint64))
+    return order, padj, pw, gw, gclique, classes
+
+
+@nb.njit(cache=True)
 def code_adjacency(packed, planes, limbs, d):
     """Bitset graph on packed words: i ~ j iff i != j and their Hamming distance is >= d.
 
