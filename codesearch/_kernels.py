@@ -294,9 +294,655 @@ def gf_rank(words, p, limit):
 
 
 # ======================================================================= clique engine (exact search)
+#
+# Bitset branch and bound for the maximum (weight) clique, after BBMC (San Segundo, Rodriguez-Losada
+# and Jimenez 2011) with the colouring bound of Tomita's MCQ/MCS and Kumlander's weighted variant
+# (the bound of a colour class is its heaviest vertex; unit weights give the colour count).
+#
+# Graphs are (N, W) uint64 arrays: bit j of row i (limb j >> 6, bit j & 63) says i ~ j. The
+# search is iterative over an explicit stack held in caller-owned arrays, so it can stop after a
+# node budget and resume exactly where it was (the Python driver loops in chunks to honour a
+# wall-clock limit; numba cannot read the clock cheaply).
+#
+# Stack layout, level k (the clique has k vertices, clique[0..k)):
+#   pst[k]          candidate bitset P_k (vertices adjacent to all of clique[0..k))
+#   lst[k, 0..cnt)  branching list: vertices of P_k in colour-class order, only those whose
+#                   cumulative class bound can still beat the incumbent
+#   bst[k, 0..cnt)  cumulative bound of each listed vertex's class (non-decreasing)
+#   pos[k]          next list index to branch on (the list is consumed from the end)
+#   cw[k]           weight of clique[0..k)
+# state = [depth, best weight, best size, nodes, phase (0 fresh, 1 running, 2 done), goal]
+# where a positive goal stops the search as soon as the incumbent weighs at least that much.
+
+
+@nb.njit(nb.int64(nb.uint64[:], nb.int64), cache=True)
+def _bitset_count(row, nwords):
+    c = 0
+    for j in range(nwords):
+        c += popcount64(row[j])
+    return c
+
+
+@nb.njit(cache=True)
+def clique_colour_level(adj, weights, pst, lst, bst, cnt, pos, k, thr, scratch_q, scratch_c):
+    """Colour P_k greedily and fill the branching list of level k.
+
+    Classes are built one at a time as maximal independent sets taken in vertex order (lowest
+    index first, which is the initial ordering after renumbering). A class enters the list
+    only when its cumulative bound exceeds ``thr`` (= incumbent weight - clique weight);
+    earlier classes stay in P_k but are never branched on, because every clique inside them
+    weighs at most ``thr`` more than the current one. Returns the number of classes formed
+    before stopping, for diagnostics.
+    """
+    nwords = pst.shape[1]
+    for j in range(nwords):
+        scratch_q[j] = pst[k, j]
+    n_listed = 0
+    cum = 0
+    classes = 0
+    while True:
+        empty = True
+        for j in range(nwords):
+            if scratch_q[j] != 0:
+                empty = False
+                break
+        if empty:
+            break
+        classes += 1
+        for j in range(nwords):
+            scratch_c[j] = scratch_q[j]
+        start = n_listed
+        heaviest = 0
+        j = 0
+        while j < nwords:
+            word = scratch_c[j]
+            if word == 0:
+                j += 1
+                continue
+            low = word & (~word + np.uint64(1))
+            b = popcount64(low - np.uint64(1))
+            v = (j << 6) + b
+            # v leaves the uncoloured set and takes its neighbours out of this class.
+            scratch_q[j] &= ~low
+            scratch_c[j] &= ~low
+            for t in range(j, nwords):
+                scratch_c[t] &= ~adj[v, t]
+            w = weights[v]
+            if w > heaviest:
+                heaviest = w
+            lst[k, n_listed] = v
+            n_listed += 1
+        cum += heaviest
+        if cum <= thr:
+            n_listed = start  # the whole class is pruned: drop it from the list
+        else:
+            for t in range(start, n_listed):
+                bst[k, t] = cum
+    cnt[k] = n_listed
+    pos[k] = n_listed - 1
+    return classes
+
+
+@nb.njit(cache=True)
+def clique_search(adj, weights, pst, lst, bst, cnt, pos, cw, clique, best_clique, state,
+                  node_budget, scratch_q, scratch_c):
+    """Run (or resume) the branch and bound until done or ``state[3] >= node_budget``.
+
+    Returns 1 when the search space is exhausted (the incumbent in ``best_clique[:state[2]]``
+    is then optimal among cliques heavier than the initial ``state[1]``), 0 when the node
+    budget ran out first (call again to resume), 2 when the incumbent reached the goal
+    ``state[5] > 0`` (resumable as well).
+    """
+    nwords = pst.shape[1]
+    if state[4] == 2:
+        return 1
+    if state[4] == 0:
+        cw[0] = 0
+        clique_colour_level(adj, weights, pst, lst, bst, cnt, pos, 0, state[1], scratch_q,
+                            scratch_c)
+        state[0] = 0
+        state[4] = 1
+    depth = state[0]
+    best = state[1]
+    nodes = state[3]
+    while True:
+        if nodes >= node_budget:
+            state[0] = depth
+            state[1] = best
+            state[3] = nodes
+            return 0
+        k = depth
+        i = pos[k]
+        if i < 0 or cw[k] + bst[k, i] <= best:
+            # Level k is finished: every remaining listed vertex has a bound no better than
+            # the incumbent (bounds decrease towards the front of the list).
+            if k == 0:
+                state[0] = 0
+                state[1] = best
+                state[3] = nodes
+                state[4] = 2
+                return 1
+            depth = k - 1
+            u = clique[depth]
+            pst[depth, u >> 6] &= ~(np.uint64(1) << np.uint64(u & 63))
+            pos[depth] -= 1
+            continue
+        v = lst[k, i]
+        clique[k] = v
+        nodes += 1
+        wk = cw[k] + weights[v]
+        nonempty = False
+        for j in range(nwords):
+            x = pst[k, j] & adj[v, j]
+            pst[k + 1, j] = x
+            if x != 0:
+                nonempty = True
+        if wk > best:
+            # clique[0..k] is itself a clique heavier than the incumbent (weights > 0 make
+            # every extension heavier still, but record it now: it is a valid witness).
+            best = wk
+            state[2] = k + 1
+            for t in range(k + 1):
+                best_clique[t] = clique[t]
+            if state[5] > 0 and best >= state[5]:
+                # Goal met. Leave v on the stack as if not yet expanded (pos unchanged), so a
+                # resumed call branches on it again; the incumbent only grows.
+                nodes -= 1
+                state[0] = depth
+                state[1] = best
+                state[3] = nodes
+                return 2
+        if nonempty:
+            cw[k + 1] = wk
+            clique_colour_level(adj, weights, pst, lst, bst, cnt, pos, k + 1, best - wk,
+                                scratch_q, scratch_c)
+            if cnt[k + 1] > 0:
+                depth = k + 1
+                continue
+        # Leaf or nothing worth branching below v: v is done at this level.
+        pst[k, v >> 6] &= ~(np.uint64(1) << np.uint64(v & 63))
+        pos[k] -= 1
+
+
+@nb.njit(cache=True)
+def clique_degeneracy_order(adj, n):
+    """Vertices in smallest-last order, reversed: the returned order starts with the vertex
+    removed last when repeatedly deleting a vertex of least remaining degree (ties: lowest
+    index). Branch and bound colours in this order (Matula-Beck; Tomita's MCS uses it)."""
+    nwords = adj.shape[1]
+    deg = np.zeros(n, np.int64)
+    for v in range(n):
+        deg[v] = _bitset_count(adj[v], nwords)
+    removed = np.zeros(n, np.bool_)
+    out = np.empty(n, np.int64)
+    for step in range(n - 1, -1, -1):
+        bestv = -1
+        bestd = n + 1
+        for v in range(n):
+            if not removed[v] and deg[v] < bestd:
+                bestd = deg[v]
+                bestv = v
+        removed[bestv] = True
+        out[step] = bestv
+        for u in range(n):
+            if not removed[u] and (adj[bestv, u >> 6] >> np.uint64(u & 63)) & np.uint64(1):
+                deg[u] -= 1
+    return out
+
+
+@nb.njit(cache=True)
+def clique_permute(adj, order, n):
+    """Relabel the graph: new vertex i is old vertex ``order[i]``."""
+    nwords = adj.shape[1]
+    out = np.zeros((n, nwords), np.uint64)
+    for i in range(n):
+        a = order[i]
+        for j in range(n):
+            b = order[j]
+            if (adj[a, b >> 6] >> np.uint64(b & 63)) & np.uint64(1):
+                out[i, j >> 6] |= np.uint64(1) << np.uint64(j & 63)
+    return out
+
+
+@nb.njit(cache=True)
+def clique_greedy(adj, weights, n, starts):
+    """Best of ``starts`` greedy cliques: start at vertex s (s = 0..starts-1), then add
+    vertices in index order when adjacent to all chosen. Returns (weight, size, vertices)."""
+    nwords = adj.shape[1]
+    cand = np.empty(nwords, np.uint64)
+    best_w = 0
+    best = np.empty(0, np.int64)
+    chosen = np.empty(n, np.int64)
+    for s in range(min(starts, n)):
+        for j in range(nwords):
+            cand[j] = adj[s, j]
+        chosen[0] = s
+        m = 1
+        w = weights[s]
+        for v in range(n):
+            if (cand[v >> 6] >> np.uint64(v & 63)) & np.uint64(1):
+                chosen[m] = v
+                m += 1
+                w += weights[v]
+                for j in range(nwords):
+                    cand[j] &= adj[v, j]
+        if w > best_w:
+            best_w = w
+            best = chosen[:m].copy()
+    return best_w, best
+
+
+@nb.njit(cache=True)
+def clique_prepare(adj, weights, n, starts):
+    """Set-up of a search in one call (one cache load instead of four): degeneracy order,
+    relabelled graph and weights, best greedy clique (relabelled vertices) and the number of
+    greedy colour classes of the whole relabelled graph (which bounds the clique size, hence
+    the stack depth)."""
+    order = clique_degeneracy_order(adj, n)
+    padj = clique_permute(adj, order, n)
+    pw = np.empty(n, np.int64)
+    for i in range(n):
+        pw[i] = weights[order[i]]
+    gw, gclique = clique_greedy(padj, pw, n, starts)
+    nwords = padj.shape[1]
+    root = np.zeros((1, nwords), np.uint64)
+    for v in range(n):
+        root[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
+    classes = clique_colour_level(padj, np.ones(n, np.int64), root, np.empty((1, n), np.int64),
+                                  np.empty((1, n), np.int64), np.empty(1, np.int64),
+                                  np.empty(1, np.int64), 0, -1, np.empty(nwords, np.uint64),
+                                  np.empty(nwords, np.uint64))
+    return order, padj, pw, gw, gclique, classes
+
+
+@nb.njit(cache=True)
+def code_adjacency(packed, planes, limbs, d):
+    """Bitset graph on packed words: i ~ j iff i != j and their Hamming distance is >= d.
+
+    ``packed`` is (N, planes * limbs) uint64 in the package's packed-word layout (planes
+    contiguous); two words differ at a position iff some plane differs there.
+    """
+    n = packed.shape[0]
+    nwords = (n + 63) >> 6
+    out = np.zeros((n, nwords), np.uint64)
+    for i in range(n):
+        for j in range(i + 1, n):
+            dist = 0
+            for l in range(limbs):
+                x = np.uint64(0)
+                for p in range(planes):
+                    x |= packed[i, p * limbs + l] ^ packed[j, p * limbs + l]
+                dist += popcount64(x)
+            if dist >= d:
+                out[i, j >> 6] |= np.uint64(1) << np.uint64(j & 63)
+                out[j, i >> 6] |= np.uint64(1) << np.uint64(i & 63)
+    return out
+
+
 
 
 # ======================================================================= heuristics (greedy, local search)
+#
+# Words are handled here as integer indices: the word (x_0, ..., x_{n-1}) over 0..q-1 has index
+# sum_j x_j q^(n-1-j), so index order is lexicographic order.  ``pw[j] = q^(n-1-j)``.  A Hamming
+# ball is stored once as patterns relative to its centre: for q = 2 as XOR masks, otherwise in
+# CSR form (``pat_ptr``, ``pat_pos``, ``pat_add``): pattern k changes coordinate
+# ``pat_pos[t]`` by adding ``pat_add[t]`` (mod q) for t in ``pat_ptr[k]:pat_ptr[k+1]``.
+# Random numbers come from a xorshift64* generator whose state lives in a caller's uint64[1]
+# array, so every run is reproducible from its seed and no process-wide state is touched.
+
+
+@nb.njit(nb.uint64(nb.uint64[:]), cache=True)
+def heur_rand(state):
+    """Next 64-bit output of the xorshift64* generator held in ``state[0]`` (never 0)."""
+    x = state[0]
+    x ^= x >> np.uint64(12)
+    x ^= x << np.uint64(25)
+    x ^= x >> np.uint64(27)
+    state[0] = x
+    return x * np.uint64(0x2545F4914F6CDD1D)
+
+
+@nb.njit(nb.int64(nb.uint64[:], nb.int64), cache=True)
+def heur_randint(state, bound):
+    """Uniform-enough integer in ``0..bound-1`` (bound < 2**62; bias below 2**-2)."""
+    return np.int64((heur_rand(state) >> np.uint64(2)) % np.uint64(bound))
+
+
+@nb.njit(nb.int64(nb.int64, nb.int64, nb.int64, nb.int64), cache=True)
+def heur_index_dist(x, y, q, n):
+    """Hamming distance between the words with indices ``x`` and ``y``."""
+    if q == 2:
+        return np.int64(popcount64(np.uint64(x ^ y)))
+    dist = 0
+    for _ in range(n):
+        if x % q != y % q:
+            dist += 1
+        x //= q
+        y //= q
+    return dist
+
+
+@nb.njit(nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:]), cache=True)
+def heur_order_at(t, kind, q, n, perm):
+    """The ``t``-th word index in a scan order.
+
+    kind 0: lexicographic (``t`` itself); kind 1: q-ary Gray code (consecutive words differ in
+    one coordinate; digits ``g_0 = b_0``, ``g_j = b_j - b_{j-1} mod q`` of ``t = (b_0 ... b_{n-1})``,
+    the binary reflected Gray code when q = 2); kind 2: ``perm[t]``.
+    """
+    if kind == 0:
+        return t
+    if kind == 2:
+        return perm[t]
+    if q == 2:
+        return t ^ (t >> 1)
+    # digits from least significant: g_j depends on b_j and the more significant b_{j-1}
+    out = 0
+    place = 1
+    rest = t
+    for _ in range(n):
+        b = rest % q
+        rest //= q
+        prev = rest % q  # next more significant digit (0 beyond the top)
+        out += ((b - prev) % q) * place
+        place *= q
+    return out
+
+
+@nb.njit(
+    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:], nb.int64[:], nb.uint64[:],
+             nb.int64[:], nb.int64),
+    cache=True,
+)
+def heur_greedy_mark_binary(t0, t1, kind, n, perm, masks, blocked, out, count):
+    """Greedy packing over scan positions ``t0..t1-1`` for q = 2 by ball marking.
+
+    Invariant: bit ``y`` of ``blocked`` is set iff ``y`` lies within distance d-1 of a word in
+    ``out[:count]`` (``masks`` = every word of weight <= d-1).  A scanned word is taken iff its
+    bit is clear, which is exactly the greedy rule "no codeword closer than d".  Returns the
+    new count; memory is one bit per word and no pair of words is ever compared.
+    """
+    for t in range(t0, t1):
+        x = heur_order_at(t, kind, 2, n, perm)
+        if (blocked[x >> 6] >> np.uint64(x & 63)) & np.uint64(1):
+            continue
+        out[count] = x
+        count += 1
+        for k in range(masks.shape[0]):
+            y = x ^ masks[k]
+            blocked[y >> 6] |= np.uint64(1) << np.uint64(y & 63)
+    return count
+
+
+@nb.njit(nb.void(nb.int64, nb.int64, nb.int64, nb.int64[:]), cache=True)
+def _heur_digits(x, q, n, dig):
+    for j in range(n - 1, -1, -1):
+        dig[j] = x % q
+        x //= q
+
+
+@nb.njit(
+    nb.int64(nb.int64, nb.int64[:], nb.int64[:], nb.int64, nb.int64[:], nb.int64[:],
+             nb.int64[:], nb.int64[:]),
+    cache=True,
+)
+def heur_pattern_apply(x, dig, pw, q, pat_ptr, pat_pos, pat_add, k):
+    """Index of the word obtained from ``x`` (digits ``dig``) by ball pattern ``k[0]``."""
+    y = x
+    for t in range(pat_ptr[k[0]], pat_ptr[k[0] + 1]):
+        j = pat_pos[t]
+        y += ((dig[j] + pat_add[t]) % q - dig[j]) * pw[j]
+    return y
+
+
+@nb.njit(
+    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:], nb.int64[:],
+             nb.int64[:], nb.int64[:], nb.int64[:], nb.uint64[:], nb.int64[:], nb.int64),
+    cache=True,
+)
+def heur_greedy_mark_qary(t0, t1, kind, q, n, pw, perm, pat_ptr, pat_pos, pat_add, blocked,
+                          out, count):
+    """Greedy packing by ball marking for any q (same invariant as the binary kernel)."""
+    dig = np.zeros(n, dtype=np.int64)
+    kk = np.zeros(1, dtype=np.int64)
+    npat = pat_ptr.shape[0] - 1
+    for t in range(t0, t1):
+        x = heur_order_at(t, kind, q, n, perm)
+        if (blocked[x >> 6] >> np.uint64(x & 63)) & np.uint64(1):
+            continue
+        out[count] = x
+        count += 1
+        _heur_digits(x, q, n, dig)
+        for k in range(npat):
+            kk[0] = k
+            y = heur_pattern_apply(x, dig, pw, q, pat_ptr, pat_pos, pat_add, kk)
+            blocked[y >> 6] |= np.uint64(1) << np.uint64(y & 63)
+    return count
+
+
+@nb.njit(
+    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:],
+             nb.uint64[:], nb.int64[:], nb.int64),
+    cache=True,
+)
+def heur_greedy_sample(q, n, d, space, max_fail, max_draws, fail_state, rng, out, count):
+    """Random greedy for spaces too large to mark: draw words, keep those at distance >= d.
+
+    Stops after ``max_fail`` consecutive rejected draws (counted in ``fail_state[0]`` across
+    calls), when ``out`` is full, or after ``max_draws`` draws in this call (so the caller can
+    check a clock). Pairwise checks only: memory is the code itself.
+    """
+    fails = fail_state[0]
+    draws = 0
+    while fails < max_fail and count < out.shape[0] and draws < max_draws:
+        draws += 1
+        x = heur_randint(rng, space)
+        ok = True
+        for i in range(count):
+            if heur_index_dist(x, out[i], q, n) < d:
+                ok = False
+                break
+        if ok:
+            out[count] = x
+            count += 1
+            fails = 0
+        else:
+            fails += 1
+    fail_state[0] = fails
+    return count
+
+
+@nb.njit(cache=True)
+def _heur_ball_add(x, delta, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig, kk):
+    if q == 2:
+        for k in range(masks.shape[0]):
+            y = x ^ masks[k]
+            counts[y] += delta
+    else:
+        _heur_digits(x, q, n, dig)
+        for k in range(pat_ptr.shape[0] - 1):
+            kk[0] = k
+            y = heur_pattern_apply(x, dig, pw, q, pat_ptr, pat_pos, pat_add, kk)
+            counts[y] += delta
+
+
+@nb.njit(cache=True)
+def heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos, pat_add, counts):
+    """Fill ``counts`` (mode 1) and ``conf`` for ``words[:M]``; return the conflicting pairs.
+
+    ``counts[y]`` = number of codewords within distance d-1 of ``y``; ``conf[i]`` = number of
+    other codewords closer than d to ``words[i]``.
+    """
+    dig = np.zeros(n, dtype=np.int64)
+    kk = np.zeros(1, dtype=np.int64)
+    if mode == 1:
+        counts[:] = 0
+        for i in range(M):
+            _heur_ball_add(words[i], 1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig,
+                           kk)
+        for i in range(M):
+            conf[i] = counts[words[i]] - 1
+    else:
+        for i in range(M):
+            c = 0
+            for j in range(M):
+                if j != i and heur_index_dist(words[i], words[j], q, n) < d:
+                    c += 1
+            conf[i] = c
+    total = 0
+    for i in range(M):
+        total += conf[i]
+    return total // 2
+
+
+@nb.njit(cache=True)
+def _heur_score(y, s, q, n, d, M, words, mode, counts):
+    # conflicts y would have with the code after removing slot s
+    if mode == 1:
+        return np.int64(counts[y]) - (1 if heur_index_dist(y, words[s], q, n) < d else 0)
+    c = 0
+    for i in range(M):
+        if i != s and heur_index_dist(y, words[i], q, n) < d:
+            c += 1
+    return c
+
+
+@nb.njit(cache=True)
+def _heur_replace(s, y, q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos, pat_add,
+                  counts, dig, kk):
+    # move slot s to word y, keeping counts/conf exact; returns the change in conflicting pairs
+    x = words[s]
+    before = conf[s]
+    if mode == 1:
+        _heur_ball_add(x, -1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig, kk)
+        _heur_ball_add(y, 1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig, kk)
+        words[s] = y
+        for i in range(M):
+            conf[i] = counts[words[i]] - 1
+    else:
+        after = 0
+        for i in range(M):
+            if i == s:
+                continue
+            w = words[i]
+            if heur_index_dist(x, w, q, n) < d:
+                conf[i] -= 1
+            if heur_index_dist(y, w, q, n) < d:
+                conf[i] += 1
+                after += 1
+        words[s] = y
+        conf[s] = after
+    return conf[s] - before
+
+
+@nb.njit(cache=True)
+def heur_local_steps(q, n, d, space, M, words, conf, total, mode, pw, masks, pat_ptr, pat_pos,
+                     pat_add, counts, tabu, rng, n_random, steps):
+    """Tabu search on conflicts at fixed size ``M``: at most ``steps`` moves.
+
+    A move replaces one codeword in conflict by another word. Every codeword in conflict is
+    tried with its n(q-1) neighbours at distance 1 and ``n_random`` uniform random words; the
+    move with the largest drop in conflicting pairs is made (ties at random), even when it
+    raises the count, except that recently removed words (``tabu`` ring, ``tabu[0]`` is the
+    write position) may not come back unless the move reaches fewer conflicts than ever seen
+    in this call (aspiration). Returns ``(total_conflicting_pairs, moves_done)``; stops early
+    when the code is conflict-free. Invariant: ``conf`` (and ``counts`` in mode 1) stay exact.
+    """
+    dig = np.zeros(n, dtype=np.int64)
+    cdig = np.zeros(n, dtype=np.int64)
+    kk = np.zeros(1, dtype=np.int64)
+    ntabu = tabu.shape[0] - 1
+    done = 0
+    n_nb = n * (q - 1)
+    best_total = total
+    while done < steps and total > 0:
+        done += 1
+        best_s = -1
+        best_y = -1
+        best = np.int64(1) << 40
+        ties = 0
+        for s in range(M):
+            if conf[s] == 0:
+                continue
+            x = words[s]
+            _heur_digits(x, q, n, cdig)
+            for c in range(n_nb + n_random):
+                if c < n_nb:
+                    j = c // (q - 1)
+                    a = c % (q - 1) + 1
+                    y = x + ((cdig[j] + a) % q - cdig[j]) * pw[j]
+                else:
+                    y = heur_randint(rng, space)
+                gain = _heur_score(y, s, q, n, d, M, words, mode, counts) - conf[s]
+                if gain > best:
+                    continue
+                if total + gain >= best_total:
+                    is_tabu = False
+                    for t in range(ntabu):
+                        if tabu[1 + t] == y:
+                            is_tabu = True
+                            break
+                    if is_tabu:
+                        continue
+                if gain < best:
+                    best = gain
+                    best_s = s
+                    best_y = y
+                    ties = 1
+                else:
+                    ties += 1
+                    if heur_randint(rng, ties) == 0:
+                        best_s = s
+                        best_y = y
+        if best_s < 0:
+            continue
+        if ntabu > 0:
+            tabu[1 + tabu[0]] = words[best_s]
+            tabu[0] = (tabu[0] + 1) % ntabu
+        total += _heur_replace(best_s, best_y, q, n, d, M, words, conf, mode, pw, masks, pat_ptr,
+                               pat_pos, pat_add, counts, dig, kk)
+        if total < best_total:
+            best_total = total
+    return total, done
+
+
+@nb.njit(cache=True)
+def heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr, pat_pos, pat_add,
+                    counts, rng, n_random):
+    """Append one word (the fewest-conflict of ``n_random`` random draws) as slot ``M``.
+
+    Returns the new number of conflicting pairs contributed by that word.
+    """
+    dig = np.zeros(n, dtype=np.int64)
+    kk = np.zeros(1, dtype=np.int64)
+    best = np.int64(1) << 40
+    best_y = 0
+    for _ in range(n_random):
+        y = heur_randint(rng, space)
+        # slot M is beyond the code, so _heur_score counts conflicts with all M words
+        if mode == 1:
+            sc = np.int64(counts[y])
+        else:
+            sc = _heur_score(y, M, q, n, d, M, words, mode, counts)
+        if sc < best:
+            best = sc
+            best_y = y
+            if sc == 0:
+                break
+    words[M] = best_y
+    if mode == 1:
+        _heur_ball_add(best_y, 1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig, kk)
+        for i in range(M + 1):
+            conf[i] = counts[words[i]] - 1
+    else:
+        c = 0
+        for i in range(M):
+            if heur_index_dist(best_y, words[i], q, n) < d:
+                conf[i] += 1
+                c += 1
+        conf[M] = c
+    return best
 
 
 # ======================================================================= orbits (orbit search)

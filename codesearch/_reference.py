@@ -69,6 +69,189 @@ def gf_rank(words: np.ndarray, p: int) -> int:
     return rank
 
 
+# ======================================================================= clique engine (exact search)
+#
+# Graphs here are lists of Python sets (adj[v] = neighbours of v), converted from the kernels'
+# bitset rows by ``bitset_rows_to_sets``.
+
+
+def bitset_rows_to_sets(adj: np.ndarray, n: int) -> list[set[int]]:
+    """Neighbour sets from bitset rows, one bit at a time."""
+    return [{j for j in range(n) if (int(adj[i, j >> 6]) >> (j & 63)) & 1} for i in range(n)]
+
+
+def max_weight_clique_value(adj: list[set[int]], weights) -> int:
+    """Largest clique weight, by plain recursive enumeration of cliques (no bound at all)."""
+    n = len(adj)
+    best = 0
+
+    def grow(clique_weight: int, candidates: list[int]) -> None:
+        nonlocal best
+        best = max(best, clique_weight)
+        for i, v in enumerate(candidates):
+            grow(clique_weight + int(weights[v]), [u for u in candidates[i + 1 :] if u in adj[v]])
+
+    grow(0, list(range(n)))
+    return best
+
+
+def colour_level(adj: list[set[int]], weights, candidates: set[int], thr: int
+                 ) -> tuple[list[int], list[int], int]:
+    """Greedy sequential colouring of ``candidates`` in increasing vertex order.
+
+    Each class takes, in order, every uncoloured vertex not adjacent to one already in the
+    class. A class's bound is its heaviest weight; cumulative bounds are summed. Returns the
+    listed vertices (classes whose cumulative bound exceeds ``thr``, in class order), their
+    cumulative bounds, and the number of classes.
+    """
+    uncoloured = sorted(candidates)
+    listed: list[int] = []
+    bounds: list[int] = []
+    cum = 0
+    classes = 0
+    while uncoloured:
+        classes += 1
+        cls: list[int] = []
+        for v in uncoloured:
+            if all(u not in adj[v] for u in cls):
+                cls.append(v)
+        uncoloured = [v for v in uncoloured if v not in cls]
+        cum += max(int(weights[v]) for v in cls)
+        if cum > thr:
+            listed += cls
+            bounds += [cum] * len(cls)
+    return listed, bounds, classes
+
+
+def degeneracy_order(adj: list[set[int]]) -> list[int]:
+    """Repeatedly delete a vertex of least remaining degree (lowest index on ties); return
+    the deletion sequence reversed."""
+    alive = set(range(len(adj)))
+    removed: list[int] = []
+    while alive:
+        v = min(alive, key=lambda x: (len(adj[x] & alive), x))
+        removed.append(v)
+        alive.remove(v)
+    return removed[::-1]
+
+
+def permute(adj: list[set[int]], order) -> list[set[int]]:
+    """New vertex i is old vertex order[i]."""
+    where = {int(old): new for new, old in enumerate(order)}
+    return [{where[u] for u in adj[int(old)]} for old in order]
+
+
+def greedy_clique(adj: list[set[int]], weights, starts: int) -> int:
+    """Best weight of the greedy cliques started at vertices 0..starts-1, adding vertices in
+    increasing order when adjacent to all chosen."""
+    best = 0
+    for s in range(min(starts, len(adj))):
+        chosen = [s]
+        for v in range(len(adj)):
+            if v != s and all(v in adj[u] for u in chosen):
+                chosen.append(v)
+        best = max(best, sum(int(weights[v]) for v in chosen))
+    return best
+
+
+def code_adjacency(words: np.ndarray, d: int) -> list[set[int]]:
+    """Neighbour sets of the code graph: distinct words at Hamming distance >= d."""
+    rows = [tuple(int(s) for s in r) for r in words]
+    return [{j for j in range(len(rows)) if j != i and hamming(rows[i], rows[j]) >= d}
+            for i in range(len(rows))]
+# ======================================================================= heuristics (greedy, local search)
+# Twins of the ``heur_*`` kernels. Words are integer indices in base q (first coordinate most
+# significant), as in the kernels; everything here goes through explicit digit tuples.
+
+_MASK64 = (1 << 64) - 1
+
+
+def heur_digits(x: int, q: int, n: int) -> tuple[int, ...]:
+    """Digits of word index ``x`` (first coordinate first)."""
+    out = []
+    for _ in range(n):
+        out.append(x % q)
+        x //= q
+    return tuple(reversed(out))
+
+
+def heur_index(digits, q: int) -> int:
+    """Inverse of :func:`heur_digits`."""
+    x = 0
+    for s in digits:
+        x = x * q + int(s)
+    return x
+
+
+def heur_index_dist(x: int, y: int, q: int, n: int) -> int:
+    """Hamming distance between two word indices, by their digits."""
+    return hamming(heur_digits(x, q, n), heur_digits(y, q, n))
+
+
+def heur_rand(state: list[int]) -> int:
+    """xorshift64* step on ``state[0]`` (Marsaglia 2003; Vigna 2016 multiplier)."""
+    x = state[0]
+    x ^= x >> 12
+    x ^= (x << 25) & _MASK64
+    x ^= x >> 27
+    state[0] = x
+    return (x * 0x2545F4914F6CDD1D) & _MASK64
+
+
+def heur_randint(state: list[int], bound: int) -> int:
+    """Same reduction as the kernel: drop two low bits, then modulo."""
+    return (heur_rand(state) >> 2) % bound
+
+
+def heur_order_at(t: int, kind: int, q: int, n: int, perm) -> int:
+    """t-th word of the scan: lexicographic, modular q-ary Gray code, or ``perm[t]``."""
+    if kind == 0:
+        return t
+    if kind == 2:
+        return int(perm[t])
+    b = heur_digits(t, q, n)
+    g = [b[0]] + [(b[j] - b[j - 1]) % q for j in range(1, n)]
+    return heur_index(g, q)
+
+
+def heur_greedy(q: int, n: int, d: int, kind: int, perm=None) -> list[int]:
+    """Greedy code of a whole scan, by comparing each word with every codeword kept."""
+    code: list[int] = []
+    kept_digits: list[tuple[int, ...]] = []
+    for t in range(q**n):
+        x = heur_order_at(t, kind, q, n, perm)
+        dx = heur_digits(x, q, n)
+        if all(hamming(dx, c) >= d for c in kept_digits):
+            code.append(x)
+            kept_digits.append(dx)
+    return code
+
+
+def heur_greedy_sample(q: int, n: int, d: int, space: int, max_fail: int, state: list[int],
+                       cap: int) -> list[int]:
+    """Random greedy with the kernel's random stream and stop rule."""
+    out: list[int] = []
+    fails = 0
+    while fails < max_fail and len(out) < cap:
+        x = heur_randint(state, space)
+        if all(heur_index_dist(x, y, q, n) >= d for y in out):
+            out.append(x)
+            fails = 0
+        else:
+            fails += 1
+    return out
+
+
+def heur_ball_counts(words, q: int, n: int, d: int) -> list[int]:
+    """For every word y of the space: the number of codewords within distance d - 1."""
+    return [sum(1 for w in words if heur_index_dist(y, int(w), q, n) < d) for y in range(q**n)]
+
+
+def heur_conflicts(words, q: int, n: int, d: int) -> list[int]:
+    """For each codeword: the number of other codewords closer than d."""
+    words = [int(w) for w in words]
+    return [sum(1 for j, v in enumerate(words) if j != i and heur_index_dist(u, v, q, n) < d)
+            for i, u in enumerate(words)]
 # ======================================================================= orbits (orbit search)
 
 

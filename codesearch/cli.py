@@ -146,29 +146,62 @@ def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> in
 
 # --------------------------------------------------------------------------------- bounds
 def _add_bounds(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("bounds", help="upper bounds on A_q(n,d) with exact certificates")
+    p = sub.add_parser(
+        "bounds",
+        help="upper bounds on A_q(n,d) with exact certificates",
+        description="Every closed-form bound, Delsarte's LP with an exact certificate, the "
+        "least one (upper) and the Gilbert-Varshamov existential lower bound, per cell. "
+        "Python: codesearch.bounds.cell_summary(Params(q, n, d)).",
+    )
     p.add_argument("n", type=_int_range, help="length N or range A..B")
     p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
+    p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
+    p.add_argument("--sdp", action="store_true",
+                   help="also Schrijver's three-point SDP bound (binary, d >= 3; slow)")
+    p.add_argument("--fast", action="store_true",
+                   help="double-precision LP only: no high-precision fallback for cells "
+                   "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
+    p.add_argument("--certificate", metavar="FILE",
+                   help="write the LP certificate of the (single) cell as JSON")
     _COMMANDS["bounds"] = _cmd_bounds
 
 
 def _cmd_bounds(args: argparse.Namespace) -> int:
-    raise InputError("the bounds command is not available yet")
+    from codesearch.bounds import report
+
+    return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
+                                     lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
+                                     certificate=args.certificate)
 
 
 # ----------------------------------------------------------------------------------- find
 def _add_find(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("find", help="search for a large code in one cell")
+    p = sub.add_parser(
+        "find",
+        help="search for a large code in one cell",
+        description="Search for a large code of length N and minimum distance D. With an "
+        "exhaustive method (exact) the result is proved optimal when the search finishes; "
+        "on the time limit the best code and the upper bound proved so far are reported. "
+        "Python: codesearch.search.search(Params(q, n, d), method, time_limit=, seed=).",
+    )
     p.add_argument("n", type=int, help="length")
     p.add_argument("d", type=int, help="minimum distance")
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
-    p.add_argument("--method", default="exact", help="search method")
+    p.add_argument("--method", default="exact", help="search method (default exact)")
     p.add_argument("--time", type=float, help="time limit in seconds")
     p.add_argument("--seed", type=int, help="random seed")
-    p.add_argument("--out", help="write the code found to this file")
+    p.add_argument("--out", help="write the code found to this file (verified first)")
     p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
+    p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
+    # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
+    p.add_argument("--size", type=int, metavar="M",
+                   help="ask for a code of M words (sat: decide it; heuristics: stop there); "
+                   "JSON then adds 'exists'")
+    p.add_argument("--proof", metavar="FILE",
+                   help="sat with --size: write FILE[.wW].cnf and the DRAT proof FILE[.wW] of "
+                   "each refuted branch (they cover the symmetry-reduced formula)")
     # Orbit search (method orbit) and the portfolio (method auto); dest matches the option name.
     p.add_argument(
         "--group", metavar="SPEC",
@@ -185,47 +218,195 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
 
 
 def _cmd_find(args: argparse.Namespace) -> int:
-    raise InputError("the find command is not available yet")
+    from codesearch.model import Params
+    from codesearch.search import search
+    from codesearch.search.progress import live_progress
+
+    params = Params(args.q, args.n, args.d)
+    with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
+        options = {name: getattr(args, name) for name in ("size", "proof", "group")
+                   if getattr(args, name, None) is not None}
+        result = search(params, args.method, time_limit=args.time, seed=args.seed,
+                        progress=prog, **options)
+    if args.out and result.code is not None:
+        from codesearch.codefile import write_code
+
+        write_code(args.out, result.code, params.d,
+                   {"method": result.method, "status": result.status.value,
+                    "upper": result.upper, "seed": result.seed})
+    summary = result.to_json(args.out if (args.out and result.code is not None) else None)
+    if args.json:
+        _print_json(summary)
+    else:
+        verdict = "proved optimal" if result.optimal else (
+            f"{result.status.value}; upper bound {result.upper}")
+        print(f"{params}: code of size {result.size} ({verdict}) "
+              f"by {result.method} in {result.seconds:.2f} s, {result.nodes} nodes")
+    return 0
 
 
 # ---------------------------------------------------------------------------------- table
+def _add_store_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--store", default="codesearch.sqlite",
+                   help="results store file (default: codesearch.sqlite in this directory)")
+
+
 def _add_table(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("table", help="fill a table of cells into the results store")
+    p = sub.add_parser(
+        "table", help="fill a table of cells into the results store",
+        description="Run bounds and searches on every cell (q, n, d) of a range and store the "
+        "results as they arrive; rerunning resumes, skipping work done at the same or a larger "
+        "budget. Python: codesearch.batch.run_table(store, cells, budget=..., methods=...).",
+    )
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--n", type=_int_range, required=True, help="lengths A..B")
+    p.add_argument("--d", type=_int_range, required=True, help="minimum distances A..B")
+    p.add_argument("--budget", type=float, default=10.0,
+                   help="search seconds per cell, shared among the methods (default 10)")
+    p.add_argument("--methods", help="comma-separated search methods (default: auto or exact)")
+    _add_store_option(p)
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--workers", type=int, help="local worker processes (default: CPU count)")
+    g.add_argument("--scheduler", help="Dask scheduler address, e.g. tcp://host:8786")
+    p.add_argument("--seed", type=int, default=0, help="run seed (default 0)")
+    p.add_argument("--no-bounds", action="store_true", help="skip the bounds stage")
+    p.add_argument("--sdp", action="store_true", help="bounds stage also tries the SDP bound")
+    p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
+    p.add_argument("--quiet", action="store_true", help="no live display")
+    p.add_argument("--json", action="store_true", help="print a JSON summary")
     _COMMANDS["table"] = _cmd_table
 
 
 def _cmd_table(args: argparse.Namespace) -> int:
-    raise InputError("the table command is not available yet")
+    from codesearch import batch
+    from codesearch.model import Params
+
+    Params(args.q, 1, 1)  # validates q with a one-line error
+    cells = batch.table_cells(args.q, args.n, args.d)
+    if not cells:
+        raise InputError("the range holds no cell with d <= n")
+    methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
+    kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
+                  scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
+                  sdp=args.sdp, propagate=not args.no_propagate)
+    if args.quiet or args.json:
+        summary = batch.run_table(args.store, cells, **kwargs)
+    else:
+        with batch.RichProgress() as display:
+            summary = batch.run_table(args.store, cells, progress=display, **kwargs)
+    if args.json:
+        _print_json(summary.to_json())
+    else:
+        print(f"{summary.ran} cells run, {summary.skipped} skipped, {summary.failed} failed, "
+              f"{summary.derived_codes} codes and {summary.derived_bounds} bounds derived in "
+              f"{summary.seconds:.1f} s; store {args.store}")
+        for err in summary.errors[:10]:
+            print(f"  {err}", file=sys.stderr)
+    return 0
 
 
 # --------------------------------------------------------------------------------- report
 def _add_report(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("report", help="render the stored table")
+    p = sub.add_parser(
+        "report", help="render the stored table",
+        description="The stored table with lower, upper and gap per cell, provenance, and the "
+        "comparison with imported published values. Python: codesearch.report.write_report().",
+    )
+    _add_store_option(p)
+    p.add_argument("--q", type=int, help="only this alphabet size")
+    p.add_argument("--format", default="md", choices=["md", "csv", "tex", "html", "json"],
+                   help="output format (default md)")
+    p.add_argument("--out", help="write to this file instead of standard output")
     _COMMANDS["report"] = _cmd_report
 
 
 def _cmd_report(args: argparse.Namespace) -> int:
-    raise InputError("the report command is not available yet")
+    from codesearch import report
+
+    text = report.write_report(args.store, args.format, q=args.q, out=args.out)
+    if not args.out:
+        sys.stdout.write(text)
+    return 0
 
 
 # --------------------------------------------------------------------------------- export
 def _add_export(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("export", help="write the best stored code of a cell to a code file")
+    p = sub.add_parser(
+        "export", help="write the best stored code of a cell to a code file",
+        description="Python: codesearch.report.export_code(store, Params(q, n, d), out).",
+    )
+    p.add_argument("n", type=int, help="length")
+    p.add_argument("d", type=int, help="minimum distance")
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    _add_store_option(p)
+    p.add_argument("--out", required=True, help="code file to write (.json for JSON)")
     _COMMANDS["export"] = _cmd_export
 
 
 def _cmd_export(args: argparse.Namespace) -> int:
-    raise InputError("the export command is not available yet")
+    from codesearch import report
+    from codesearch.model import Params
+
+    size = report.export_code(args.store, Params(args.q, args.n, args.d), args.out)
+    print(f"wrote {size} words to {args.out}")
+    return 0
+
+
+# --------------------------------------------------------------------------------- import
+def _add_import(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "import", help="import published values (kept apart from proven ones)",
+        description="Read a CSV (columns q,n,d,lower,upper,source) or a JSON list of such "
+        "objects and store it apart from this tool's results; a value contradicting a proven "
+        "entry is refused and nothing is stored. Python: Store(path).import_published(rows).",
+    )
+    p.add_argument("file", help="CSV or JSON file of published values")
+    _add_store_option(p)
+    _COMMANDS["import"] = _cmd_import
+
+
+def _cmd_import(args: argparse.Namespace) -> int:
+    from codesearch.store import Store, read_published_file
+
+    rows = read_published_file(args.file)
+    with Store(args.store) as st:
+        count = st.import_published(rows)
+    print(f"imported {count} published values into {args.store}")
+    return 0
 
 
 # ----------------------------------------------------------------------------------- plot
 def _add_plot(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("plot", help="draw the rate-distance picture")
+    p = sub.add_parser(
+        "plot",
+        help="draw the rate-distance picture",
+        description="Asymptotic bounds on the rate against relative distance (Singleton, "
+        "Hamming, Plotkin, Elias-Bassalygo, first LP bound, Gilbert-Varshamov) and, with "
+        "--n, the finite cells of those lengths (bar from GV to the best upper bound). "
+        "Python: codesearch.plot.save_rate_distance(path, q, points).",
+    )
+    p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
+    p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
+    p.add_argument("--no-lp", action="store_true", help="finite cells from closed forms only")
+    p.add_argument("--store", help="draw the cells of this results store instead "
+                   "(codesearch.report.plot_store)")
+    p.add_argument("--out", default="rate-distance.png",
+                   help="output file, .png, .svg or .pdf (default rate-distance.png)")
     _COMMANDS["plot"] = _cmd_plot
 
 
 def _cmd_plot(args: argparse.Namespace) -> int:
-    raise InputError("the plot command is not available yet")
+    if args.store:
+        from codesearch import report as table_report
+
+        count = table_report.plot_store(args.store, args.out, q=args.q)
+        print(f"{args.out} ({count} stored cells)")
+        return 0
+    from codesearch.bounds import report
+
+    path = report.run_plot_command(args.q, args.n, out=args.out, lp=not args.no_lp)
+    print(path)
+    return 0
 
 
 # ----------------------------------------------------------------------------------- demo
@@ -251,7 +432,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"codesearch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for add in (_add_check, _add_bounds, _add_find, _add_table, _add_report, _add_export,
-                _add_plot, _add_demo):
+                _add_import, _add_plot, _add_demo):
         add(sub)
     return parser
 

@@ -25,6 +25,7 @@ from __future__ import annotations
 import json
 from dataclasses import dataclass, field
 from fractions import Fraction
+from functools import lru_cache
 from typing import Any, Callable, Mapping
 
 import numpy as np
@@ -45,6 +46,7 @@ __all__ = [
     "check_certificate",
     "CERTIFICATE_CHECKERS",
     "parse_fraction",
+    "load_certificate",
 ]
 
 
@@ -328,3 +330,372 @@ def load_json_file(path: str) -> Any:
         return json.loads(text)
     except json.JSONDecodeError as exc:
         raise InputError(f"{path}:{exc.lineno}: invalid JSON: {exc.msg}") from None
+
+
+# ======================================================================= delsarte-lp certificates
+# Written apart from codesearch.bounds (no shared code): Krawtchouk values come from the
+# generating function prod (1 + (q-1) z)^(n-x) (1 - z)^x, binomials from math.comb, and every
+# comparison is between Python integers after clearing one common denominator.
+
+
+@lru_cache(maxsize=64)
+def _kraw_columns(q: int, n: int) -> tuple[tuple[int, ...], ...]:
+    """``T[x][k] = K_k(x)`` from the generating function, recursively in x.
+
+    Multiplying ``G_x(z) = sum_k K_k(x) z^k`` by ``(1 - z) / (1 + (q-1) z)`` gives
+    ``G_{x+1}``, i.e. ``K_k(x+1) = K_k(x) - K_{k-1}(x) - (q-1) K_{k-1}(x+1)``.
+    """
+    from math import comb
+
+    cur = [comb(n, k) * (q - 1) ** k for k in range(n + 1)]
+    table = [tuple(cur)]
+    for _ in range(n):
+        nxt = [0] * (n + 1)
+        nxt[0] = cur[0]
+        for k in range(1, n + 1):
+            nxt[k] = cur[k] - cur[k - 1] - (q - 1) * nxt[k - 1]
+        table.append(tuple(nxt))
+        cur = nxt
+    return tuple(table)
+
+
+@lru_cache(maxsize=None)
+def _cw_cap(n: int, delta: int, w: int) -> int:
+    """Upper bound on binary constant-weight codes A(n, 2 delta, w).
+
+    Johnson: A(n, 2δ, w) <= floor(n/w * A(n-1, 2δ, w-1)); complements: weight w and n-w give
+    the same codes; a single word when w < δ (two weight-w words are within 2w < 2δ).
+    """
+    if w > n or w < 0:
+        return 0
+    if n - w < w:
+        w = n - w
+    if w < delta:
+        return 1
+    return n * _cw_cap(n - 1, delta, w - 1) // w
+
+
+def _extra_row(family: str, index: int, n: int, d: int) -> tuple[dict[int, int], int]:
+    """Rebuild one extra inequality ``sum_i a_i A_i <= b`` for binary (n, d)."""
+    from math import comb
+
+    if family == "constant-weight":
+        if not d <= index <= n:
+            raise InputError(f"certificate: constant-weight index {index} outside {d}..{n}")
+        return {index: 1}, min(_cw_cap(n, (d + 1) // 2, index), comb(n, index))
+    if family == "antipodal-ball":
+        r = (d - 1) // 2
+        return {i: 1 for i in range(n - r, n + 1)}, 1
+    if family == "antipodal-shell":
+        if d % 2:
+            raise InputError("certificate: antipodal-shell needs even d")
+        s = d // 2
+        per = n // s
+        row = {n - s: 1}
+        row.update({i: per for i in range(n - s + 1, n + 1)})
+        return row, per
+    raise InputError(f"certificate: unknown extra family {family!r}")
+
+
+def _parse_fraction(text: Any, what: str) -> Fraction:
+    """Parse ``"p/q"`` or ``"p"`` (decimal integers, q > 0) exactly."""
+    if not isinstance(text, str):
+        raise InputError(f"certificate: {what} must be a string 'p/q', got {text!r}")
+    num, _, den = text.partition("/")
+    try:
+        p = int(num)
+        q = int(den) if den else 1
+    except ValueError:
+        raise InputError(f"certificate: {what} is not a rational 'p/q': {text!r}") from None
+    if q <= 0:
+        raise InputError(f"certificate: {what} needs a positive denominator: {text!r}")
+    return Fraction(p, q)
+
+
+def _check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Check a ``delsarte-lp`` certificate: y >= 0 (and z >= 0) with, for every allowed i >= d,
+    ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) +
+    sum_j z_j b_j``. Integer arithmetic only (one common denominator)."""
+    from math import lcm
+
+    for key in ("q", "n", "d", "even", "y", "bound"):
+        if key not in cert:
+            raise InputError(f"certificate: missing key {key!r}")
+    q, n, d, even = cert["q"], cert["n"], cert["d"], cert["even"]
+    for name, v in (("q", q), ("n", n), ("d", d)):
+        if isinstance(v, bool) or not isinstance(v, int):
+            raise InputError(f"certificate: {name} must be an integer")
+    if not isinstance(even, bool):
+        raise InputError("certificate: even must be true or false")
+    if not (2 <= q <= 1 << 16 and 1 <= d <= n <= 4096):
+        raise InputError(f"certificate: parameters q={q}, n={n}, d={d} out of range")
+    ys = cert["y"]
+    if not isinstance(ys, list) or len(ys) != n:
+        raise InputError(f"certificate: y must be a list of n={n} rationals")
+    y = [_parse_fraction(t, f"y[{k + 1}]") for k, t in enumerate(ys)]
+    claimed = _parse_fraction(cert["bound"], "bound")
+    extras_in = cert.get("extra", [])
+    if not isinstance(extras_in, list):
+        raise InputError("certificate: extra must be a list")
+    if even and (q != 2 or d % 2):
+        return False, None, "even-distance restriction is only valid for q = 2 and even d"
+    if extras_in and q != 2:
+        return False, None, "extra inequalities are only defined for q = 2"
+    rows: list[tuple[dict[int, int], int, Fraction]] = []
+    for j, e in enumerate(extras_in):
+        if not isinstance(e, Mapping) or not {"family", "index", "z"} <= set(e):
+            raise InputError(f"certificate: extra[{j}] needs family, index, z")
+        if isinstance(e["index"], bool) or not isinstance(e["index"], int):
+            raise InputError(f"certificate: extra[{j}].index must be an integer")
+        coeffs, rhs = _extra_row(str(e["family"]), e["index"], n, d)
+        rows.append((coeffs, rhs, _parse_fraction(e["z"], f"extra[{j}].z")))
+    if any(v < 0 for v in y) or any(z < 0 for (_, _, z) in rows):
+        return False, None, "a dual multiplier is negative"
+    L = lcm(*(v.denominator for v in y), *(z.denominator for (_, _, z) in rows))
+    Y = [v.numerator * (L // v.denominator) for v in y]
+    Z = [z.numerator * (L // z.denominator) for (_, _, z) in rows]
+    T = _kraw_columns(q, n)
+    for i in range(d, n + 1):
+        if even and i % 2:
+            continue
+        Ti = T[i]
+        total = sum(Y[k - 1] * Ti[k] for k in range(1, n + 1) if Y[k - 1])
+        total -= sum(Zj * coeffs.get(i, 0) for Zj, (coeffs, _, _) in zip(Z, rows))
+        if total > -L:
+            return False, None, f"dual constraint fails at distance i={i}"
+    value = Fraction(L + sum(Y[k - 1] * T[0][k] for k in range(1, n + 1))
+                     + sum(Zj * rhs for Zj, (_, rhs, _) in zip(Z, rows)), L)
+    if value != claimed:
+        return False, None, f"bound is {value}, certificate claims {claimed}"
+    bound = value.numerator // value.denominator
+    return True, bound, f"A_{q}({n},{d}) <= {bound}" + (" (even distances)" if even else "")
+
+
+def load_certificate(path: str) -> dict[str, Any] | None:
+    """The JSON object in ``path`` if it looks like a certificate (has ``kind``), else None.
+
+    Lets ``codesearch check FILE`` recognise a certificate by content, not by name.
+    """
+    import json
+
+    try:
+        with open(path, encoding="utf-8") as fh:
+            text = fh.read()
+    except OSError as exc:
+        raise InputError(f"{path}: cannot read ({exc.strerror})") from None
+    if not text.lstrip().startswith("{"):
+        return None
+    try:
+        obj = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise InputError(f"{path}:{exc.lineno}: malformed JSON ({exc.msg})") from None
+    return obj if isinstance(obj, dict) and "kind" in obj else None
+
+
+CERTIFICATE_CHECKERS["delsarte-lp"] = _check_delsarte_lp
+# ===================================================================== three-point-sdp
+# Schrijver's three-point semidefinite bound (A. Schrijver, IEEE Trans. Inform. Theory 51
+# (2005) 2859-2866), re-checked from the certificate alone. This path rebuilds every
+# coefficient itself (block coefficients beta, which variables vanish, the linear rows, the
+# caps on the variables) and shares no code with codesearch.bounds.sdp / terwilliger.
+#
+# The inequality checked: for every binary code C of length n, minimum distance d (all
+# distances even when "even"), with x[i,j,t] its three-point frequencies,
+#   |C| = 1 + sum_i C(n,i) x[i,0,0]
+#       <= 1 + sum <Z, B(x)> + sum mu (rhs - row(x)) + sum_i C(n,i) x[i,0,0]
+#        = 1 + const + sum_tri r_tri x_tri  <=  1 + const + sum_tri max(r_tri, 0) cap_tri,
+# because every Z is PSD, B(x) is PSD for codes (Schrijver's theorem), mu >= 0, rows hold
+# for codes, and 0 <= x_tri <= cap_tri.
+
+
+def _tp_binom(a: int, b: int) -> int:
+    from math import comb
+
+    return comb(a, b) if 0 <= b <= a else 0
+
+
+def _tp_beta(n: int, i: int, j: int, k: int, t: int) -> int:
+    # beta^t_{i,j,k} = sum_u (-1)^(u-t) C(u,t) C(n-2k,u-k) C(n-k-u,i-u) C(n-k-u,j-u)
+    total = 0
+    for u in range(t, min(i, j) + 1):
+        total += (-1) ** (u - t) * _tp_binom(u, t) * _tp_binom(n - 2 * k, u - k) * _tp_binom(
+            n - k - u, i - u
+        ) * _tp_binom(n - k - u, j - u)
+    return total
+
+
+def _tp_johnson(n: int, half: int, w: int, memo: dict) -> int:
+    # Johnson's bounds for constant-weight codes with distance 2*half (MacWilliams-Sloane
+    # ch. 17): A(n,2e,w) <= floor(n/w A(n-1,2e,w-1)), <= floor(n/(n-w) A(n-1,2e,w)),
+    # = 1 when min(w, n-w) < e, <= C(n,w).
+    key = (n, w)
+    if key in memo:
+        return memo[key]
+    if min(w, n - w) < half:
+        val = 1
+    else:
+        val = _tp_binom(n, w)
+        if w > 0:
+            val = min(val, n * _tp_johnson(n - 1, half, w - 1, memo) // w)
+        if n - w > 0:
+            val = min(val, n * _tp_johnson(n - 1, half, w, memo) // (n - w))
+    memo[key] = val
+    return val
+
+
+def _tp_psd(mat: list[list[Fraction]]) -> bool:
+    """Exact LDL^T: True iff the symmetric rational matrix is positive semidefinite."""
+    a = [row[:] for row in mat]
+    m = len(a)
+    for p in range(m):
+        piv = a[p][p]
+        if piv < 0:
+            return False
+        if piv == 0:
+            # a PSD matrix with a zero diagonal entry has a zero row there
+            if any(a[p][s] != 0 for s in range(p + 1, m)):
+                return False
+            continue
+        for r in range(p + 1, m):
+            f = a[r][p] / piv
+            if f:
+                for s in range(p + 1, m):
+                    a[r][s] -= f * a[p][s]
+    return True
+
+
+def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Re-check a ``"three-point-sdp"`` certificate in exact arithmetic.
+
+    The certificate holds the cell (``q, n, d``), the program's cell (``sdp_n, sdp_d``: the
+    same, or ``n+1, d+1`` for odd ``d`` since ``A(n,d) = A(n+1,d+1)``), ``even`` (only even
+    distances, allowed for even ``sdp_d``), dual ``blocks`` (``family`` 0 or 1, ``k``, row
+    ``weights``, a symmetric ``matrix`` of ``"p/q"`` strings), ``multipliers`` (``row``
+    label and ``"p/q"`` value) and the claimed integer ``value``.
+
+    Returns
+    -------
+    (valid, bound, reason)
+    """
+    import math
+
+    if int(cert["q"]) != 2:
+        return False, None, "three-point certificates are for binary codes"
+    n0, d0 = int(cert["n"]), int(cert["d"])
+    n, d = int(cert["sdp_n"]), int(cert["sdp_d"])
+    even = bool(cert["even"])
+    claimed = int(cert["value"])
+    if not 1 <= d0 <= n0:
+        return False, None, f"bad cell n={n0}, d={d0}"
+    if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
+        return False, None, f"program cell ({n},{d}) does not bound A({n0},{d0})"
+    if even and d % 2:
+        return False, None, "the even-distance restriction needs even d"
+
+    def tri(i: int, j: int, t: int) -> tuple[int, int, int] | None:
+        """Sorted triangle of x[i,j,t]; None when the variable is zero for these codes."""
+        sides = sorted((i, j, i + j - 2 * t), reverse=True)
+        if any(0 < s < d or (even and s % 2) for s in sides):
+            return None
+        return (sides[0], sides[1], sides[2])
+
+    def ok_index(i: int, j: int, t: int) -> bool:
+        return 0 <= t <= min(i, j) and i + j - t <= n
+
+    const = Fraction(1)  # the term x[0,0,0] = 1 of |C|
+    coef: dict[tuple[int, int, int], Fraction] = {}
+
+    def add(triangle: tuple[int, int, int] | None, value: Fraction) -> None:
+        nonlocal const
+        if triangle is None or not value:
+            return
+        if triangle == (0, 0, 0):
+            const += value
+        else:
+            coef[triangle] = coef.get(triangle, Fraction(0)) + value
+
+    for i in range(1, n + 1):
+        add(tri(i, 0, 0), Fraction(_tp_binom(n, i)))
+
+    seen = set()
+    for block in cert["blocks"]:
+        family, k = int(block["family"]), int(block["k"])
+        weights = [int(w) for w in block["weights"]]
+        if family not in (0, 1) or not 0 <= k <= n // 2 or (family, k) in seen:
+            return False, None, f"bad block family={family}, k={k}"
+        seen.add((family, k))
+        if len(set(weights)) != len(weights) or any(not k <= w <= n - k for w in weights):
+            return False, None, f"bad weights in block family={family}, k={k}"
+        mat = [[parse_fraction(v) for v in row] for row in block["matrix"]]
+        m = len(weights)
+        if len(mat) != m or any(len(row) != m for row in mat):
+            return False, None, f"block family={family}, k={k} is not {m}x{m}"
+        if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
+            return False, None, f"block family={family}, k={k} is not symmetric"
+        if not _tp_psd(mat):
+            return False, None, f"block family={family}, k={k} is not positive semidefinite"
+        for r, i in enumerate(weights):
+            for s, j in enumerate(weights):
+                z = mat[r][s]
+                if not z:
+                    continue
+                for t in range(min(i, j) + 1):
+                    if i + j - t > n:
+                        continue
+                    b = _tp_beta(n, i, j, k, t)
+                    if not b:
+                        continue
+                    if family == 0:
+                        add(tri(i, j, t), z * b)
+                    else:
+                        add(tri(i + j - 2 * t, 0, 0), z * b)
+                        add(tri(i, j, t), -z * b)
+
+    for mult in cert["multipliers"]:
+        label = list(mult["row"])
+        mu = parse_fraction(mult["value"])
+        if mu < 0:
+            return False, None, f"negative multiplier on row {label}"
+        if label[0] in ("upper", "pair"):
+            i, j, t = (int(v) for v in label[1:4])
+            if not ok_index(i, j, t):
+                return False, None, f"bad row {label}"
+            if label[0] == "upper":  # x[i,j,t] - x[i,0,0] <= 0
+                add(tri(i, j, t), -mu)
+                add(tri(i, 0, 0), mu)
+            else:  # x[i,0,0] + x[j,0,0] - x[i,j,t] <= 1
+                const += mu
+                add(tri(i, 0, 0), -mu)
+                add(tri(j, 0, 0), -mu)
+                add(tri(i, j, t), mu)
+        elif label[0] == "delsarte":  # -sum_i C(n,i) K_k(i) x[i,0,0] <= 0
+            k = int(label[1])
+            if not 0 <= k <= n:
+                return False, None, f"bad row {label}"
+            for i in range(n + 1):
+                kraw = sum(
+                    (-1) ** s * _tp_binom(i, s) * _tp_binom(n - i, k - s) for s in range(k + 1)
+                )
+                add(tri(i, 0, 0), mu * _tp_binom(n, i) * kraw)
+        else:
+            return False, None, f"unknown row {label}"
+
+    memo: dict = {}
+    half = (d + 1) // 2
+    for (a, b, c), r in coef.items():
+        if r <= 0:
+            continue
+        caps = sorted(1 if s == 0 else _tp_johnson(n, half, s, memo) for s in (a, b, c))
+        p = (a + b + c) // 2
+        shapes = math.factorial(n) // (
+            math.factorial(p - a) * math.factorial(p - b) * math.factorial(p - c)
+            * math.factorial(n - p)
+        )
+        const += r * min(Fraction(1), Fraction(caps[0] * caps[1], shapes))
+    proven = math.floor(const)
+    if claimed < proven:
+        return False, None, f"claimed {claimed} but the certificate proves only {proven}"
+    return True, claimed, f"three-point SDP bound A({n0},{d0}) <= {proven} (exact {float(const):.6f})"
+
+
+CERTIFICATE_CHECKERS["three-point-sdp"] = check_three_point_certificate

@@ -1,11 +1,173 @@
 """One front end for upper bounds on A_q(n,d): :func:`upper_bound` and :func:`all_bounds`.
 
-Each bound is a function ``f(params) -> BoundResult`` registered in :data:`BOUNDS`; closed
-forms return no certificate (the theorem's name is the justification), computed bounds
-(linear and semidefinite programs) return an exact certificate that
-:func:`codesearch.verify.check_certificate` re-checks.
+Each bound is a function ``f(params) -> BoundResult | None`` registered in :data:`BOUNDS`
+(None: the bound does not apply to this cell); closed forms return no certificate (the
+theorem's name is the justification), computed bounds (linear and semidefinite programs)
+return an exact certificate that :func:`codesearch.verify.check_certificate` re-checks.
+Only bounds with ``usable`` True (certified, scope ``"all"``) may become the cell's upper
+bound; Griesmer (linear codes only) and Gilbert-Varshamov (existential lower bound) are
+reported beside it, never in it.
+
+Submodules load lazily so that ``import codesearch`` stays cheap (scipy is only needed for
+the LP).
 """
 
 from __future__ import annotations
 
-__all__: list[str] = []
+import importlib
+from typing import Callable
+
+from codesearch.errors import ParameterError
+from codesearch.model import Params
+from codesearch.results import BoundResult
+
+__all__ = ["BOUNDS", "MAX_N", "bound_names", "compute_bound", "upper_bound", "all_bounds",
+           "gv_lower_bound", "least_usable",
+           "cell_summary", "best_lp_certificate"]
+
+#: Canonical bound name -> (module, function). Order is the tie-break for the winning bound:
+#: simpler theorems first, so a cell names the plainest argument that reaches its value.
+BOUNDS: dict[str, tuple[str, str]] = {
+    "singleton": ("codesearch.bounds.classical", "singleton"),
+    "hamming": ("codesearch.bounds.classical", "hamming"),
+    "plotkin": ("codesearch.bounds.classical", "plotkin"),
+    "johnson": ("codesearch.bounds.classical", "johnson"),
+    "elias": ("codesearch.bounds.classical", "elias"),
+    "delsarte-lp": ("codesearch.bounds.delsarte", "delsarte_lp"),
+    "delsarte-lp-plus": ("codesearch.bounds.delsarte", "delsarte_lp_plus"),
+    "griesmer": ("codesearch.bounds.classical", "griesmer"),
+}
+
+#: Bounds computed by solving an optimisation problem (skipped when ``lp=False``).
+_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus"})
+
+#: Longest codes the front end accepts (closed forms stay exact far beyond; this only keeps
+#: a typo such as n = 10**9 from hanging the process).
+MAX_N = 4096
+
+
+def bound_names() -> list[str]:
+    """Canonical names of the registered bounds, in tie-break order."""
+    return list(BOUNDS)
+
+
+def _check(params: Params) -> None:
+    if not isinstance(params, Params):
+        raise ParameterError(f"params must be a Params, got {type(params).__name__}")
+    if params.n > MAX_N:
+        raise ParameterError(f"length n={params.n} is beyond the bounds limit {MAX_N}")
+
+
+def _function(name: str) -> Callable[[Params], BoundResult | None]:
+    if name not in BOUNDS:
+        raise ParameterError(f"unknown bound {name!r}; choose from {', '.join(BOUNDS)}")
+    module, func = BOUNDS[name]
+    return getattr(importlib.import_module(module), func)
+
+
+def compute_bound(params: Params, name: str) -> BoundResult | None:
+    """Compute one registered bound by name (None when it does not apply to the cell)."""
+    _check(params)
+    return _function(name)(params)
+
+
+def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
+               lp_fallback: bool = True) -> dict[str, BoundResult]:
+    """Every applicable bound for one cell, by canonical name.
+
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    sdp : bool
+        Also compute Schrijver's three-point semidefinite bound (binary, d >= 3; seconds
+        to minutes per cell, see :func:`codesearch.bounds.sdp.three_point_cost`).
+    lp : bool
+        Include the Delsarte linear programs (the slow part of a grid run).
+    lp_fallback : bool
+        Let the LPs fall back to the high-precision simplex when double precision cannot
+        certify them (LP values beyond about 2^40; seconds per cell near n = 128).
+
+    Returns
+    -------
+    dict of str to BoundResult
+        Includes uncertified results (``certified=False``) and bounds of other scopes; use
+        :attr:`BoundResult.usable` to keep the ones that bound every code.
+    """
+    _check(params)
+    out: dict[str, BoundResult] = {}
+    for name in BOUNDS:
+        if not lp and name in _COMPUTED:
+            continue
+        func = _function(name)
+        result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
+        if result is not None:
+            out[name] = result
+    if sdp and params.q == 2 and params.d >= 3:
+        # Schrijver's bound is binary and needs d >= 3 (A(n,1), A(n,2) are known exactly).
+        try:
+            from codesearch.bounds.sdp import three_point_bound
+        except ImportError:
+            three_point_bound = None
+        if three_point_bound is not None:
+            result = three_point_bound(params)
+            if result is not None:
+                out[result.method] = result
+    return out
+
+
+def upper_bound(params: Params, *, sdp: bool = False, lp: bool = True,
+                lp_fallback: bool = True) -> BoundResult:
+    """The least usable upper bound on ``A_q(n,d)`` (certified, valid for every code).
+
+    Ties go to the earlier bound in :data:`BOUNDS` (the plainest argument). Options as in
+    :func:`all_bounds`.
+    """
+    return least_usable(all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback))
+
+
+def least_usable(bounds: dict[str, BoundResult]) -> BoundResult:
+    """Pick the least usable bound from an :func:`all_bounds` dictionary."""
+    usable = [b for b in bounds.values() if b.usable]
+    # Singleton always applies, so ``usable`` is never empty.
+    return min(usable, key=lambda b: b.value)
+
+
+def gv_lower_bound(params: Params) -> int:
+    """Gilbert-Varshamov: some code of this cell has at least this many words (existential)."""
+    from codesearch.bounds.classical import gilbert_varshamov
+
+    _check(params)
+    return gilbert_varshamov(params).value
+
+
+def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
+                 lp_fallback: bool = True) -> dict:
+    """The machine-readable summary of one cell (one line of ``codesearch bounds --json``).
+
+    Keys: ``q, n, d``; ``bounds`` (name -> int, usable bounds only); ``upper`` and
+    ``upper_method`` (the least usable bound); ``gv`` (existential lower bound);
+    ``linear`` (name -> int, bounds valid for linear codes only); ``uncertified`` (names
+    whose solver answer failed its exact check; never used).
+    """
+    found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback)
+    best = least_usable(found)
+    return {
+        "q": params.q,
+        "n": params.n,
+        "d": params.d,
+        "bounds": {k: b.value for k, b in found.items() if b.usable},
+        "upper": best.value,
+        "upper_method": best.method,
+        "gv": gv_lower_bound(params),
+        "linear": {k: b.value for k, b in found.items() if b.scope == "linear" and b.certified},
+        "uncertified": sorted(k for k, b in found.items() if not b.certified),
+    }
+
+
+def best_lp_certificate(params: Params) -> BoundResult | None:
+    """The certified LP result (plain or with extra inequalities) of least value, or None."""
+    _check(params)
+    results = [_function(name)(params) for name in ("delsarte-lp", "delsarte-lp-plus")]
+    good = [r for r in results if r is not None and r.certified and r.certificate is not None]
+    return min(good, key=lambda r: r.value) if good else None

@@ -1,0 +1,584 @@
+"""Batch runs: fill a table of cells into the results store, locally or on a Dask cluster.
+
+Problem
+-------
+Every cell (q, n, d) of a table is a task: prove upper bounds, then run the chosen searches
+within a per-cell time budget. Tasks run in worker processes (a local process pool, or the
+workers of a Dask ``distributed`` scheduler); only the driver writes to the store, one
+transaction per finished cell, so a crash loses at most the cells in flight. Work already done
+at the same or a larger budget is skipped, cells whose lower and upper bounds meet are skipped,
+and after each finished cell the driver propagates the new entries across the table
+(:mod:`codesearch.propagate`). Rerunning the same command resumes where a run stopped.
+
+Library functions never print: live figures go to an optional ``progress`` callback
+(:class:`RichProgress` renders them with rich for the command line).
+
+References
+----------
+Dask ``distributed`` documentation, "Futures" and "Setup" (https://distributed.dask.org).
+"""
+
+from __future__ import annotations
+
+import concurrent.futures as cf
+import multiprocessing
+import os
+import signal
+import time
+from dataclasses import dataclass, field
+from fractions import Fraction
+from types import MappingProxyType
+from typing import Any, Callable, Iterable, Mapping, Sequence
+
+import numpy as np
+
+from codesearch.errors import InputError, ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import BoundResult, SearchResult, Status
+
+__all__ = [
+    "CellTask",
+    "TableSummary",
+    "table_cells",
+    "run_cell",
+    "run_table",
+    "default_methods",
+    "RichProgress",
+]
+
+Progress = Callable[[dict[str, Any]], None]
+
+#: Name of the bounds stage in the store's ``runs`` table.
+BOUNDS_TASK = "bounds"
+
+
+def table_cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
+    """The cells ``(q, n, d)`` of a rectangular range, keeping only ``d <= n``."""
+    ds = list(ds)
+    return [Params(q, n, d) for n in ns for d in ds if 1 <= d <= n]
+
+
+def default_methods() -> list[str]:
+    """Methods used when none are named: ``auto`` when registered, else ``exact``."""
+    from codesearch.search import METHODS
+
+    for name in ("auto", "exact"):
+        if name in METHODS:
+            return [name]
+    return []
+
+
+def cell_seed(seed: int, p: Params) -> int:
+    """A per-cell seed fixed by the run seed and the cell (recorded with every result)."""
+    return (seed * 1_000_003 + p.q * 10_007 + p.n * 101 + p.d) % 2**31
+
+
+# ------------------------------------------------------------------------ transport forms
+def _plain(obj: Any) -> Any:
+    """Deep copy into picklable, JSON-ready builtins (mapping proxies become dicts)."""
+    if isinstance(obj, (Mapping, MappingProxyType)):
+        return {str(k): _plain(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_plain(v) for v in obj]
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.floating):
+        return float(obj)
+    if isinstance(obj, np.ndarray):
+        return _plain(obj.tolist())
+    if isinstance(obj, Fraction):
+        return f"{obj.numerator}/{obj.denominator}"
+    return obj
+
+
+@dataclass(frozen=True)
+class CellTask:
+    """Everything a worker needs to run one cell (picklable).
+
+    ``methods`` carries the registry entries resolved by the driver, so that a method
+    registered at run time in the driver resolves to the same module in the workers.
+    """
+
+    params: Params
+    budget: float
+    methods: tuple[Any, ...]
+    run_bounds: bool
+    seed: int
+    known_lower: int = 0
+    known_upper: int | None = None
+    sdp: bool = False
+
+
+def run_cell(task: CellTask) -> dict[str, Any]:
+    """Run one cell in a worker: bounds first, then each search with its share of the budget.
+
+    Returns a plain dict (picklable) with ``bounds`` and ``searches`` lists and ``errors``;
+    the driver rebuilds results from it and stores them. Never raises for a failing bound
+    or search: the failure is reported in ``errors``.
+    """
+    from codesearch.search import METHODS, search
+
+    p = task.params
+    start = time.perf_counter()
+    out: dict[str, Any] = {"params": [p.q, p.n, p.d], "bounds": None, "searches": [],
+                           "errors": [], "seed": task.seed}
+    upper = task.known_upper
+    if task.run_bounds:
+        t0 = time.perf_counter()
+        try:
+            from codesearch.bounds import all_bounds
+
+            found = all_bounds(p, sdp=True) if task.sdp else all_bounds(p)
+        except (ImportError, AttributeError, NotImplementedError):
+            found = None  # the bounds front end is not available in this installation
+        except Exception as exc:  # a failing bound must not lose the cell's searches
+            out["errors"].append([BOUNDS_TASK, f"{type(exc).__name__}: {exc}"])
+            found = None
+        if found is not None:
+            secs = time.perf_counter() - t0
+            out["bounds"] = []
+            for b in found.values():
+                out["bounds"].append({
+                    "value": int(b.value), "method": b.method,
+                    "certificate": None if b.certificate is None else _plain(b.certificate),
+                    "certified": bool(b.certified), "scope": b.scope, "note": b.note,
+                    "seconds": secs,
+                })
+                if b.usable and (upper is None or b.value < upper):
+                    upper = int(b.value)
+    lower = task.known_lower
+    for i, spec in enumerate(task.methods):
+        if upper is not None and lower >= upper:
+            break  # settled: no search can improve the cell
+        if spec.name not in METHODS:
+            METHODS[spec.name] = spec
+        remaining = task.budget - (time.perf_counter() - start)
+        share = max(remaining / (len(task.methods) - i), 0.05)
+        try:
+            res = search(p, spec.name, time_limit=share, seed=task.seed)
+        except Exception as exc:
+            out["errors"].append([spec.name, f"{type(exc).__name__}: {exc}".splitlines()[0]])
+            # A method refusing the cell (bad input for it) will refuse again: mark it done.
+            # Anything else (a missing module, a bug) is retried by the next run.
+            if isinstance(exc, InputError):
+                out["searches"].append({"method": spec.name, "failed": True,
+                                        "seconds": time.perf_counter() - start})
+            continue
+        out["searches"].append({
+            "method": res.method, "status": res.status.value,
+            "words": None if res.code is None else np.asarray(res.code.words),
+            "q": p.q, "upper": res.upper, "seconds": float(res.seconds),
+            "nodes": int(res.nodes), "seed": res.seed, "settings": _plain(res.settings),
+            "exhaustive": bool(spec.exhaustive), "time_limit": share,
+        })
+        if res.code is not None:
+            lower = max(lower, res.code.size)
+        if spec.exhaustive and res.upper is not None and res.status in (
+                Status.OPTIMAL, Status.INFEASIBLE):
+            upper = res.upper if upper is None else min(upper, res.upper)
+    out["seconds"] = time.perf_counter() - start
+    return out
+
+
+def _store_outcome(store: Any, task: CellTask, out: Mapping[str, Any]) -> None:
+    """Write one finished cell in one transaction (codes verified, certificates re-checked)."""
+    p = task.params
+    with store.transaction():
+        if out["bounds"] is not None:
+            for b in out["bounds"]:
+                store.add_bound(
+                    BoundResult(p, b["value"], b["method"], certificate=b["certificate"],
+                                certified=b["certified"], scope=b["scope"], note=b["note"]),
+                    seconds=b["seconds"],
+                )
+            store.mark_run(p, BOUNDS_TASK, budget=0.0, seconds=out["seconds"], status="done")
+        for s in out["searches"]:
+            if s.get("failed"):
+                store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
+                               status="error", seed=task.seed)
+                continue
+            code = None if s["words"] is None else Code(s["words"], s["q"])
+            settings = dict(s["settings"])
+            settings.setdefault("time_limit", s["time_limit"])
+            settings.setdefault("cell_budget", task.budget)
+            settings.setdefault("nodes", s["nodes"])
+            seed = s["seed"] if s["seed"] is not None else task.seed
+            res = SearchResult(p, Status(s["status"]), code, s["upper"], s["method"],
+                               s["seconds"], s["nodes"], seed, settings)
+            store.add_search_result(res, exhaustive=s["exhaustive"])
+            store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
+                           status=s["status"], seed=task.seed)
+
+
+# ------------------------------------------------------------------------------ executors
+def _ignore_sigint() -> None:
+    # Ctrl-C is the driver's business: it cancels the run and stops the workers itself.
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+
+
+class _LocalExecutor:
+    def __init__(self, workers: int) -> None:
+        self.workers = workers
+        self._new()
+
+    def _new(self) -> None:
+        # spawn, not fork: the driver may run a display thread, and forking threads is unsafe.
+        self.pool = cf.ProcessPoolExecutor(
+            max_workers=self.workers, mp_context=multiprocessing.get_context("spawn"),
+            initializer=_ignore_sigint,
+        )
+
+    def submit(self, task: CellTask) -> Any:
+        return self.pool.submit(run_cell, task)
+
+    def wait(self, futures: set[Any], timeout: float) -> set[Any]:
+        done, _ = cf.wait(futures, timeout=timeout, return_when=cf.FIRST_COMPLETED)
+        return set(done)
+
+    @staticmethod
+    def result(fut: Any) -> dict[str, Any]:
+        return fut.result()
+
+    def broken(self, exc: BaseException) -> bool:
+        if isinstance(exc, cf.process.BrokenProcessPool):
+            self.pool.shutdown(wait=False, cancel_futures=True)
+            self._new()
+            return True
+        return False
+
+    def close(self, cancel: bool = False) -> None:
+        if cancel:
+            procs = list(getattr(self.pool, "_processes", {}).values())
+            self.pool.shutdown(wait=False, cancel_futures=True)
+            for proc in procs:  # only the pool's own worker processes
+                if proc.is_alive():
+                    proc.terminate()
+            for proc in procs:
+                proc.join(timeout=5)
+        else:
+            self.pool.shutdown(wait=True)
+
+
+class _DaskExecutor:
+    def __init__(self, address: str) -> None:
+        try:
+            from distributed import Client
+        except ImportError as exc:  # pragma: no cover - distributed is a dependency
+            raise InputError(f"--scheduler needs the 'distributed' package ({exc})") from None
+        try:
+            self.client = Client(address, timeout="15s", set_as_default=False)
+        except (OSError, TimeoutError, ValueError) as exc:
+            raise InputError(f"cannot reach Dask scheduler {address}: {exc}".splitlines()[0]) from None
+        self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
+
+    def submit(self, task: CellTask) -> Any:
+        p = task.params
+        return self.client.submit(run_cell, task, pure=False,
+                                  key=f"cell-{p.q}-{p.n}-{p.d}-{time.time_ns()}")
+
+    def wait(self, futures: set[Any], timeout: float) -> set[Any]:
+        # Polling keeps this independent of a process-wide default client.
+        deadline = time.perf_counter() + timeout
+        while True:
+            done = {f for f in futures if f.done()}
+            if done or time.perf_counter() >= deadline:
+                return done
+            time.sleep(0.05)
+
+    @staticmethod
+    def result(fut: Any) -> dict[str, Any]:
+        return fut.result()
+
+    def broken(self, exc: BaseException) -> bool:
+        return False
+
+    def close(self, cancel: bool = False) -> None:
+        # Closing the client releases its futures; the scheduler cancels what is still queued.
+        self.client.close()
+
+
+# ------------------------------------------------------------------------------- driver
+@dataclass
+class TableSummary:
+    """Outcome of :func:`run_table`."""
+
+    cells: int
+    skipped: int = 0
+    ran: int = 0
+    failed: int = 0
+    derived_codes: int = 0
+    derived_bounds: int = 0
+    seconds: float = 0.0
+    interrupted: bool = False
+    errors: list[str] = field(default_factory=list)
+
+    def to_json(self) -> dict[str, Any]:
+        return {"cells": self.cells, "skipped": self.skipped, "ran": self.ran,
+                "failed": self.failed, "derived_codes": self.derived_codes,
+                "derived_bounds": self.derived_bounds, "seconds": round(self.seconds, 3),
+                "interrupted": self.interrupted, "errors": list(self.errors)}
+
+
+def _resolve_methods(methods: Sequence[str] | None) -> tuple[Any, ...]:
+    from codesearch.search import METHODS
+
+    names = default_methods() if methods is None else list(methods)
+    unknown = [m for m in names if m not in METHODS]
+    if unknown:
+        raise ParameterError(
+            f"unknown search method(s) {', '.join(unknown)}; choose from {', '.join(METHODS)}"
+        )
+    return tuple(METHODS[m] for m in names)
+
+
+def run_table(
+    store: Any,
+    cells: Sequence[Params],
+    *,
+    budget: float = 10.0,
+    methods: Sequence[str] | None = None,
+    workers: int | None = None,
+    scheduler: str | None = None,
+    seed: int = 0,
+    bounds: bool = True,
+    sdp: bool = False,
+    propagate: bool = True,
+    progress: Progress | None = None,
+) -> TableSummary:
+    """Fill ``cells`` into ``store``: bounds, searches within ``budget`` seconds per cell.
+
+    Parameters
+    ----------
+    store : Store or str
+        The results store (opened here when a path is given; only this process writes).
+    cells : sequence of Params
+        The table.
+    budget : float
+        Seconds of search per cell, shared among ``methods``. A method that already ran on
+        a cell with this budget or more is skipped.
+    methods : sequence of str, optional
+        Search methods in order (default :func:`default_methods`).
+    workers : int, optional
+        Local worker processes (default: the number of CPUs). Ignored with ``scheduler``.
+    scheduler : str, optional
+        Address of a Dask ``distributed`` scheduler, e.g. ``tcp://10.0.0.5:8786``.
+    seed : int
+        Run seed; each cell's seed is :func:`cell_seed` of it and is stored with its results.
+    bounds, propagate : bool
+        Run the bounds stage; propagate between cells after each finished cell.
+    sdp : bool
+        Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
+        already ran are not redone).
+    progress : callable, optional
+        Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
+        ``finish``).
+
+    Returns
+    -------
+    TableSummary
+
+    Raises
+    ------
+    KeyboardInterrupt
+        After cancelling the tasks in flight; everything finished is already stored.
+    """
+    from codesearch.store import Store
+
+    if not budget > 0:
+        raise ParameterError(f"budget must be positive, got {budget}")
+    if workers is not None and workers < 1:
+        raise ParameterError(f"workers must be at least 1, got {workers}")
+    specs = _resolve_methods(methods)
+    bounds = bounds and _bounds_available()
+    own = not hasattr(store, "transaction")
+    st = Store(store) if own else store
+    emit = progress or (lambda ev: None)
+    cells = sorted(set(cells), key=lambda p: (p.q, p.n, p.d))
+    summary = TableSummary(cells=len(cells))
+    t_start = time.perf_counter()
+    executor: Any = None
+    try:
+        if propagate:
+            _propagate(st, cells, summary, emit)
+        pending = list(cells)
+        emit({"event": "start", "cells": len(cells), "methods": [s.name for s in specs],
+              "budget": budget})
+        slots = 1
+        running: dict[Any, CellTask] = {}
+        crashes: dict[Params, int] = {}
+        while pending or running:
+            while pending and len(running) < slots:
+                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
+                if task is None:
+                    summary.skipped += 1
+                    emit({"event": "skip", "cell": None})
+                    continue
+                if executor is None:
+                    # Started on the first task only: a resumed run with nothing left to do
+                    # never pays for worker start-up.
+                    executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
+                        workers or os.cpu_count() or 1)
+                    slots = executor.workers * 2 if scheduler else executor.workers
+                running[executor.submit(task)] = task
+                emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
+                      "upper": task.known_upper})
+            if not running:
+                break
+            for fut in executor.wait(set(running), timeout=0.5):
+                task = running.pop(fut)
+                try:
+                    out = executor.result(fut)
+                except Exception as exc:
+                    if executor.broken(exc):
+                        # A worker died (e.g. out of memory): rebuild the pool and requeue
+                        # the cells in flight, giving up on a cell after its second crash.
+                        lost = list(running.values()) + [task]
+                        running.clear()
+                        for t in lost:
+                            crashes[t.params] = crashes.get(t.params, 0) + 1
+                            if crashes[t.params] >= 2:
+                                summary.failed += 1
+                                summary.errors.append(f"{t.params}: worker process died")
+                            else:
+                                pending.insert(0, t.params)
+                            emit({"event": "error", "cell": t.params, "error": "worker died"})
+                        break
+                    summary.failed += 1
+                    msg = f"{task.params}: {type(exc).__name__}: {exc}".splitlines()[0]
+                    summary.errors.append(msg)
+                    emit({"event": "error", "cell": task.params, "error": msg})
+                    continue
+                _store_outcome(st, task, out)
+                for method, msg in out["errors"]:
+                    summary.errors.append(f"{task.params} {method}: {msg}")
+                summary.ran += 1
+                if propagate:
+                    _propagate(st, cells, summary, emit)
+                s = st.summary(task.params)
+                emit({"event": "done", "cell": task.params, "lower": s.lower, "upper": s.upper,
+                      "seconds": out["seconds"]})
+    except KeyboardInterrupt:
+        summary.interrupted = True
+        if executor is not None:
+            executor.close(cancel=True)
+            executor = None
+        raise
+    finally:
+        if executor is not None:
+            executor.close()
+        summary.seconds = time.perf_counter() - t_start
+        if own:
+            st.close()
+    emit({"event": "finish", "summary": summary.to_json()})
+    return summary
+
+
+def _bounds_available() -> bool:
+    """True when the bounds front end is installed (it may land after this module)."""
+    try:
+        from codesearch.bounds import all_bounds  # noqa: F401
+    except ImportError:
+        return False
+    return True
+
+
+def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds: bool,
+               seed: int, sdp: bool = False) -> CellTask | None:
+    """The work left on cell ``p`` (None when nothing is left)."""
+    s = st.summary(p)
+    if s.exact:
+        return None
+    run_bounds = bounds and st.run_budget(p, BOUNDS_TASK) is None
+    todo = tuple(spec for spec in specs
+                 if (st.run_budget(p, spec.name) or 0.0) < budget)
+    if not run_bounds and not todo:
+        return None
+    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper,
+                    sdp)
+
+
+def _propagate(st: Any, cells: Sequence[Params], summary: TableSummary, emit: Progress) -> None:
+    from codesearch.propagate import propagate
+
+    by_q: dict[int, list[Params]] = {}
+    for p in cells:
+        by_q.setdefault(p.q, []).append(p)
+    for group in by_q.values():
+        out = propagate(st, group, progress=emit)
+        summary.derived_codes += out.codes
+        summary.derived_bounds += out.bounds
+
+
+# ------------------------------------------------------------------------ live display
+class RichProgress:
+    """A progress callback that draws a live rich panel (cells done / running / left, the
+    best lower and upper of the running cells, elapsed and estimated time).
+
+    Use as a context manager around :func:`run_table`; it writes to the given console only.
+    """
+
+    def __init__(self, console: Any = None) -> None:
+        from rich.console import Console
+
+        self.console = console or Console(stderr=True)
+        self.total = 0
+        self.done = 0
+        self.skipped = 0
+        self.running: dict[Params, tuple[int, int | None]] = {}
+        self.derived = 0
+        self.errors = 0
+        self.durations: list[float] = []
+        self.t0 = time.perf_counter()
+        self.live: Any = None
+
+    def __enter__(self) -> "RichProgress":
+        from rich.live import Live
+
+        self.live = Live(self._render(), console=self.console, refresh_per_second=4,
+                         transient=False, get_renderable=self._render)
+        self.live.__enter__()
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        if self.live is not None:
+            self.live.__exit__(*exc)
+
+    def __call__(self, ev: dict[str, Any]) -> None:
+        kind = ev.get("event")
+        if kind == "start":
+            self.total = ev["cells"]
+        elif kind == "skip":
+            self.skipped += 1
+        elif kind == "submit":
+            self.running[ev["cell"]] = (ev["lower"], ev["upper"])
+        elif kind == "done":
+            self.running.pop(ev["cell"], None)
+            self.done += 1
+            self.durations.append(ev["seconds"])
+        elif kind == "derived":
+            self.derived += 1
+        elif kind == "error":
+            self.running.pop(ev.get("cell"), None)
+            self.errors += 1
+
+    def _render(self) -> Any:
+        from rich.table import Table
+
+        elapsed = time.perf_counter() - self.t0
+        left = max(self.total - self.done - self.skipped - len(self.running), 0)
+        if self.durations:
+            per = sum(self.durations) / len(self.durations)
+            width = max(len(self.running), 1)
+            eta = f"{per * (left + len(self.running)) / width:.0f}s"
+        else:
+            eta = "?"
+        t = Table(title=f"table: {self.done} done, {self.skipped} skipped, "
+                        f"{len(self.running)} running, {left} left | derived {self.derived} | "
+                        f"errors {self.errors} | elapsed {elapsed:.0f}s, ETA {eta}",
+                  title_justify="left")
+        t.add_column("running cell")
+        t.add_column("lower", justify="right")
+        t.add_column("upper", justify="right")
+        for p, (lo, up) in sorted(self.running.items()):
+            t.add_row(str(p), str(lo), "?" if up is None else str(up))
+        return t

@@ -1,0 +1,572 @@
+"""Delsarte's linear programming bound on A_q(n,d), certified in exact arithmetic.
+
+Problem
+-------
+For a code C with minimum distance d, the averaged distance distribution
+A_i = |{(x, y) in C^2 : d(x, y) = i}| / |C| satisfies A_0 = 1, A_i = 0 for 0 < i < d,
+A_i >= 0, and (MacWilliams transform) sum_i A_i K_k(i) >= 0 for every k, where K_k are the
+q-ary Krawtchouk polynomials. So |C| = sum_i A_i is at most the LP optimum
+
+    maximise 1 + sum_{i in I} A_i  subject to  sum_{i in I} A_i K_k(i) >= -K_k(0), k = 1..n,
+
+with I = {d, ..., n} (binary, d even: the even i only, since some optimal code has only even
+distances; odd d maps through A(n, 2t-1) = A(n+1, 2t)). Every dual-feasible vector
+y >= 0 with sum_k y_k K_k(i) <= -1 for all i in I proves |C| <= 1 + sum_k y_k K_k(0)
+(weak duality), whatever its origin: that vector, in exact rationals, is the certificate.
+
+Optionally (binary only) extra valid inequalities ``sum_i a_i A_i <= b`` are appended, each
+proved per codeword and so valid for the average (see :func:`extra_inequalities`); their dual
+multipliers z_j >= 0 enter the certificate as ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1`` and
+the bound becomes ``1 + sum_k y_k K_k(0) + sum_j z_j b_j``.
+
+How the value is made exact
+---------------------------
+The float LP is solved by scipy's HiGHS on a scaled problem: with u_k = y_k K_k(0) the
+constraint matrix becomes Q_k(i) = K_k(i) / K_k(0), all in [-1, 1], so even binary n = 128
+(K_k(i) ~ 1e37) is well scaled. The float dual is rounded to dyadic rationals m_k / 2^E with
+2^E well above q^n, the constraint sums are evaluated exactly in integers, and the vector is
+rescaled by the exact worst slack so every constraint holds exactly. When that rescaling could
+lose an integer (the float optimum sits close below an integer, or is large), a few rounds of
+iterative refinement on the active set (exact integer residuals, float corrections) tighten
+the dual; every candidate is checked exactly and the least certified value is reported. A
+result that cannot be certified is returned with ``certified=False`` and never used.
+
+References
+----------
+P. Delsarte, "Bounds for unrestricted codes, by linear programming", Philips Res. Rep. 27
+(1972) 272-289; and "An algebraic approach to the association schemes of coding theory",
+Philips Res. Rep. Suppl. 10 (1973).
+F. J. MacWilliams and N. J. A. Sloane, "The Theory of Error-Correcting Codes" (1977), ch. 17
+section 4 (the LP bound, the even-distance restriction, and the extra inequalities A_i <= A(n,d,i)).
+M. R. Best, A. E. Brouwer, F. J. MacWilliams, A. M. Odlyzko and N. J. A. Sloane, "Bounds for
+binary codes of length less than 25", IEEE Trans. Inform. Theory 24 (1978) 81-93 (adding
+constant-weight and antipodal inequalities to Delsarte's LP).
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from functools import lru_cache
+from typing import Any
+
+import numpy as np
+
+from codesearch.bounds.classical import constant_weight_bound
+from codesearch.bounds.krawtchouk import krawtchouk_table
+from codesearch.model import Params
+from codesearch.results import BoundResult
+
+__all__ = ["delsarte_lp", "delsarte_lp_plus", "lp_cell", "extra_inequalities", "solve_float_lp"]
+
+#: Extra bits of the dyadic rounding beyond log2(q^n): rounding moves each constraint sum by
+#: at most q^n / 2^E, far below the slack the rescaling has to absorb.
+_GUARD_BITS = 96
+_REFINE_ROUNDS = 4
+
+
+def lp_cell(params: Params) -> tuple[int, int, bool]:
+    """The cell (n, d, even) the LP is solved for: binary odd d maps to (n+1, d+1)."""
+    q, n, d = params.q, params.n, params.d
+    if q == 2 and d % 2 == 1:
+        return n + 1, d + 1, True
+    return n, d, q == 2
+
+
+def allowed_distances(n: int, d: int, even: bool) -> list[int]:
+    """Distances i >= d that may occur (even i only when ``even``)."""
+    return [i for i in range(d, n + 1) if not even or i % 2 == 0]
+
+
+def extra_inequalities(n: int, d: int) -> list[tuple[str, int, dict[int, int], int]]:
+    """Valid inequalities ``sum_i a_i A_i <= b`` for binary codes of length n, distance d.
+
+    Each holds for the distance distribution A_i(c) seen from every single codeword c, hence
+    for the average. Returned as ``(family, index, {i: a_i}, b)``; the checker in
+    :mod:`codesearch.verify` rebuilds them from ``(family, index)`` on its own.
+
+    ``constant-weight`` (index i)
+        A_i <= A(n, 2 ceil(d/2), i): the codewords at distance i from c, translated by c,
+        form a constant-weight code of weight i whose distances are even and >= d;
+        bounded by Johnson's constant-weight bound. Kept only when below C(n, i).
+    ``antipodal-ball`` (index 0)
+        sum_{i >= n-r} A_i <= 1, r = floor((d-1)/2): those codewords lie in the radius-r
+        ball around the complement of c, which holds at most one codeword.
+    ``antipodal-shell`` (d = 2s even; index 0)
+        A_{n-s} + floor(n/s) sum_{i > n-s} A_i <= floor(n/s): codewords at distance s from
+        the complement of c have pairwise disjoint difference supports (at most n/s of them),
+        and none exists when a codeword lies within s-1 of the complement.
+    """
+    from math import comb
+
+    out: list[tuple[str, int, dict[int, int], int]] = []
+    delta = (d + 1) // 2
+    for i in range(d, n + 1):
+        cap = constant_weight_bound(n, delta, i)
+        if cap < comb(n, i):
+            out.append(("constant-weight", i, {i: 1}, cap))
+    r = (d - 1) // 2
+    ball = {i: 1 for i in range(max(n - r, d), n + 1)}
+    if ball:
+        out.append(("antipodal-ball", 0, ball, 1))
+    if d % 2 == 0:
+        s = d // 2
+        if n - s >= d:
+            per = n // s
+            shell = {n - s: 1}
+            for i in range(n - s + 1, n + 1):
+                shell[i] = per
+            out.append(("antipodal-shell", 0, shell, per))
+    return out
+
+
+@lru_cache(maxsize=512)
+def _scaled_matrix(q: int, n: int) -> np.ndarray:
+    """Float Q[x, k-1] = K_k(x) / K_k(0) for k = 1..n (exactly rounded int division)."""
+    K = krawtchouk_table(q, n)
+    Q = np.array([[K[k][x] / K[k][0] for k in range(1, n + 1)] for x in range(n + 1)])
+    Q.setflags(write=False)
+    return Q
+
+
+def _degrees(n: int, even: bool) -> list[int]:
+    """Degrees k of the dual variables kept in the LP.
+
+    On even distances the binary Krawtchouk values satisfy K_k(i) = K_{n-k}(i) and
+    K_k(0) = K_{n-k}(0), so y_k and y_{n-k} are interchangeable and k > n/2 can be dropped;
+    K_n(i) = 1 there (a positive constant that only costs), so k = n is dropped too.
+    """
+    return list(range(1, n // 2 + 1)) if even else list(range(1, n + 1))
+
+
+def _problem(q: int, n: int, d: int, even: bool, use_extra: bool):
+    rows = allowed_distances(n, d, even)
+    ks = _degrees(n, even)
+    extras = extra_inequalities(n, d) if (use_extra and q == 2) else []
+    if even:
+        # Odd distances are absent, so inequalities touching only odd i are void.
+        extras = [e for e in extras if any(i % 2 == 0 and i >= d for i in e[2])]
+    Q = _scaled_matrix(q, n)
+    nk = len(ks)
+    G = np.empty((len(rows), nk + len(extras)))
+    G[:, :nk] = Q[np.ix_(rows, [k - 1 for k in ks])]
+    for j, (_, _, coeffs, b) in enumerate(extras):
+        G[:, nk + j] = [-coeffs.get(i, 0) / b for i in rows]
+    return rows, ks, extras, G
+
+
+def _highs(G: np.ndarray, method: str):
+    """min sum(x) s.t. G x <= -1, x >= 0 through highspy (HiGHS itself, shipped with cvxpy),
+    skipping scipy's per-call option validation, which costs more than the solve on these
+    small dense LPs. Returns a linprog-like namespace (status 0 = optimal)."""
+    from types import SimpleNamespace
+
+    import highspy
+
+    rows, cols = G.shape
+    # The pybind core class: the Python wrapper prints a banner to stdout on first use,
+    # which would corrupt ``--json`` output; the core with output_flag off is silent.
+    h = highspy._core._Highs()
+    h.setOptionValue("output_flag", False)
+    h.setOptionValue("solver", "simplex" if method == "highs-ds" else "ipm")
+    if method == "highs-ds":
+        h.setOptionValue("simplex_strategy", 1)
+    inf = highspy.kHighsInf
+    lp = highspy.HighsLp()
+    lp.num_col_ = cols
+    lp.num_row_ = rows
+    lp.col_cost_ = np.ones(cols)
+    lp.col_lower_ = np.zeros(cols)
+    lp.col_upper_ = np.full(cols, inf)
+    lp.row_lower_ = np.full(rows, -inf)
+    lp.row_upper_ = np.full(rows, -1.0)
+    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    Gc = np.asfortranarray(G)
+    lp.a_matrix_.start_ = np.arange(0, rows * cols + 1, rows, dtype=np.int32)
+    lp.a_matrix_.index_ = np.tile(np.arange(rows, dtype=np.int32), cols)
+    lp.a_matrix_.value_ = Gc.ravel(order="F")
+    h.passModel(lp)
+    h.run()
+    ok = h.getModelStatus() == highspy.HighsModelStatus.kOptimal
+    if not ok:
+        return SimpleNamespace(status=1, x=None, fun=None, ineqlin=None)
+    sol = h.getSolution()
+    x = np.asarray(sol.col_value, dtype=float)
+    act = np.asarray(sol.row_value, dtype=float)
+    return SimpleNamespace(status=0, x=x, fun=float(x.sum()),
+                           ineqlin=SimpleNamespace(residual=-1.0 - act))
+
+
+@lru_cache(maxsize=1)
+def _have_highs_core() -> bool:
+    """True when highspy's core class is importable; else scipy's copy of HiGHS is used
+    (same solver, slower per call on small LPs)."""
+    try:
+        import highspy
+
+        return hasattr(highspy, "_core") and hasattr(highspy._core, "_Highs")
+    except ImportError:
+        return False
+
+
+def _linprog(G: np.ndarray, method: str):
+    from scipy.optimize import linprog
+
+    return linprog(np.ones(G.shape[1]), A_ub=G, b_ub=-np.ones(G.shape[0]), bounds=(0, None),
+                   method=method)
+
+
+def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
+    """Solve the scaled dual with HiGHS; returns (rows, degrees, extras, G, result).
+
+    ``result`` has linprog's fields ``status`` (0 = optimal), ``x``, ``fun`` and
+    ``ineqlin.residual`` (the slacks).
+    """
+    rows, ks, extras, G = _problem(q, n, d, even, use_extra)
+    solve = _highs if _have_highs_core() else _linprog
+    # Dual simplex: it returns a vertex, whose active set the exact solve uses. (The interior
+    # point method was tried as a fallback on the badly scaled cells and never succeeded
+    # where the simplex failed, on the binary grid n <= 128.)
+    res = solve(G, "highs-ds")
+    return rows, ks, extras, G, res
+
+
+def _to_dyadic(values: np.ndarray, scales: list[int], E: int) -> list[int]:
+    """floor(v * 2^E / s) exactly for each float v (negatives clipped to 0)."""
+    out = []
+    for v, s in zip(values.tolist(), scales):
+        if not v > 0.0:
+            out.append(0)
+            continue
+        num, den = float(v).as_integer_ratio()
+        out.append((num << E) // (den * s))
+    return out
+
+
+class _Exact:
+    """Exact integer data of one LP instance (Krawtchouk columns and extra rows)."""
+
+    def __init__(self, q: int, n: int, rows: list[int], ks: list[int], extras: list) -> None:
+        K = krawtchouk_table(q, n)
+        self.n = n
+        self.rows = rows
+        self.K0 = [K[k][0] for k in ks]
+        # cols[c][r]: integer coefficient of variable c in constraint row r (y part +K, z part -a).
+        self.cols = [[K[k][i] for i in rows] for k in ks]
+        self.cols += [[-coeffs.get(i, 0) for i in rows] for (_, _, coeffs, _) in extras]
+        self.cost = self.K0 + [b for (_, _, _, b) in extras]
+
+    def sums(self, m: list[int]) -> list[int]:
+        s = [0] * len(self.rows)
+        for mc, col in zip(m, self.cols):
+            if mc:
+                for r, a in enumerate(col):
+                    s[r] += mc * a
+        return s
+
+    def certify(self, m: list[int]) -> tuple[int, int, list[int], int] | None:
+        """Rescale nonnegative integer vector m to exact feasibility.
+
+        Returns ``(floor_value, W, m, objective_numerator)`` with the certificate
+        ``y_c = m_c / W``: every row sum of ``m`` is <= -W, and the bound is
+        ``1 + objective_numerator / W``; None when some row sum is >= 0.
+        """
+        if any(x < 0 for x in m):
+            return None
+        s = self.sums(m)
+        W = -max(s)
+        if W <= 0:
+            return None
+        obj = sum(mc * c for mc, c in zip(m, self.cost))
+        return 1 + obj // W, W, m, obj
+
+
+def _solve_exact(M: list[list[int]], rhs: list[int]) -> list[Fraction] | None:
+    """Solve the square integer system M x = rhs in exact rationals (None if singular).
+
+    Fraction-free Gauss-Jordan (Bareiss-style scaling kept implicit through Fractions would be
+    slower): rows are integer lists, each elimination step cross-multiplies and divides
+    out the gcd to keep entries small.
+    """
+    from math import gcd
+
+    size = len(M)
+    A = [list(row) + [b] for row, b in zip(M, rhs)]
+    for col in range(size):
+        piv = next((r for r in range(col, size) if A[r][col] != 0), None)
+        if piv is None:
+            return None
+        A[col], A[piv] = A[piv], A[col]
+        prow = A[col]
+        p = prow[col]
+        for r in range(size):
+            if r == col or A[r][col] == 0:
+                continue
+            f = A[r][col]
+            row = [p * a - f * b for a, b in zip(A[r], prow)]
+            g = 0
+            for v in row:
+                g = gcd(g, v)
+                if g == 1:
+                    break
+            if g > 1:
+                row = [v // g for v in row]
+            A[r] = row
+    return [Fraction(A[r][size], A[r][r]) for r in range(size)]
+
+
+def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
+    """Exact vertex on the active set of the float solution, checked exactly.
+
+    Columns: the variables the float solution uses; rows: as many constraints of least slack.
+    When the float basis is the optimal one this returns the exact LP optimum.
+    """
+    from math import lcm
+
+    x = np.asarray(res.x)
+    top = float(np.max(x)) if x.size else 0.0
+    if not top > 0:
+        return None
+    S = [c for c in range(len(x)) if x[c] > 1e-12 * top]
+    order = np.argsort(np.asarray(res.ineqlin.residual), kind="stable")
+    if len(S) > len(order):
+        return None
+    T = [int(r) for r in order[: len(S)]]
+    M = [[ex.cols[c][r] for c in S] for r in T]
+    sol = _solve_exact(M, [-1] * len(T))
+    if sol is None or any(v < 0 for v in sol):
+        return None
+    L = lcm(*(v.denominator for v in sol))
+    m = [0] * len(ex.cols)
+    for c, v in zip(S, sol):
+        m[c] = v.numerator * (L // v.denominator)
+    return ex.certify(m)
+
+
+def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list[int] | None:
+    """Dual simplex in high-precision decimal arithmetic; returns an integer dual vector.
+
+    Used when the double-precision solve fails: on cells whose LP value is far beyond 2^40
+    the dual vector is huge while every constraint must hold to within 1, so doubles cannot
+    resolve it. The problem min sum_c u_c s.t. sum_c u_c G[r][c] <= -1, u >= 0 (columns
+    scaled by their objective weight, G = exact coefficient / cost) is solved from the slack
+    basis, which is dual feasible because every cost is 1, in a condensed dictionary with
+    ``digits`` significant digits (libmpdec, through numpy object arrays). The basis found is
+    then solved exactly over the integers (:func:`_solve_exact`), so the precision only has
+    to be good enough to find the right basis; the result is checked exactly by the caller.
+    """
+    import decimal
+
+    ctx = decimal.Context(prec=digits)
+    D = ctx.create_decimal
+    m, N = len(ex.rows), len(ex.cols)
+    T = np.empty((m + 1, N + 1), dtype=object)
+    for c, (col, cost) in enumerate(zip(ex.cols, ex.cost)):
+        dc = D(cost)
+        for r, a in enumerate(col):
+            T[r, c] = ctx.divide(D(a), dc)
+        T[m, c] = D(-1)  # objective row: z = z0 - (T[m, :N] . x_N) with reduced costs 1
+    T[:m, N] = D(-1)
+    T[m, N] = D(0)
+    basic = [("s", r) for r in range(m)]
+    nonbasic = [("u", c) for c in range(N)]
+    tiny = decimal.Decimal(10) ** (-(digits // 2))
+    with decimal.localcontext(ctx):
+        for pivot in range(max_pivots):
+            beta = T[:m, N]
+            infeasible = [i for i in range(m) if beta[i] < -tiny]
+            if not infeasible:
+                break
+            # Most negative row first; after 2m pivots Bland's rule (least label), which
+            # cannot cycle on degenerate vertices.
+            bland = pivot >= 2 * m
+            if bland:
+                r = min(infeasible, key=lambda i: basic[i])
+            else:
+                r = min(infeasible, key=lambda i: beta[i])
+            row = T[r, :N]
+            best_j, best_key = None, None
+            for j in range(N):
+                a = row[j]
+                if a < -tiny:
+                    ratio = T[m, j] / a  # = d_j / (-a) with d_j = -T[m, j] >= 0
+                    key = (ratio, nonbasic[j]) if bland else (ratio,)
+                    if best_key is None or key < best_key:
+                        best_j, best_key = j, key
+            if best_j is None:
+                return None  # dual unbounded: cannot happen for a Delsarte LP
+            j = best_j
+            p = T[r, j]
+            rowr = T[r, :] / p
+            col = T[:, j].copy()
+            T = T - np.outer(col, rowr)
+            T[r, :] = rowr
+            T[:, j] = -col / p
+            T[r, j] = 1 / p
+            basic[r], nonbasic[j] = nonbasic[j], basic[r]
+        else:
+            return None
+    S = [idx for (kind, idx) in basic if kind == "u"]
+    tight = [idx for (kind, idx) in nonbasic if kind == "s"]
+    if len(S) != len(tight) or not S:
+        return None
+    M = [[ex.cols[c][r] for c in S] for r in tight]
+    sol = _solve_exact(M, [-1] * len(tight))
+    if sol is None or any(v < 0 for v in sol):
+        return None
+    from math import lcm
+
+    L = lcm(*(v.denominator for v in sol))
+    out = [0] * N
+    for c, v in zip(S, sol):
+        out[c] = v.numerator * (L // v.denominator)
+    return out
+
+
+def _scaled_float(value: int, E: int) -> float:
+    """value / 2^E as a float without overflowing on huge integers."""
+    shift = max(0, abs(value).bit_length() - 64)
+    return math.ldexp(float(value >> shift), shift - E)
+
+
+def _fmt(x: Fraction) -> str:
+    return f"{x.numerator}/{x.denominator}"
+
+
+def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallback: bool):
+    rows, ks, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
+    ex = _Exact(q, n, rows, ks, extras)
+    if res.status != 0:
+        best = _decimal_fallback(ex, q, n) if fallback else None
+        return best, ks, extras, res, best is not None
+    E = (q**n).bit_length() + _GUARD_BITS
+    m = _to_dyadic(res.x, ex.cost, E)
+    best = ex.certify(m)
+    fobj = 1.0 + float(res.fun)
+    # Refine when rescaling may have cost an integer: the certified floor exceeds the float
+    # optimum's floor (after a relative tolerance), or the value is beyond float precision.
+    need = best is None or best[0] > int(np.floor(fobj * (1 + 1e-9) + 1e-9)) or fobj > 2.0**40
+    if need:
+        exact = _basis_solve(ex, res)
+        if exact is not None and (best is None or exact[0] <= best[0]):
+            best = exact
+            need = False
+    if need:
+        slack = res.ineqlin.residual
+        tol = 1e-9
+        T = [r for r in range(len(rows)) if slack[r] <= tol * max(1.0, abs(fobj))]
+        S = [c for c in range(G.shape[1]) if res.x[c] > tol * max(1e-300, float(np.max(res.x)))]
+        if T and S:
+            P = np.linalg.pinv(G[np.ix_(T, S)])
+            for _ in range(_REFINE_ROUNDS):
+                s = ex.sums(m)
+                # Want s_r = -2^E on the active rows; residual in units of 2^E (floats).
+                resid = np.array([_scaled_float(-(1 << E) - s[r], E) for r in T])
+                du = P @ resid
+                dm = [0] * len(m)
+                for pos, c in enumerate(S):
+                    v = float(du[pos])
+                    if v == 0.0 or not np.isfinite(v):
+                        continue
+                    num, den = abs(v).as_integer_ratio()
+                    step = (num << E) // (den * ex.cost[c])
+                    dm[c] = step if v > 0 else -step
+                m = [max(0, a + b) for a, b in zip(m, dm)]
+                cand = ex.certify(m)
+                if cand is not None and (best is None or cand[0] < best[0]):
+                    best = cand
+    used = False
+    # Beyond 2^40 the double solve may also return a wrong (merely feasible) vertex whose
+    # exact solution certifies a loose value, so the high-precision simplex runs there too.
+    if fallback and (need or fobj > 2.0**40):
+        cand = _decimal_fallback(ex, q, n)
+        if cand is not None and (best is None or cand[0] < best[0]):
+            best, used = cand, True
+    return best, ks, extras, res, used
+
+
+def _decimal_fallback(ex: "_Exact", q: int, n: int) -> tuple[int, int, list[int], int] | None:
+    """Exact optimum through the high-precision dual simplex, checked exactly (or None)."""
+    digits = len(str(q**n)) + 30
+    m = _decimal_dual_simplex(ex, digits=digits, max_pivots=40 * len(ex.rows) + 200)
+    return ex.certify(m) if m is not None else None
+
+
+#: Largest LP handled: n (after the odd-d mapping) and bit length of q^n (the dyadic rounding
+#: converts 2^E-scaled integers to floats, E = bits(q^n) + guard).
+MAX_LP_N = 200
+MAX_LP_BITS = 800
+
+
+def _run(params: Params, use_extra: bool, name: str, fallback: bool) -> BoundResult | None:
+    from codesearch import verify
+
+    q = params.q
+    n, d, even = lp_cell(params)
+    if n > MAX_LP_N or (q**n).bit_length() > MAX_LP_BITS:
+        return None
+    best, ks, extras, res, used_decimal = _solve_certified(q, n, d, even, use_extra, fallback)
+    mapped = (n, d) != (params.n, params.d)
+    where = f" solved at A({n},{d})" if mapped else ""
+    if best is None:
+        fval = int(np.floor(1.0 + res.fun)) if res.status == 0 else q**params.n
+        what = "float LP value" if res.status == 0 else "float LP failed;"
+        return BoundResult(params, fval, name, certified=False,
+                           note=f"{what} not certified{where}")
+    value, W, m, obj = best
+    y = [Fraction(0)] * n
+    for k, mc in zip(ks, m):
+        y[k - 1] = Fraction(mc, W)
+    z = [Fraction(mc, W) for mc in m[len(ks):]]
+    cert: dict[str, Any] = {
+        "kind": "delsarte-lp",
+        "q": q,
+        "n": n,
+        "d": d,
+        "even": even,
+        "y": [_fmt(v) for v in y],
+        "bound": _fmt(1 + Fraction(obj, W)),
+    }
+    if use_extra:
+        cert["extra"] = [
+            {"family": fam, "index": idx, "z": _fmt(zj)}
+            for (fam, idx, _, _), zj in zip(extras, z) if zj
+        ]
+    valid, checked, reason = verify.check_certificate(cert)
+    if not valid or checked != value:
+        return BoundResult(params, value, name, certificate=cert, certified=False,
+                           note=f"certificate rejected: {reason}")
+    note = ("even distances" if even else "all distances") + where
+    if used_decimal:
+        note += ", high-precision simplex"
+    return BoundResult(params, value, name, certificate=cert, note=note)
+
+
+def delsarte_lp(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
+    """Delsarte's LP bound with an exact rational dual certificate (kind ``delsarte-lp``).
+
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    exact_fallback : bool
+        When the double-precision solve cannot be certified tightly (LP values beyond about
+        2^40), run the high-precision dual simplex (seconds per cell at n ~ 128). Off, such
+        cells may come back uncertified (never used as a bound).
+
+    Returns
+    -------
+    BoundResult or None
+        None when the cell is beyond :data:`MAX_LP_N` / :data:`MAX_LP_BITS`.
+    """
+    return _run(params, False, "delsarte-lp", exact_fallback)
+
+
+def delsarte_lp_plus(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
+    """Delsarte's LP with the extra binary inequalities of :func:`extra_inequalities`.
+
+    None for q > 2 (no extra family implemented there).
+    """
+    if params.q != 2:
+        return None
+    return _run(params, True, "delsarte-lp-plus", exact_fallback)

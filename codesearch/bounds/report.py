@@ -1,0 +1,128 @@
+"""Text and JSON output of the ``codesearch bounds`` command (kept out of the CLI shell).
+
+Problem
+-------
+Turn a grid of cells into lines: one JSON object per cell, or an aligned plain-text table
+naming the winning bound, and optionally write the LP certificate of a single cell.
+
+References
+----------
+None (presentation only; the bounds are in :mod:`codesearch.bounds`).
+"""
+
+from __future__ import annotations
+
+import json
+import sys
+from typing import Iterable, TextIO
+
+from codesearch.errors import ParameterError
+from codesearch.model import Params
+
+__all__ = ["cells", "run_bounds_command", "format_value", "finite_points", "run_plot_command"]
+
+_SHORT = {
+    "singleton": "singleton",
+    "hamming": "hamming",
+    "plotkin": "plotkin",
+    "johnson": "johnson",
+    "elias": "elias",
+    "delsarte-lp": "lp",
+    "delsarte-lp-plus": "lp+",
+    "three-point-sdp": "sdp",
+}
+
+
+def cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
+    """Valid cells of the grid ``ns x ds`` (cells with d > n are skipped in a range).
+
+    Raises
+    ------
+    ParameterError
+        If no cell of the grid is valid (the message names the reason for the first one).
+    """
+    ns, ds = list(ns), list(ds)
+    out, first_error = [], None
+    for n in ns:
+        for d in ds:
+            try:
+                out.append(Params(q, n, d))
+            except ParameterError as exc:
+                first_error = first_error or exc
+                if len(ns) == 1 and len(ds) == 1:
+                    raise
+    if not out:
+        raise first_error or ParameterError("empty grid")
+    return out
+
+
+def format_value(v: int) -> str:
+    """Exact below 10^12, else ``m.mmme+XX`` (the JSON output is always exact)."""
+    return str(v) if v < 10**12 else f"{v:.3e}"
+
+
+def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json: bool = False,
+                       lp: bool = True, lp_fallback: bool = True, sdp: bool = False,
+                       certificate: str | None = None,
+                       out: TextIO | None = None) -> int:
+    """Print the bounds of a grid of cells; returns the exit status."""
+    from codesearch.bounds import MAX_N, best_lp_certificate, cell_summary
+
+    out = out or sys.stdout
+    grid = cells(q, ns, ds)
+    if any(p.n > MAX_N for p in grid):
+        raise ParameterError(f"length beyond the bounds limit {MAX_N}")
+    if certificate is not None and len(grid) != 1:
+        raise ParameterError("--certificate needs a single cell (N and D, not ranges)")
+    if as_json:
+        for p in grid:
+            print(json.dumps(cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)), file=out)
+    else:
+        names = [k for k in _SHORT if (lp or not k.startswith("delsarte"))
+                 and (sdp or k != "three-point-sdp")]
+        header = ["q", "n", "d", "upper", "by", "gv"] + [_SHORT[k] for k in names] + ["griesmer*"]
+        rows = []
+        for p in grid:
+            s = cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)
+            row = [str(p.q), str(p.n), str(p.d), str(s["upper"]), s["upper_method"],
+                   format_value(s["gv"])]
+            for k in names:
+                v = s["bounds"].get(k)
+                row.append("-" if v is None else format_value(v) + ("" if k not in s["uncertified"] else "?"))
+            g = s["linear"].get("griesmer")
+            row.append("-" if g is None else format_value(g))
+            rows.append(row)
+        widths = [max(len(r[i]) for r in [header] + rows) for i in range(len(header))]
+        for r in [header] + rows:
+            print("  ".join(c.rjust(w) for c, w in zip(r, widths)), file=out)
+        print("* griesmer bounds linear codes only; gv is an existential lower bound; "
+              "'-' = not applicable or not certified", file=out)
+    if certificate is not None:
+        best = best_lp_certificate(grid[0])
+        if best is None:
+            raise ParameterError(f"no certified LP bound for {grid[0]}")
+        with open(certificate, "w", encoding="utf-8") as fh:
+            json.dump(dict(best.certificate), fh, indent=1)
+            fh.write("\n")
+    return 0
+
+
+def finite_points(q: int, ns: Iterable[int], *, lp: bool = True) -> list[tuple[int, int, int, int]]:
+    """(n, d, gv, upper) for every cell of the given lengths (the plot's finite points)."""
+    from codesearch.bounds import gv_lower_bound, upper_bound
+
+    out = []
+    for n in ns:
+        for d in range(1, n + 1):
+            p = Params(q, n, d)
+            out.append((n, d, gv_lower_bound(p), upper_bound(p, lp=lp).value))
+    return out
+
+
+def run_plot_command(q: int, ns: Iterable[int] | None, *, out: str, lp: bool = True) -> str:
+    """Draw the rate-distance picture (with the cells of lengths ``ns``) into ``out``."""
+    from codesearch.plot import save_rate_distance
+
+    Params(q, 1, 1)  # validates q with the usual one-line error
+    points = finite_points(q, ns, lp=lp) if ns is not None else None
+    return save_rate_distance(out, q, points)

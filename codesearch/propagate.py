@@ -1,0 +1,315 @@
+"""Propagation between the cells of a table: derive codes and upper bounds from neighbours.
+
+Problem
+-------
+Given what the store holds for some cells of a table of A_q(n,d), derive better entries for
+other cells with the standard relations, to a fixed point. Every derived code is built word
+by word and verified before it is stored (provenance: the rule and the stored codes used);
+every derived upper bound is stored with a ``"cell-relation"`` certificate citing the stored
+bounds it used, which the store re-checks against those rows.
+
+Code constructions (lower bounds)
+    shorten      A_q(n-1,d) >= ceil(A_q(n,d)/q): keep the words with the most frequent symbol
+                 at the best coordinate, delete that coordinate;
+    puncture     A_q(n-1,d-1) >= A_q(n,d): delete a coordinate;
+    parity       binary, d odd: A(n+1,d+1) >= A(n,d): append an overall parity bit;
+    pad          A_q(n+1,d) >= A_q(n,d): append a zero symbol;
+    relax        A_q(n,d-1) >= A_q(n,d): the same words;
+    u|u+v        A_q(2n, d) >= A_q(n, ceil(d/2)) A_q(n, d), over Z_q;
+    direct-sum   A_q(n1+n2, d) >= A_q(n1, d) A_q(n2, d).
+
+Upper-bound relations (rule names as stored)
+    times-q-shorter  A_q(n,d) <= q A_q(n-1,d);
+    longer           A_q(n,d) <= A_q(n+1,d);
+    smaller-d        A_q(n,d) <= A_q(n,d-1);
+    punctured        A_q(n,d) <= A_q(n-1,d-1)   (puncturing is injective when d >= 2);
+    parity-odd       binary, d odd: A(n,d) <= A(n+1,d+1)  (with ``punctured`` this gives
+                     A(n,2t-1) = A(n+1,2t)).
+
+References
+----------
+F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*, North-Holland,
+1977, Ch. 1 (shortening, puncturing, parity extension), Ch. 2 section 9 (the (u|u+v)
+construction) and Ch. 17 section 1 (elementary relations between values of A(n,d)).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Callable, Iterable
+
+import numpy as np
+
+from codesearch.model import Code, Params
+from codesearch.results import BoundResult
+
+__all__ = [
+    "BOUND_RULES",
+    "relation_cells",
+    "relation_value",
+    "shorten",
+    "puncture",
+    "parity_extend",
+    "pad",
+    "u_u_plus_v",
+    "direct_sum",
+    "propagate",
+    "PropagationSummary",
+]
+
+#: Largest derived code that is materialised (larger ones would dominate verification time).
+MAX_DERIVED_WORDS = 4096
+
+BOUND_RULES = ("times-q-shorter", "longer", "smaller-d", "punctured", "parity-odd")
+
+
+# ------------------------------------------------------------------- upper-bound relations
+def _cell(q: int, n: int, d: int) -> Params | None:
+    return Params(q, n, d) if n >= 1 and 1 <= d <= n else None
+
+
+def relation_cells(rule: str, p: Params) -> list[Params] | None:
+    """The cells whose upper bounds ``rule`` uses to bound cell ``p`` (None: rule not applicable)."""
+    q, n, d = p.q, p.n, p.d
+    if rule == "times-q-shorter":
+        c = _cell(q, n - 1, d)
+    elif rule == "longer":
+        c = _cell(q, n + 1, d)
+    elif rule == "smaller-d":
+        c = _cell(q, n, d - 1) if d >= 2 else None
+    elif rule == "punctured":
+        c = _cell(q, n - 1, d - 1) if d >= 2 else None
+    elif rule == "parity-odd":
+        c = _cell(q, n + 1, d + 1) if q == 2 and d % 2 == 1 else None
+    else:
+        return None
+    return None if c is None else [c]
+
+
+def relation_value(rule: str, p: Params, cited: list[tuple[Params, int]]) -> int | None:
+    """Upper bound on cell ``p`` that ``rule`` gives from the cited ``(cell, bound)`` pairs.
+
+    Returns None when the rule does not apply or the cited cells are not the ones it needs.
+    Pure integer arithmetic: this is what the store re-checks.
+    """
+    cells = relation_cells(rule, p)
+    if cells is None or [c for c, _ in cited] != cells:
+        return None
+    value = int(cited[0][1])
+    return p.q * value if rule == "times-q-shorter" else value
+
+
+# --------------------------------------------------------------------- code constructions
+def shorten(code: Code) -> Code:
+    """Shortened code: the largest (coordinate, symbol) class with that coordinate deleted.
+
+    The result has length ``n - 1``, the same minimum distance, and at least
+    ``ceil(M / q)`` words (pigeonhole on the symbol at any one coordinate).
+    """
+    w = code.words
+    best = (-1, 0, 0)
+    for i in range(code.n):
+        counts = np.bincount(w[:, i], minlength=code.q)
+        a = int(np.argmax(counts))
+        if counts[a] > best[0]:
+            best = (int(counts[a]), i, a)
+    _, i, a = best
+    rows = w[w[:, i] == a]
+    return Code(np.delete(rows, i, axis=1), code.q)
+
+
+def puncture(code: Code) -> Code:
+    """Delete the last coordinate (distance drops by at most one)."""
+    return Code(code.words[:, :-1], code.q)
+
+
+def parity_extend(code: Code) -> Code:
+    """Binary: append the overall parity bit (odd distances go up by one)."""
+    parity = (code.words.sum(axis=1) % 2).astype(np.uint8)[:, None]
+    return Code(np.hstack([code.words, parity]), code.q)
+
+
+def pad(code: Code) -> Code:
+    """Append a zero symbol to every word."""
+    return Code(np.hstack([code.words, np.zeros((code.size, 1), np.uint8)]), code.q)
+
+
+def u_u_plus_v(c1: Code, c2: Code) -> Code:
+    """The code ``{(u | u+v mod q) : u in c1, v in c2}`` of length ``2n``.
+
+    Its minimum distance is at least ``min(2 d1, d2)``: for ``v = v'`` the distance is
+    ``2 d(u, u')``; otherwise ``d(u,u') + d(u+v, u'+v') >= d(v, v')`` by the triangle
+    inequality in Z_q^n.
+    """
+    u = np.repeat(c1.words, c2.size, axis=0).astype(np.int32)
+    v = np.tile(c2.words, (c1.size, 1)).astype(np.int32)
+    return Code(np.hstack([u, (u + v) % c1.q]).astype(np.uint8), c1.q)
+
+
+def direct_sum(c1: Code, c2: Code) -> Code:
+    """All concatenations ``(a | b)``; distance ``min(d1, d2)``."""
+    a = np.repeat(c1.words, c2.size, axis=0)
+    b = np.tile(c2.words, (c1.size, 1))
+    return Code(np.hstack([a, b]), c1.q)
+
+
+# ------------------------------------------------------------------------ the fixed point
+@dataclass(frozen=True)
+class PropagationSummary:
+    """What one call of :func:`propagate` added to the store."""
+
+    codes: int
+    bounds: int
+    rounds: int
+
+
+@dataclass(frozen=True)
+class _Candidate:
+    target: Params
+    size: int
+    rule: str
+    sources: tuple[Params, ...]
+    build: Callable[[list[Code]], Code]
+
+
+def _code_candidates(p: Params, lower: Callable[[Params], int]) -> Iterable[_Candidate]:
+    """Every construction that yields a code for cell ``p``, with its guaranteed size."""
+    q, n, d = p.q, p.n, p.d
+    src = _cell(q, n + 1, d)
+    if src is not None:
+        yield _Candidate(p, -(-lower(src) // q), "shorten", (src,), lambda c: shorten(c[0]))
+    src = _cell(q, n + 1, d + 1)
+    if src is not None:
+        yield _Candidate(p, lower(src), "puncture", (src,), lambda c: puncture(c[0]))
+    if q == 2 and d % 2 == 0 and d >= 2:
+        src = _cell(q, n - 1, d - 1)
+        if src is not None:
+            yield _Candidate(p, lower(src), "parity", (src,), lambda c: parity_extend(c[0]))
+    src = _cell(q, n - 1, d)
+    if src is not None:
+        yield _Candidate(p, lower(src), "pad", (src,), lambda c: pad(c[0]))
+    src = _cell(q, n, d + 1)
+    if src is not None:
+        yield _Candidate(p, lower(src), "relax", (src,), lambda c: c[0])
+    if n % 2 == 0:
+        a, b = _cell(q, n // 2, (d + 1) // 2), _cell(q, n // 2, d)
+        if a is not None and b is not None:
+            yield _Candidate(p, lower(a) * lower(b), "u|u+v", (a, b),
+                             lambda c: u_u_plus_v(c[0], c[1]))
+    for n1 in range(d, n - d + 1):
+        if n1 > n - n1:
+            break
+        a, b = _cell(q, n1, d), _cell(q, n - n1, d)
+        if a is not None and b is not None:
+            yield _Candidate(p, lower(a) * lower(b), "direct-sum", (a, b),
+                             lambda c: direct_sum(c[0], c[1]))
+
+
+def propagate(
+    store: Any,
+    cells: Iterable[Params],
+    *,
+    max_words: int = MAX_DERIVED_WORDS,
+    progress: Callable[[dict[str, Any]], None] | None = None,
+) -> PropagationSummary:
+    """Derive codes and bounds into ``cells`` from everything stored, to a fixed point.
+
+    Parameters
+    ----------
+    store : codesearch.store.Store
+        Read for sources (any cell of the same alphabet) and written for targets.
+    cells : iterable of Params
+        The table: only these cells receive derived entries.
+    max_words : int
+        Derived codes larger than this are not materialised (their size is not claimed).
+    progress : callable, optional
+        Called with ``{"event": "derived", ...}`` for each entry added.
+
+    Returns
+    -------
+    PropagationSummary
+
+    Notes
+    -----
+    Each round only stores strict improvements (a larger code, a smaller bound), and both
+    are bounded integers, so the loop terminates.
+    """
+    table = sorted(set(cells))
+    if not table:
+        return PropagationSummary(0, 0, 0)
+    lower_cache: dict[Params, int] = {}
+    upper_cache: dict[Params, tuple[int, int] | None] = {}
+
+    def lower(p: Params) -> int:
+        if p not in lower_cache:
+            lower_cache[p] = store.summary(p).lower
+        return lower_cache[p]
+
+    def upper(p: Params) -> tuple[int, int] | None:
+        if p not in upper_cache:
+            upper_cache[p] = store.best_upper_row(p)
+        return upper_cache[p]
+
+    n_codes = n_bounds = rounds = 0
+    changed = True
+    while changed:
+        changed = False
+        rounds += 1
+        for p in table:
+            for cand in _code_candidates(p, lower):
+                if cand.size <= lower(p) or cand.size > max_words:
+                    continue
+                ub = upper(p)
+                if ub is not None and lower(p) >= ub[1]:
+                    break  # the cell is already settled
+                sources = []
+                ids = []
+                for s in cand.sources:
+                    summ = store.summary(s)
+                    sources.append(store.get_code(summ.code_id)[1])
+                    ids.append(summ.code_id)
+                code = cand.build(sources)
+                if code.size <= lower(p):
+                    continue
+                store.add_code(
+                    code, p, method=f"derived:{cand.rule}", status="feasible",
+                    settings={"rule": cand.rule},
+                    provenance={"rule": cand.rule, "from": ids,
+                                "cells": [[s.q, s.n, s.d] for s in cand.sources]},
+                )
+                lower_cache[p] = code.size
+                n_codes += 1
+                changed = True
+                if progress is not None:
+                    progress({"event": "derived", "kind": "code", "cell": p,
+                              "rule": cand.rule, "value": code.size})
+        for p in table:
+            for rule in BOUND_RULES:
+                srcs = relation_cells(rule, p)
+                if srcs is None:
+                    continue
+                rows = [upper(s) for s in srcs]
+                if any(r is None for r in rows):
+                    continue
+                cited = [(s, r[1]) for s, r in zip(srcs, rows)]
+                value = relation_value(rule, p, cited)
+                cur = upper(p)
+                if value is None or (cur is not None and value >= cur[1]):
+                    continue
+                cert = {
+                    "kind": "cell-relation",
+                    "rule": rule,
+                    "cites": [{"q": s.q, "n": s.n, "d": s.d, "bound_id": r[0], "value": r[1]}
+                              for s, r in zip(srcs, rows)],
+                }
+                bid = store.add_bound(
+                    BoundResult(p, value, f"relation:{rule}", certificate=cert,
+                                note=f"{rule} from " + ", ".join(str(s) for s in srcs)),
+                )
+                upper_cache[p] = (bid, value)
+                n_bounds += 1
+                changed = True
+                if progress is not None:
+                    progress({"event": "derived", "kind": "bound", "cell": p,
+                              "rule": rule, "value": value})
+    return PropagationSummary(n_codes, n_bounds, rounds)

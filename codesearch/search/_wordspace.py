@@ -1,0 +1,88 @@
+"""Words as integer indices, and Hamming balls as reusable patterns.
+
+Shared plumbing of the heuristic searchers (:mod:`codesearch.search.greedy`,
+:mod:`codesearch.search.local`). A word ``(x_0, ..., x_{n-1})`` over ``0..q-1`` has index
+``sum_j x_j q**(n-1-j)``, so index order is lexicographic order. A Hamming ball of radius r is
+described once, relative to its centre: XOR masks for q = 2, otherwise a CSR list of
+(coordinate, added symbol) changes. The kernels in :mod:`codesearch._kernels` apply them.
+"""
+
+from __future__ import annotations
+
+from itertools import combinations, product
+from math import comb
+
+import numpy as np
+
+from codesearch.errors import ParameterError
+
+__all__ = [
+    "MAX_INDEX_SPACE",
+    "ball_size",
+    "ball_masks",
+    "ball_patterns",
+    "powers",
+    "indices_to_words",
+    "words_to_indices",
+]
+
+#: Word indices must fit an int64 with room for arithmetic on them.
+MAX_INDEX_SPACE = 2**62
+
+
+def ball_size(q: int, n: int, r: int) -> int:
+    """Number of words within Hamming distance ``r`` of a fixed word."""
+    return sum(comb(n, i) * (q - 1) ** i for i in range(0, min(r, n) + 1))
+
+
+def powers(q: int, n: int) -> np.ndarray:
+    """``pw[j] = q**(n-1-j)`` as int64 (place value of coordinate j)."""
+    if q**n > MAX_INDEX_SPACE:
+        raise ParameterError(f"q^n = {q}^{n} is too large for the heuristic searchers")
+    return np.array([q ** (n - 1 - j) for j in range(n)], dtype=np.int64)
+
+
+def ball_masks(n: int, r: int) -> np.ndarray:
+    """Every binary word of weight <= ``r`` as an int64 XOR mask (weight order)."""
+    parts = [np.zeros(1, dtype=np.int64)]
+    place = np.array([1 << (n - 1 - j) for j in range(n)], dtype=np.int64)
+    for k in range(1, min(r, n) + 1):
+        cols = np.array(list(combinations(range(n), k)), dtype=np.int64).reshape(-1, k)
+        parts.append(place[cols].sum(axis=1))
+    return np.concatenate(parts)
+
+
+def ball_patterns(q: int, n: int, r: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The ball of radius ``r`` as CSR patterns ``(pat_ptr, pat_pos, pat_add)``.
+
+    Pattern k adds ``pat_add[t]`` (in ``1..q-1``, mod q) at coordinate ``pat_pos[t]`` for t in
+    ``pat_ptr[k]:pat_ptr[k+1]``; pattern 0 is the empty change (the centre itself).
+    """
+    ptr = [0]
+    pos: list[int] = []
+    add: list[int] = []
+    for k in range(0, min(r, n) + 1):
+        for support in combinations(range(n), k):
+            for adds in product(range(1, q), repeat=k):
+                pos.extend(support)
+                add.extend(adds)
+                ptr.append(len(pos))
+    return (np.array(ptr, dtype=np.int64), np.array(pos, dtype=np.int64),
+            np.array(add, dtype=np.int64))
+
+
+def indices_to_words(idx: np.ndarray, q: int, n: int) -> np.ndarray:
+    """``(M, n)`` uint8 array of the words with the given indices."""
+    idx = np.asarray(idx, dtype=np.int64).copy()
+    out = np.empty((idx.shape[0], n), dtype=np.uint8)
+    for j in range(n - 1, -1, -1):
+        out[:, j] = idx % q
+        idx //= q
+    return out
+
+
+def words_to_indices(words: np.ndarray, q: int) -> np.ndarray:
+    """Inverse of :func:`indices_to_words`."""
+    words = np.asarray(words, dtype=np.int64)
+    n = words.shape[1]
+    return words @ powers(q, n)

@@ -1,0 +1,355 @@
+"""Method ``"exact"``: prove A_q(n,d) by maximum clique search with symmetry reduction.
+
+Problem
+-------
+Find a largest q-ary code of length n and minimum distance d and prove that no larger one
+exists (or, with ``size``, decide whether a code of that size exists). A code is a clique
+of the code graph (:mod:`codesearch.search.graph`); the search is a tree of subproblems (fixed
+words + candidates) produced by isomorph rejection on orbits of fixed words, whose small
+leaves are solved by the bit-parallel clique engine (:mod:`codesearch.search.clique`).
+
+Outline
+-------
+1. Root: the zero word is fixed (one orbit under the full isometry group).
+2. Second word: split by weight, weight d first. When the best code found there exceeds an
+   upper bound on ``A_q(n,d+1)`` (the bounds module, else a recursive exact search on
+   ``(n, d+1)``), the other weights are skipped (:func:`graph.distance_d_pair_suffices`).
+3. Further words: split by orbits of the stabiliser of the fixed words while a node has more
+   than ``leaf_size`` candidates and fewer than ``max_fixed`` fixed words.
+4. Leaves: maximum clique on the candidates, seeking only cliques that beat the incumbent.
+The incumbent is shared by the whole tree; the search stops when it meets a known upper bound.
+
+Anytime: on the time limit the best code is returned with the largest bound still possible
+among the unfinished nodes (each pending node bounded by its fixed words plus a greedy colour
+bound of its candidates; the running leaf by its proved bound).
+
+References
+----------
+.. [1] P. R. J. Ostergard, T. Baicheva, E. Kolev, "Optimal binary one-error-correcting codes of
+   length 10 have 72 codewords", IEEE Trans. Inform. Theory 45 (1999) 1229-1231.
+.. [2] P. Kaski, P. R. J. Ostergard, "Classification Algorithms for Codes and Designs",
+   Springer 2006.
+.. [3] P. San Segundo, D. Rodriguez-Losada, A. Jimenez, "An exact bit-parallel algorithm for
+   the maximum clique problem", Computers & Operations Research 38 (2011) 571-581.
+"""
+
+from __future__ import annotations
+
+import time
+from typing import Any, Callable
+
+import numpy as np
+
+from codesearch._version import __version__
+from codesearch.errors import ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import SearchResult, Status
+
+__all__ = ["OPTIONS", "run", "known_upper"]
+
+OPTIONS = frozenset({"size", "reduce", "leaf_size", "max_fixed", "use_bounds"})
+
+_DEFAULT_LEAF = 96
+_DEFAULT_MAX_FIXED = 4
+
+
+def known_upper(params: Params) -> int | None:
+    """A usable upper bound on ``A_q(n,d)`` from :mod:`codesearch.bounds`, if that exists.
+
+    The bounds module is written in parallel; any failure to import or evaluate it simply
+    means "no bound known" (the search then proves everything itself).
+    """
+    try:
+        from codesearch.bounds import upper_bound  # type: ignore[attr-defined]
+    except ImportError:
+        return None
+    try:
+        res = upper_bound(params)
+    except Exception:  # noqa: BLE001 - an unfinished bounds module must not break searches
+        return None
+    if getattr(res, "usable", False):
+        return int(res.value)
+    return None
+
+
+class _Search:
+    """State shared by the subproblem tree: incumbent, clock, counters."""
+
+    def __init__(self, params: Params, deadline: float | None, start: float,
+                 progress: Callable[[dict[str, Any]], None] | None, stop_at: int | None,
+                 best: int, leaf_size: int, max_fixed: int) -> None:
+        self.params = params
+        self.deadline = deadline
+        self.start = start
+        self.progress = progress
+        self.stop_at = stop_at
+        self.best = best  # size the search must beat (incumbent size or target - 1)
+        self.code: np.ndarray | None = None
+        self.nodes = 0
+        self.leaves = 0
+        self.leaf_size = leaf_size
+        self.max_fixed = max_fixed
+        self.stopped = False  # time limit hit or goal met: the rest of the tree is abandoned
+        self.pending_upper = 0  # bound over abandoned nodes (valid once stopped)
+        self.known_upper: int | None = None  # a bound from the bounds module, when usable
+        self.last_report = start
+
+    def time_left(self) -> float | None:
+        if self.deadline is None:
+            return None
+        return self.deadline - time.perf_counter()
+
+    def goal_met(self) -> bool:
+        return self.stop_at is not None and self.best >= self.stop_at
+
+    def abandon(self, sub: Any) -> None:
+        """Account for a node left unsearched: its bound joins the proved upper bound, unless
+        the incumbent already meets a known bound (then the answer is settled anyway)."""
+        if self.known_upper is not None and self.best >= self.known_upper:
+            return
+        self.pending_upper = max(self.pending_upper, _node_bound(sub, self.params))
+
+    def report(self, force: bool = False) -> None:
+        if self.progress is None:
+            return
+        now = time.perf_counter()
+        if force or now - self.last_report >= 0.25:
+            self.last_report = now
+            self.progress({"nodes": self.nodes, "incumbent": self.best if self.code is not None
+                           else 0, "leaves": self.leaves, "elapsed": now - self.start})
+
+    def solve_leaf(self, sub: Any) -> None:
+        """Maximum clique of the leaf's candidates beating the incumbent."""
+        from codesearch.search import clique, graph
+
+        k = sub.fixed.shape[0]
+        need = self.best - k  # the clique must have more than this many vertices
+        if sub.candidates.shape[0] <= need:
+            return
+        adj = graph.code_graph(sub.candidates, self.params.q, self.params.d)
+        left = self.time_left()
+        prog = None
+        if self.progress is not None:
+            def prog(info: dict[str, Any]) -> None:
+                self.progress({"nodes": self.nodes + info["nodes"],
+                               "incumbent": max(self.best, k + info["incumbent"]),
+                               "leaves": self.leaves,
+                               "elapsed": time.perf_counter() - self.start})
+        goal = None if self.stop_at is None else max(1, self.stop_at - k)
+        res = clique.max_clique(adj, time_limit=left, lower=max(need, 0), progress=prog,
+                                goal=goal)
+        self.nodes += res.nodes
+        self.leaves += 1
+        if res.size > need:
+            self.best = k + res.size
+            self.code = np.vstack([sub.fixed, sub.candidates[res.vertices]])
+        if not res.complete:
+            # Stopped by the clock or by the goal: only the bound proved so far holds here.
+            self.stopped = True
+            self.pending_upper = max(self.pending_upper, k + res.upper)
+        self.report()
+
+    def walk(self, sub: Any, first_weight: int | None = None) -> None:
+        """Depth-first over the subproblem tree below ``sub``."""
+        from codesearch.search import graph
+
+        k = sub.fixed.shape[0]
+        if k > self.best:
+            self.best = k
+            self.code = sub.fixed.copy()
+            if self.goal_met():
+                self.stopped = True
+        if self.stopped:
+            self.abandon(sub)
+            return
+        if k + sub.candidates.shape[0] <= self.best:
+            return
+        m = sub.candidates.shape[0]
+        if m <= self.leaf_size or (k >= self.max_fixed and m <= graph.MAX_LEAF):
+            self.solve_leaf(sub)
+            return
+        for child in graph.orbit_split(sub, self.params.q, self.params.d,
+                                       first_weight=first_weight):
+            left = self.time_left()
+            if left is not None and left <= 0:
+                self.stopped = True
+            self.walk(child)
+
+
+def _node_bound(sub: Any, params: Params) -> int:
+    """Fixed words plus the greedy colour count of the candidates' code graph."""
+    from codesearch import _kernels as K
+    from codesearch.search import graph
+
+    k = sub.fixed.shape[0]
+    m = sub.candidates.shape[0]
+    if m == 0:
+        return k
+    if m > 4096:
+        return k + m
+    adj = graph.code_graph(sub.candidates, params.q, params.d)
+    nwords = adj.shape[1]
+    p = np.zeros((1, nwords), np.uint64)
+    for v in range(m):
+        p[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
+    classes = K.clique_colour_level(adj, np.ones(m, np.int64), p, np.empty((1, m), np.int64),
+                                    np.empty((1, m), np.int64), np.empty(1, np.int64),
+                                    np.empty(1, np.int64), 0, -1, np.empty(nwords, np.uint64),
+                                    np.empty(nwords, np.uint64))
+    return k + int(classes)
+
+
+def run(
+    params: Params,
+    *,
+    time_limit: float | None = None,
+    seed: int | None = None,
+    progress: Callable[[dict[str, Any]], None] | None = None,
+    size: int | None = None,
+    reduce: bool = True,
+    leaf_size: int = _DEFAULT_LEAF,
+    max_fixed: int = _DEFAULT_MAX_FIXED,
+    use_bounds: bool = True,
+) -> SearchResult:
+    """Exact search of one cell (see the module docstring).
+
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    time_limit : float, optional
+        Wall-clock budget; on expiry the best code and the bound proved so far are returned.
+    seed : int, optional
+        Unused (the search is deterministic); recorded.
+    progress : callable, optional
+        Receives ``{"nodes", "incumbent", "leaves", "elapsed"}`` now and then.
+    size : int, optional
+        Decide whether a code of this size exists instead of maximising: stop at the first
+        such code (FEASIBLE) or prove none exists (INFEASIBLE, ``upper = size - 1``). The
+        result records it as ``target``.
+    reduce : bool
+        Apply the symmetry reductions (default). ``False`` runs the plain clique search on
+        all ``q^n`` words (for tests and comparisons).
+    leaf_size, max_fixed : int
+        Split a node by orbits while it has more than ``leaf_size`` candidates and fewer than
+        ``max_fixed`` fixed words.
+    use_bounds : bool
+        Consult :mod:`codesearch.bounds` (default): stop when the incumbent meets a usable
+        upper bound of the cell, and use its bound on ``A_q(n,d+1)`` first. ``False`` makes
+        the search prove everything by itself (benchmarks, independent cross-checks).
+
+    Returns
+    -------
+    SearchResult
+        OPTIMAL with ``upper == size`` when proved; INFEASIBLE for a refuted target;
+        otherwise FEASIBLE (or UNKNOWN) with the proved ``upper``.
+    """
+    from codesearch.search import graph
+
+    start = time.perf_counter()
+    deadline = None if time_limit is None else start + float(time_limit)
+    q, n, d = params.q, params.n, params.d
+    target = size
+    if target is not None:
+        if isinstance(target, bool) or not isinstance(target, (int, np.integer)) or target < 1:
+            raise ParameterError(f"size must be a positive integer, got {target!r}")
+        target = int(target)
+    if int(leaf_size) < 1 or int(max_fixed) < 1:
+        raise ParameterError("leaf_size and max_fixed must be positive")
+    if q**n > graph.MAX_SPACE:
+        raise ParameterError(
+            f"exact search enumerates all q^n = {q}^{n} words; limit is {graph.MAX_SPACE}"
+        )
+    if not reduce and q**n > graph.MAX_LEAF:
+        raise ParameterError(
+            f"the unreduced search takes all q^n = {q}^{n} words as one graph; limit is "
+            f"{graph.MAX_LEAF} (use the reductions)"
+        )
+    ext = known_upper(params) if use_bounds else None
+    if target is not None and ext is not None and ext < target:
+        # A usable bound already refutes the requested size: nothing to search.
+        return SearchResult(params, Status.INFEASIBLE, None, int(ext), "exact",
+                            time.perf_counter() - start, 0, seed,
+                            {"target": target, "known_upper": ext, "version": __version__},
+                            target)
+    stop_at = target if target is not None else ext
+    best0 = (target - 1) if target is not None else 0
+    s = _Search(params, deadline, start, progress, stop_at, best0, int(leaf_size),
+                int(max_fixed))
+    s.known_upper = ext
+    settings: dict[str, Any] = {"reduce": bool(reduce), "leaf_size": int(leaf_size),
+                                "max_fixed": int(max_fixed), "time_limit": time_limit,
+                                "target": target, "version": __version__,
+                                "numba": _numba_version(),
+                                "known_upper": ext, "use_bounds": bool(use_bounds)}
+    even = bool(reduce) and graph.even_weight_suffices(q, d)
+    settings["even_weight_only"] = even
+    root = graph.root(q, n, d, even=even)
+    skipped_bound: int | None = None
+    if not reduce:
+        s.max_fixed = 0
+        s.walk(root)
+    else:
+        zero_node = graph.orbit_split(root, q, d)[0]  # one orbit: the zero word
+        children = graph.orbit_split(zero_node, q, d, first_weight=d)
+        if zero_node.fixed.shape[0] > s.best:
+            s.best, s.code = 1, zero_node.fixed.copy()
+            s.stopped = s.goal_met()
+        for idx, child in enumerate(children):
+            s.walk(child)
+            if idx == 0 and not s.stopped and len(children) > 1:
+                # Weight-d child done: is the rest needed? Only if the incumbent does not
+                # exceed an upper bound on A_q(n,d+1) (distance_d_pair_suffices).
+                u_next = _upper_next(params, s, settings)
+                if u_next is not None and s.best >= u_next:
+                    skipped_bound = u_next
+                    settings["skipped_by_pair_argument"] = True
+                    break
+    s.report(force=True)
+
+    code = None if s.code is None else Code(s.code, q)
+    size = 0 if code is None else code.size
+    if s.stopped:
+        upper = max(s.best, s.pending_upper)
+    else:
+        upper = s.best if skipped_bound is None else max(s.best, skipped_bound)
+    if ext is not None:
+        upper = min(upper, ext)
+    if target is not None:
+        if size >= target:
+            status = Status.FEASIBLE if upper != size else Status.OPTIMAL
+        elif upper < target:
+            status = Status.INFEASIBLE
+        else:
+            status = Status.UNKNOWN
+    else:
+        status = Status.OPTIMAL if (code is not None and upper == size) else (
+            Status.FEASIBLE if code is not None else Status.UNKNOWN)
+    return SearchResult(params, status, code, int(upper), "exact",
+                        time.perf_counter() - start, int(s.nodes), seed, settings, target)
+
+
+def _numba_version() -> str:
+    import numba
+
+    return str(numba.__version__)
+
+
+def _upper_next(params: Params, s: _Search, settings: dict[str, Any]) -> int | None:
+    """An upper bound on ``A_q(n, d+1)``: 1 past the length, else the bounds module, else a
+    recursive exact search on ``(n, d+1)`` within the remaining time (its proved ``upper``)."""
+    q, n, d = params.q, params.n, params.d
+    if d + 1 > n:
+        return 1
+    nxt = Params(q, n, d + 1)
+    ext = known_upper(nxt) if settings["use_bounds"] else None
+    if ext is not None and s.best >= ext:
+        settings["upper_next"] = {"value": ext, "source": "bounds"}
+        return ext
+    left = s.time_left()
+    res = run(nxt, time_limit=left, use_bounds=settings["use_bounds"])
+    s.nodes += res.nodes
+    value = res.upper if ext is None else min(ext, res.upper)
+    settings["upper_next"] = {"value": value, "source": "exact",
+                              "optimal": res.status is Status.OPTIMAL}
+    return value

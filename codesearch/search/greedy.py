@@ -1,0 +1,261 @@
+"""Greedy codes: lexicodes and greedy packing in other scan orders, with restarts.
+
+Problem
+-------
+Given a cell ``(q, n, d)``, build a large code quickly by scanning the Hamming space in some
+order and keeping every word at distance ``>= d`` from the words kept so far. In lexicographic
+order this is the *lexicode*, which for q = 2 is always linear and for several cells is the
+best code known (the length-24 distance-8 lexicode is the extended Golay code, 4096 words).
+Other orders (a q-ary Gray code, uniformly random orders restarted with fresh seeds) give
+different codes; the best is kept. Greedy codes are heuristics: results are FEASIBLE only.
+
+Method
+------
+Ball marking: a bitset with one bit per word of the space marks every word within distance
+``d - 1`` of a codeword; a scanned word is kept iff its bit is clear. The work is
+``M * |ball(d-1)|`` bit writes and the memory ``q^n / 8`` bytes, with no pairwise distances, so
+the lexicode of length 24 (2^24 candidates, 2 MiB bitset) takes seconds. For random orders on
+spaces above 2^22 words, where a stored permutation would be large, words are drawn at random
+and checked against the code found so far instead (stopping after many rejected draws).
+
+References
+----------
+J. H. Conway and N. J. A. Sloane, "Lexicographic codes: error-correcting codes from game
+theory", IEEE Trans. Inform. Theory 32 (1986) 337-348 (lexicodes; binary lexicodes are linear;
+the Golay code as a lexicode).
+F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, North-Holland
+1977, ch. 1-2 (Hamming balls, Gray codes, the extended Golay code).
+"""
+
+from __future__ import annotations
+
+import secrets
+import time
+from typing import Any, Callable
+
+import numpy as np
+
+from codesearch.errors import ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import SearchResult, Status
+from codesearch.search import _wordspace as ws
+
+__all__ = ["OPTIONS", "ORDERS", "run", "greedy_indices"]
+
+#: Options of the ``greedy`` method.
+OPTIONS = frozenset({"order", "restarts", "size"})
+
+#: Scan orders: name -> kernel order code.
+ORDERS = {"lex": 0, "gray": 1, "random": 2}
+
+#: Largest space scanned with a marking bitset (2^28 bits = 32 MiB).
+MAX_MARK_SPACE = 2**28
+#: Largest space for which a random order is stored as an explicit permutation (32 MiB).
+MAX_PERM_SPACE = 2**22
+#: Largest code built by random sampling (pairwise checks).
+MAX_SAMPLED = 2**16
+#: Random sampling stops after this many consecutive rejected draws (common practice: a
+#: free region of 1/64 of the space is then missed with probability about e^-8).
+_SAMPLE_FAILS = 512
+#: Draws per sampling kernel call, between time-limit checks.
+_SAMPLE_DRAWS = 4096
+#: Largest number of stored ball patterns (memory ~ 8 bytes x radius per pattern).
+MAX_BALL = 2**23
+#: Scan positions per kernel call, between time-limit checks.
+_CHUNK = 1 << 20
+
+
+def _resolve_seed(seed: int | None) -> int:
+    if seed is None:
+        return secrets.randbits(63)
+    if not isinstance(seed, (int, np.integer)) or seed < 0:
+        raise ParameterError(f"seed must be a non-negative integer, got {seed!r}")
+    return int(seed)
+
+
+def _rng_state(seed: int, stream: int) -> np.ndarray:
+    """xorshift64* state derived from (seed, stream) through numpy's SeedSequence (never 0)."""
+    word = np.random.SeedSequence([seed, stream]).generate_state(1, dtype=np.uint64)
+    return np.array([word[0] | np.uint64(1)], dtype=np.uint64)
+
+
+def _check_size(size: Any) -> int | None:
+    if size is None:
+        return None
+    if isinstance(size, bool) or not isinstance(size, (int, np.integer)) or size < 1:
+        raise ParameterError(f"size must be a positive integer, got {size!r}")
+    return int(size)
+
+
+def greedy_indices(
+    params: Params,
+    order: str = "lex",
+    *,
+    seed: int = 0,
+    stream: int = 0,
+    deadline: float | None = None,
+    progress: Callable[[dict[str, Any]], None] | None = None,
+) -> tuple[np.ndarray, bool, int]:
+    """Greedy code of a cell as sorted-by-scan word indices.
+
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    order : {"lex", "gray", "random"}
+        Scan order.
+    seed, stream : int
+        Randomness for ``order="random"`` (ignored otherwise).
+    deadline : float, optional
+        ``time.perf_counter()`` value after which the scan stops early.
+    progress : callable, optional
+        Receives ``{"incumbent", "nodes", "elapsed"}`` after each chunk.
+
+    Returns
+    -------
+    (indices, complete, scanned)
+        The kept word indices in scan order, whether the whole space was scanned (only then
+        is the code the greedy code of that order) and the number of scan positions done.
+    """
+    from codesearch import _kernels as K
+
+    if order not in ORDERS:
+        raise ParameterError(f"unknown greedy order {order!r}; choose from {', '.join(ORDERS)}")
+    q, n, d = params.q, params.n, params.d
+    space = q**n
+    pw = ws.powers(q, n)
+    radius = d - 1
+    start = time.perf_counter()
+    ball = ws.ball_size(q, n, radius)
+    # the code fits in space / ball(floor((d-1)/2)) words (sphere packing), a safe capacity
+    cap = max(1, space // ws.ball_size(q, n, radius // 2))
+    kind = ORDERS[order]
+    if order == "random" and space > MAX_PERM_SPACE:
+        # pairwise checks cost O(M^2): stop at MAX_SAMPLED words (the code is still valid)
+        rng = _rng_state(seed, stream)
+        out = np.empty(min(cap, MAX_SAMPLED), dtype=np.int64)
+        fail_state = np.zeros(1, dtype=np.int64)
+        count = 0
+        draws = 0
+        while True:
+            before = fail_state[0]
+            count = K.heur_greedy_sample(q, n, d, space, _SAMPLE_FAILS, _SAMPLE_DRAWS,
+                                         fail_state, rng, out, count)
+            draws += _SAMPLE_DRAWS
+            if fail_state[0] >= _SAMPLE_FAILS or count >= out.shape[0]:
+                break
+            if deadline is not None and time.perf_counter() > deadline:
+                break
+        return out[:count].copy(), False, draws
+    if space > MAX_MARK_SPACE:
+        raise ParameterError(
+            f"{params}: {space} words is too many to scan in {order} order "
+            f"(limit {MAX_MARK_SPACE}); use order 'random'"
+        )
+    if ball > MAX_BALL:
+        raise ParameterError(f"{params}: Hamming ball of {ball} words is too large to mark")
+    perm = np.empty(0, dtype=np.int64)
+    if kind == 2:
+        gen = np.random.Generator(np.random.PCG64(np.random.SeedSequence([seed, stream])))
+        perm = gen.permutation(space).astype(np.int64)
+    blocked = np.zeros((space + 63) // 64, dtype=np.uint64)
+    out = np.empty(min(cap, space), dtype=np.int64)
+    if q == 2:
+        masks = ws.ball_masks(n, radius)
+    else:
+        pat_ptr, pat_pos, pat_add = ws.ball_patterns(q, n, radius)
+    count = 0
+    t = 0
+    while t < space:
+        t1 = min(space, t + _CHUNK)
+        if q == 2:
+            count = K.heur_greedy_mark_binary(t, t1, kind, n, perm, masks, blocked, out, count)
+        else:
+            count = K.heur_greedy_mark_qary(t, t1, kind, q, n, pw, perm, pat_ptr, pat_pos,
+                                            pat_add, blocked, out, count)
+        t = t1
+        if progress is not None:
+            progress({"incumbent": count, "nodes": t, "elapsed": time.perf_counter() - start})
+        if deadline is not None and time.perf_counter() > deadline and t < space:
+            break
+    return out[:count].copy(), t >= space, t
+
+
+def _make_code(idx: np.ndarray, params: Params) -> Code:
+    return Code(ws.indices_to_words(np.sort(idx), params.q, params.n), params.q)
+
+
+def run(
+    params: Params,
+    *,
+    time_limit: float | None = None,
+    seed: int | None = None,
+    progress: Callable[[dict[str, Any]], None] | None = None,
+    order: str = "random",
+    restarts: int | None = None,
+    size: int | None = None,
+) -> SearchResult:
+    """Greedy packing in a scan order, restarted for random orders; keeps the largest code.
+
+    Parameters
+    ----------
+    order : {"random", "lex", "gray"}
+        Scan order (lex and gray are deterministic: one pass).
+    restarts : int, optional
+        Number of random-order passes (default: until ``time_limit``, or 10 without one).
+    size : int, optional
+        Stop as soon as a code of this size is found (recorded as the target).
+
+    Returns
+    -------
+    SearchResult
+        Status FEASIBLE (UNKNOWN if time ran out before any word was kept).
+    """
+    start = time.perf_counter()
+    target = _check_size(size)
+    seed_used = _resolve_seed(seed)
+    deadline = None if time_limit is None else start + time_limit
+    if order not in ORDERS:
+        raise ParameterError(f"unknown greedy order {order!r}; choose from {', '.join(ORDERS)}")
+    if restarts is not None and (not isinstance(restarts, (int, np.integer)) or restarts < 1):
+        raise ParameterError(f"restarts must be a positive integer, got {restarts!r}")
+    passes = 1 if order != "random" else (restarts or (None if time_limit else 10))
+    best = np.empty(0, dtype=np.int64)
+    scanned_total = 0
+    done = 0
+    sizes = []
+    while passes is None or done < passes:
+        idx, complete, scanned = greedy_indices(params, order, seed=seed_used, stream=done,
+                                                deadline=deadline, progress=None)
+        done += 1
+        scanned_total += scanned
+        sizes.append(int(idx.size))
+        if idx.size > best.size:
+            best = idx
+            if progress is not None:
+                progress({"incumbent": int(best.size), "nodes": scanned_total,
+                          "elapsed": time.perf_counter() - start})
+        if target is not None and best.size >= target:
+            break
+        if deadline is not None and time.perf_counter() > deadline:
+            break
+    code = _make_code(best, params) if best.size else None
+    return SearchResult(
+        params=params,
+        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
+        code=code,
+        upper=None,
+        method="greedy",
+        seconds=time.perf_counter() - start,
+        nodes=scanned_total,
+        seed=seed_used if order == "random" else None,
+        settings={"order": order, "passes": done, "restarts": restarts, "time_limit": time_limit,
+                  "pass_sizes": sizes[:100], "size": target, "version": _version()},
+        target=target,
+    )
+
+
+def _version() -> str:
+    from codesearch._version import __version__
+
+    return __version__

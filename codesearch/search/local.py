@@ -1,0 +1,215 @@
+"""Local search for codes: min-conflicts tabu search at a fixed size, raising the size.
+
+Problem
+-------
+Find a code of ``M`` words in ``[q]^n`` with minimum distance ``>= d`` by minimising the number
+of *conflicts* (pairs of words closer than ``d``) over sets of ``M`` words. A conflict-free set
+is a code; the search then adds one word and continues at ``M + 1``. Heuristic: every code it
+returns is verified, and it never claims optimality (status FEASIBLE).
+
+Method
+------
+Start from a random greedy code. A move takes a random word in conflict and replaces it by the
+best of its ``n(q-1)`` neighbours at distance 1 and a few uniform random words (fewest
+conflicts with the rest of the code, ties at random), never moving back to a recently removed
+word unless the move clears all its conflicts (tabu list). Conflicts are counted either
+
+* by *ball counts* (``q^n <= 2^24`` and small balls): ``count[y]`` = number of codewords within
+  ``d - 1`` of ``y``, updated over two balls per move, so scoring a candidate costs O(1); memory
+  2 bytes per word of the space; or
+* pairwise against the current ``M`` words (large balls or large spaces); memory O(M).
+
+For binary cells with even ``d`` the search runs on ``(n-1, d-1)`` and appends a parity bit:
+a binary code of odd minimum distance ``d-1`` extended by an overall parity bit has minimum
+distance ``d``, and puncturing a distance-``d`` code gives distance ``>= d-1``, so both cells
+have the same largest size (MacWilliams and Sloane, ch. 1, section 9; common practice).
+
+Randomness comes from one seeded xorshift64* stream, so a seed reproduces a run exactly
+(given the same sequence of kernel calls, i.e. a step budget instead of a time limit).
+
+References
+----------
+F. Glover, "Tabu search - part I", ORSA J. Computing 1 (1989) 190-206.
+S. Minton, M. D. Johnston, A. B. Philips and P. Laird, "Minimizing conflicts: a heuristic
+repair method for constraint satisfaction", Artificial Intelligence 58 (1992) 161-205.
+F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, North-Holland 1977.
+"""
+
+from __future__ import annotations
+
+import time
+from typing import Any, Callable
+
+import numpy as np
+
+from codesearch.errors import ParameterError
+from codesearch.model import Code, Params
+from codesearch.results import SearchResult, Status
+from codesearch.search import _wordspace as ws
+from codesearch.search import greedy
+
+__all__ = ["OPTIONS", "run"]
+
+OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
+
+#: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
+MAX_COUNT_SPACE = 2**24
+#: Largest code the local search holds.
+MAX_WORDS = 2**20
+#: Random candidate words scored per move, besides the distance-1 neighbours.
+_N_RANDOM = 8
+#: Moves per kernel call, between time-limit checks.
+_CHUNK = 4000
+
+
+def _work_cell(params: Params, parity: bool) -> tuple[Params, bool]:
+    if parity and params.q == 2 and params.d % 2 == 0 and params.n >= 2:
+        return Params(2, params.n - 1, params.d - 1), True
+    return params, False
+
+
+def _extend_parity(words: np.ndarray) -> np.ndarray:
+    parity = (words.sum(axis=1) % 2).astype(np.uint8)
+    return np.concatenate([words, parity[:, None]], axis=1)
+
+
+def run(
+    params: Params,
+    *,
+    time_limit: float | None = None,
+    seed: int | None = None,
+    progress: Callable[[dict[str, Any]], None] | None = None,
+    size: int | None = None,
+    steps: int | None = None,
+    tenure: int = 10,
+    parity: bool = True,
+) -> SearchResult:
+    """Tabu search raising the code size while it succeeds.
+
+    Parameters
+    ----------
+    size : int, optional
+        Stop once a code of this size is found (the target).
+    steps : int, optional
+        Moves allowed at one size without success before giving up (default 2 000 000 with no
+        time limit, unlimited with one). A step budget with no time limit makes a run exactly
+        reproducible from its seed.
+    tenure : int
+        Length of the tabu list of recently removed words.
+    parity : bool
+        For binary cells with even d, search the punctured cell and extend by parity.
+
+    Returns
+    -------
+    SearchResult
+        FEASIBLE with the largest conflict-free code met.
+    """
+    from codesearch import _kernels as K
+
+    start = time.perf_counter()
+    target = greedy._check_size(size)
+    seed_used = greedy._resolve_seed(seed)
+    if steps is not None and (not isinstance(steps, (int, np.integer)) or steps < 1):
+        raise ParameterError(f"steps must be a positive integer, got {steps!r}")
+    if not isinstance(tenure, (int, np.integer)) or not 0 <= tenure <= 10_000:
+        raise ParameterError(f"tenure must be an integer in 0..10000, got {tenure!r}")
+    if steps is None and time_limit is None:
+        steps = 2_000_000
+    deadline = None if time_limit is None else start + time_limit
+    cell, extended = _work_cell(params, bool(parity))
+    q, n, d = cell.q, cell.n, cell.d
+    space = q**n
+    pw = ws.powers(q, n)
+    radius = d - 1
+    ball = ws.ball_size(q, n, radius)
+    # sphere packing: no code exceeds space / |ball(floor((d-1)/2))|; beyond 2^20 words a
+    # local search is hopeless anyway, and the cap bounds the memory of the word arrays
+    cap = min(space // ws.ball_size(q, n, radius // 2), MAX_WORDS)
+
+    # initial code: one random greedy pass (stream 0 of the seed)
+    init, _, _ = greedy.greedy_indices(cell, "random", seed=seed_used, stream=0,
+                                       deadline=deadline)
+    best = init.copy()
+    M = int(init.size)
+    n_cand = n * (q - 1) + _N_RANDOM
+    # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
+    # conflict, typically a few) x candidates x M distances: take the cheaper
+    use_counts = space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
+    mode = 1 if use_counts else 2
+    if mode == 1:
+        cap = min(cap, 65534)  # counts are uint16 and never exceed the code size
+    empty = np.empty(0, dtype=np.int64)
+    masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
+    counts = np.zeros(space if mode == 1 else 0, dtype=np.uint16)
+    if mode == 1:
+        if q == 2:
+            masks = ws.ball_masks(n, radius)
+        else:
+            pat_ptr, pat_pos, pat_add = ws.ball_patterns(q, n, radius)
+    words = np.zeros(cap + 1, dtype=np.int64)
+    words[:M] = init
+    conf = np.zeros(cap + 1, dtype=np.int32)
+    tabu = np.full(tenure + 1, -1, dtype=np.int64)
+    tabu[0] = 0
+    rng = greedy._rng_state(seed_used, 1)
+    if mode == 1:
+        total = K.heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos,
+                                  pat_add, counts)
+        assert total == 0  # a greedy code has no conflicts
+    else:
+        total = 0  # a greedy code has no conflicts: conf = 0 is exact, no O(M^2) recount
+    moves = 0
+    level_moves = 0
+    levels: list[int] = []
+    out_of_time = False
+    while M < cap and (target is None or best.size < target):
+        total += K.heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr,
+                                   pat_pos, pat_add, counts, rng, 4 * _N_RANDOM)
+        M += 1
+        level_moves = 0
+        while total > 0:
+            # about 5e7 elementary operations per kernel call, so the clock is read often
+            work = 2 * ball + M * n_cand if mode == 1 else 4 * n_cand * M
+            chunk = max(1, min(_CHUNK, 50_000_000 // work))
+            if steps is not None:
+                chunk = min(chunk, steps - level_moves)
+            if chunk <= 0:
+                break
+            total, done = K.heur_local_steps(q, n, d, space, M, words, conf, total, mode, pw,
+                                             masks, pat_ptr, pat_pos, pat_add, counts, tabu,
+                                             rng, _N_RANDOM, chunk)
+            level_moves += done
+            moves += done
+            if deadline is not None and time.perf_counter() > deadline:
+                out_of_time = total > 0
+                break
+        levels.append(level_moves)
+        if total > 0:
+            break
+        best = words[:M].copy()
+        if progress is not None:
+            progress({"incumbent": int(best.size), "nodes": moves,
+                      "elapsed": time.perf_counter() - start})
+        if deadline is not None and time.perf_counter() > deadline:
+            out_of_time = True
+            break
+    cwords = ws.indices_to_words(np.sort(best), q, n)
+    if extended:
+        cwords = _extend_parity(cwords)
+    code = Code(cwords, params.q) if best.size else None
+    return SearchResult(
+        params=params,
+        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
+        code=code,
+        upper=None,
+        method="local",
+        seconds=time.perf_counter() - start,
+        nodes=moves,
+        seed=seed_used,
+        settings={"size": target, "steps": steps, "tenure": int(tenure), "parity": extended,
+                  "searched_cell": [q, n, d], "scoring": "ball-counts" if mode == 1 else
+                  "pairwise", "start_size": int(init.size), "moves_per_size": levels[-50:],
+                  "stopped_by_time": out_of_time, "time_limit": time_limit,
+                  "version": greedy._version()},
+        target=target,
+    )

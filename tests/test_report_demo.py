@@ -1,0 +1,26 @@
+"""The demo runs end to end (on a shrunken scenario with the test-only lexicode method)."""
+
+from __future__ import annotations
+
+
+from codesearch import demo
+from codesearch.codefile import read_code
+from codesearch.verify import min_distance
+import table_stub_lex
+
+
+def test_demo_end_to_end(tmp_path, monkeypatch, capsys):
+    table_stub_lex.register()
+    monkeypatch.setitem(demo.SCENARIO, "n", range(7, 9))
+    monkeypatch.setitem(demo.SCENARIO, "d", range(3, 5))
+    monkeypatch.setitem(demo.SCENARIO, "budget", 0.5)
+    monkeypatch.setattr(demo, "_methods", lambda: ["stub-lex"])
+    assert demo.run(str(tmp_path)) == 0
+    out = capsys.readouterr().out
+    assert "| n \\ d |" in out and "HTML report" in out
+    html = (tmp_path / "punch-tags.html").read_text()
+    assert 'id="c-2-8-3"' in html
+    tags = read_code(str(tmp_path / "tags-8-holes-d3.code")).code
+    # The binary lexicode of length 8, distance 3 has 2^4 = 16 words (a Hamming code padded
+    # by one coordinate; Conway-Sloane 1986), well short of A(8,3) = 20 (from memory).
+    assert tags.size == 16 and min_distance(tags) >= 3
