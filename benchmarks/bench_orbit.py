@@ -216,7 +216,7 @@ def main() -> None:
         print(f"{cell.q},{cell.n},{cell.d}: orbit {size} ({group}, {secs:.1f} s, "
               f"invariant-optimal={proven}) | networkx {peer}", flush=True)
     print()
-    print("| cell | target | orbit size | group | orbit s (median) | largest invariant proven "
+    print("| cell | target | orbit size | group | orbit s to best (median) | largest invariant proven "
           "| networkx size | networkx s | size ratio | source |")
     print("|---|---|---|---|---|---|---|---|---|---|")
     for cell, size, group, secs, proven, peer, ratio in rows:
