@@ -88,15 +88,18 @@ _PASSES = 3
 
 
 def three_point_cost(params: Params) -> float:
-    """Rough wall-clock estimate (seconds) of :func:`three_point_bound` on this machine.
+    """Estimated CPU seconds of :func:`three_point_bound` on this machine (one core).
 
-    Fitted on measured solves (benchmarks/bench_sdp.py): time grows roughly like ``n^4``
-    (the number of block entries times the triangles they touch).
+    Fitted on benchmarks/bench_sdp.py (binary grid n <= 28, d = 4..12, all passes
+    included): about 0.17 s at n = 17, 0.8 s at n = 22, 1.9 s at n = 26, 2.9 s at n = 29,
+    i.e. roughly ``3 (n / 29)^5.3``, with ``n + 1`` for odd ``d``. Wall time on a loaded
+    machine is larger (x2-4 measured while other jobs ran). ``inf`` where the bound does not
+    apply.
     """
-    if params.q != 2:
+    if params.q != 2 or params.d < 3:
         return math.inf
     n = params.n + (params.d % 2)
-    return 0.05 + 2.5 * (n / 28.0) ** 4
+    return 0.02 + 3.0 * (n / 29.0) ** 5.3
 
 
 def _sdp_cell(params: Params) -> tuple[int, int]:
