@@ -263,7 +263,6 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     from scipy.optimize import linprog
 
     t0 = time.perf_counter()
-    nv = len(data.triangles)
     rows = [a for a, (label, cv, rhs) in enumerate(data.rows) if label[0] == "delsarte"]
     single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
     col = {v: c for c, v in enumerate(single)}
@@ -275,6 +274,7 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
             a_ub[r, col[v]] = c / m0
         b_ub[r] = rhs / m0
     cvec = -np.array([data.objective[v] for v in single], dtype=float) / m0
+    # x[i,0,0] <= 1 helps HiGHS; its multipliers are not needed (absorbed by the caps)
     res = linprog(cvec, A_ub=a_ub, b_ub=b_ub, bounds=[(0, 1)] * len(single), method="highs")
     sol = {"status": f"lp:{res.status}", "float_value": float("nan"), "gap": 0.0}
     out = _certify_parts(data, [], [], sol)
@@ -287,7 +287,6 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
                 mus.append((a, Fraction(mu)))
         out = _certify_parts(data, [], mus, dict(sol, float_value=out["float_value"]))
     out["seconds"] = time.perf_counter() - t0
-    del nv
     return out
 
 
@@ -569,9 +568,10 @@ def _frac_str(x: Fraction) -> str:
 def _round_psd(zt: "Any") -> list[list[int]] | None:
     """Round a float PSD matrix to integers N (meaning N / 2**_ROUND_BITS) with N exactly PD.
 
-    The matrix is normalised to unit largest entry before rounding is not needed: entries
-    of the scaled dual blocks are O(1) by construction. The shift ``eps * I`` starts at the
-    size of the most negative eigenvalue and grows tenfold until exact LDL^T succeeds.
+    Rounding is absolute (grid 2**-_ROUND_BITS): the scaled dual blocks have entries of
+    order one or larger by construction, so little relative precision is lost. The shift
+    ``eps * I`` starts at the size of the most negative eigenvalue of the rounded matrix
+    (plus a 1e-12 margin) and grows tenfold until exact LDL^T proves positive definiteness.
     """
     import numpy as np
 
