@@ -63,16 +63,18 @@ def _one(kind: str, cells, args, workdir: str, rep: int) -> dict:
     if kind == "local":
         summary = run_table(store, cells, workers=args.workers, **kwargs)
     else:
+        import dask
         from distributed import LocalCluster
 
-        with LocalCluster(n_workers=args.workers, threads_per_worker=1, processes=True,
+        # Searches such as "auto" start processes of their own, which daemonic workers may not.
+        with dask.config.set({"distributed.worker.daemon": False}), LocalCluster(n_workers=args.workers, threads_per_worker=1, processes=True,
                           host="127.0.0.1", dashboard_address=None) as cluster:
             t0 = time.perf_counter()  # cluster start-up is not part of the table run
             summary = run_table(store, cells, scheduler=cluster.scheduler_address, **kwargs)
     wall = time.perf_counter() - t0
     out = {"kind": kind, "rep": rep, "wall": wall, "cells_per_min": len(cells) / wall * 60,
            "ran": summary.ran, "skipped": summary.skipped, "failed": summary.failed,
-           "errors": len(summary.errors)}
+           "errors": len(summary.errors), "first_errors": summary.errors[:3]}
     out.update(_score(store))
     return out
 

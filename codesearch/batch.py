@@ -21,12 +21,10 @@ Dask ``distributed`` documentation, "Futures" and "Setup" (https://distributed.d
 from __future__ import annotations
 
 import concurrent.futures as cf
-import math
 import multiprocessing
 import os
 import signal
 import time
-import traceback
 from dataclasses import dataclass, field
 from fractions import Fraction
 from types import MappingProxyType
@@ -108,6 +106,7 @@ class CellTask:
     seed: int
     known_lower: int = 0
     known_upper: int | None = None
+    sdp: bool = False
 
 
 def run_cell(task: CellTask) -> dict[str, Any]:
@@ -129,7 +128,7 @@ def run_cell(task: CellTask) -> dict[str, Any]:
         try:
             from codesearch.bounds import all_bounds
 
-            found = all_bounds(p)
+            found = all_bounds(p, sdp=True) if task.sdp else all_bounds(p)
         except (ImportError, AttributeError, NotImplementedError):
             found = None  # the bounds front end is not available in this installation
         except Exception as exc:  # a failing bound must not lose the cell's searches
@@ -203,8 +202,9 @@ def _store_outcome(store: Any, task: CellTask, out: Mapping[str, Any]) -> None:
             settings.setdefault("time_limit", s["time_limit"])
             settings.setdefault("cell_budget", task.budget)
             settings.setdefault("nodes", s["nodes"])
+            seed = s["seed"] if s["seed"] is not None else task.seed
             res = SearchResult(p, Status(s["status"]), code, s["upper"], s["method"],
-                               s["seconds"], s["nodes"], s["seed"], settings)
+                               s["seconds"], s["nodes"], seed, settings)
             store.add_search_result(res, exhaustive=s["exhaustive"])
             store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
                            status=s["status"], seed=task.seed)
@@ -341,6 +341,7 @@ def run_table(
     scheduler: str | None = None,
     seed: int = 0,
     bounds: bool = True,
+    sdp: bool = False,
     propagate: bool = True,
     progress: Progress | None = None,
 ) -> TableSummary:
@@ -365,6 +366,9 @@ def run_table(
         Run seed; each cell's seed is :func:`cell_seed` of it and is stored with its results.
     bounds, propagate : bool
         Run the bounds stage; propagate between cells after each finished cell.
+    sdp : bool
+        Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
+        already ran are not redone).
     progress : callable, optional
         Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
         ``finish``).
@@ -404,7 +408,7 @@ def run_table(
         crashes: dict[Params, int] = {}
         while pending or running:
             while pending and len(running) < slots:
-                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed)
+                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
                 if task is None:
                     summary.skipped += 1
                     emit({"event": "skip", "cell": None})
@@ -479,7 +483,7 @@ def _bounds_available() -> bool:
 
 
 def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds: bool,
-               seed: int) -> CellTask | None:
+               seed: int, sdp: bool = False) -> CellTask | None:
     """The work left on cell ``p`` (None when nothing is left)."""
     s = st.summary(p)
     if s.exact:
@@ -489,7 +493,8 @@ def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds
                  if (st.run_budget(p, spec.name) or 0.0) < budget)
     if not run_bounds and not todo:
         return None
-    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper)
+    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper,
+                    sdp)
 
 
 def _propagate(st: Any, cells: Sequence[Params], summary: TableSummary, emit: Progress) -> None:

@@ -158,6 +158,11 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
     p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
+    p.add_argument("--sdp", action="store_true",
+                   help="also Schrijver's three-point SDP bound (binary, d >= 3; slow)")
+    p.add_argument("--fast", action="store_true",
+                   help="double-precision LP only: no high-precision fallback for cells "
+                   "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
     p.add_argument("--certificate", metavar="FILE",
                    help="write the LP certificate of the (single) cell as JSON")
     _COMMANDS["bounds"] = _cmd_bounds
@@ -167,7 +172,8 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
     from codesearch.bounds import report
 
     return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
-                                     lp=not args.no_lp, certificate=args.certificate)
+                                     lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
+                                     certificate=args.certificate)
 
 
 # ----------------------------------------------------------------------------------- find
@@ -264,6 +270,7 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
     g.add_argument("--scheduler", help="Dask scheduler address, e.g. tcp://host:8786")
     p.add_argument("--seed", type=int, default=0, help="run seed (default 0)")
     p.add_argument("--no-bounds", action="store_true", help="skip the bounds stage")
+    p.add_argument("--sdp", action="store_true", help="bounds stage also tries the SDP bound")
     p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
     p.add_argument("--quiet", action="store_true", help="no live display")
     p.add_argument("--json", action="store_true", help="print a JSON summary")
@@ -281,7 +288,7 @@ def _cmd_table(args: argparse.Namespace) -> int:
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
-                  propagate=not args.no_propagate)
+                  sdp=args.sdp, propagate=not args.no_propagate)
     if args.quiet or args.json:
         summary = batch.run_table(args.store, cells, **kwargs)
     else:
@@ -381,18 +388,19 @@ def _add_plot(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
     p.add_argument("--no-lp", action="store_true", help="finite cells from closed forms only")
+    p.add_argument("--store", help="draw the cells of this results store instead "
+                   "(codesearch.report.plot_store)")
     p.add_argument("--out", default="rate-distance.png",
                    help="output file, .png, .svg or .pdf (default rate-distance.png)")
-    p.add_argument("--store", help="also draw the table stored here (codesearch.report.plot_store)")
     _COMMANDS["plot"] = _cmd_plot
 
 
 def _cmd_plot(args: argparse.Namespace) -> int:
     if args.store:
-        from codesearch import report
+        from codesearch import report as table_report
 
-        count = report.plot_store(args.store, args.out, q=args.q)
-        print(f"drew {count} cells to {args.out}")
+        count = table_report.plot_store(args.store, args.out, q=args.q)
+        print(f"{args.out} ({count} stored cells)")
         return 0
     from codesearch.bounds import report
 

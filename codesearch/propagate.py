@@ -35,7 +35,6 @@ construction) and Ch. 17 section 1 (elementary relations between values of A(n,d
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import Any, Callable, Iterable
 

@@ -353,40 +353,18 @@ def export_code(store_path: str, params: Params, out: str) -> int:
     return code.size
 
 
-def plot_store(store_path: str, out: str, *, q: int | None = None) -> int:
-    """Draw the stored table on the rate-distance picture: for each cell, relative distance
-    d/n against rate log_q(M)/n for the best code (dot) and the best upper bound (bar top).
-
-    Returns the number of cells drawn.
+def plot_store(store_path: str, out: str, *, q: int = 2) -> int:
+    """Draw the stored cells of alphabet ``q`` on the rate-distance picture
+    (:func:`codesearch.plot.save_rate_distance`): at d/n, a bar from the rate of the best
+    stored code to the rate of the best proven upper bound. Returns the number of cells drawn.
     """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
+    from codesearch.plot import save_rate_distance
     from codesearch.store import Store
 
     with Store(store_path, create=False) as st:
         rows = collect(st, q)
-    rows = [r for r in rows if r.lower or r.upper]
-    if not rows:
-        raise InputError(f"{store_path}: nothing stored to plot")
-    fig, ax = plt.subplots(figsize=(7, 5))
-    for qq in sorted({r.q for r in rows}):
-        sub = [r for r in rows if r.q == qq]
-        xs = [r.d / r.n for r in sub]
-        lo = [math.log(max(r.lower or 1, 1), qq) / r.n for r in sub]
-        up = [math.log(r.upper, qq) / r.n if r.upper else None for r in sub]
-        ax.scatter(xs, lo, s=14, label=f"q={qq}: best code")
-        for x, a, b in zip(xs, lo, up):
-            if b is not None:
-                ax.plot([x, x], [a, b], color="grey", lw=0.8)
-                ax.plot([x], [b], marker="_", color="black")
-    ax.set_xlabel("relative distance d/n")
-    ax.set_ylabel("rate log_q(M)/n")
-    ax.set_title("stored table: best codes (dots) and proven upper bounds (bars)")
-    ax.legend()
-    fig.tight_layout()
-    fig.savefig(out, dpi=120)
-    plt.close(fig)
-    return len(rows)
+    points = [(r.n, r.d, r.lower, r.upper) for r in rows if r.upper is not None]
+    if not points:
+        raise InputError(f"{store_path}: no stored cell with q={q} has a proven upper bound")
+    save_rate_distance(out, q, points, title=f"Stored table, q = {q}: {store_path}")
+    return len(points)

@@ -31,8 +31,9 @@ def test_local_run_fills_skips_and_resumes(tmp_path):
     path = tmp_path / "t.sqlite"
     cells = table_cells(2, range(3, 8), range(3, 5))
     events = []
+    # Without the bounds stage no cell settles, so the budget logic alone decides what reruns.
     out = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1,
-                    progress=events.append)
+                    bounds=False, progress=events.append)
     assert out.ran + out.skipped == len(cells) and not out.failed
     assert {"start", "submit", "done", "finish"} <= {e["event"] for e in events}
     with Store(path) as s:
@@ -42,12 +43,14 @@ def test_local_run_fills_skips_and_resumes(tmp_path):
         assert s.summary(Params(2, 7, 4)).lower >= 8
         counts = s.counts()
         assert s.audit() == []
-    again = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1)
+    again = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1,
+                      bounds=False)
     assert again.ran == 0 and again.skipped == len(cells)
     with Store(path) as s:
         assert s.counts() == counts
     # A larger budget reruns the searches (and adds no duplicate codes).
-    more = run_table(str(path), cells, budget=2.0, methods=["stub-lex"], workers=1)
+    more = run_table(str(path), cells, budget=2.0, methods=["stub-lex"], workers=1,
+                     bounds=False)
     assert more.ran > 0
     with Store(path) as s:
         assert s.counts()["codes"] == counts["codes"]
@@ -86,3 +89,31 @@ def test_dask_local_cluster(tmp_path, monkeypatch):
         # Lexicode sizes: A(6,3) >= 8 (shortened Hamming code; from memory).
         assert s.summary(Params(2, 6, 3)).lower == 8
         assert s.audit() == []
+
+
+def test_cell_bounds_stage_in_process(tmp_path, monkeypatch):
+    import codesearch.bounds
+    from codesearch.batch import CellTask, _store_outcome, run_cell
+    from codesearch.results import BoundResult
+    from codesearch.search import METHODS
+
+    def fake_all_bounds(p, sdp=False):
+        # Hamming bound for A(7,3): 2^7 / 8 = 16 (common practice); a certificate nobody can
+        # re-check; a linear-only bound that must not enter the table.
+        return {"hamming": BoundResult(p, 16, "hamming"),
+                "weird": BoundResult(p, 3, "weird", certificate={"kind": "unknown-kind"}),
+                "griesmer": BoundResult(p, 1, "griesmer", scope="linear")}
+
+    monkeypatch.setattr(codesearch.bounds, "all_bounds", fake_all_bounds, raising=False)
+    p = Params(2, 7, 3)
+    task = CellTask(p, 1.0, (METHODS["stub-lex"],), True, 5)
+    out = run_cell(task)
+    assert [b["method"] for b in out["bounds"]] == ["hamming", "weird", "griesmer"]
+    assert out["searches"][0]["status"] == "feasible" and not out["errors"]
+    with Store(tmp_path / "s.sqlite") as s:
+        _store_outcome(s, task, out)
+        summ = s.summary(p)
+        # The lexicode (7,3) is the Hamming code (Conway-Sloane 1986), meeting the bound.
+        assert (summ.lower, summ.upper, summ.upper_method) == (16, 16, "hamming")
+        assert s.run_budget(p, "bounds") is not None and s.run_budget(p, "stub-lex") == 1.0
+        assert s.counts()["bounds"] == 2  # hamming and the uncertified one; griesmer dropped

@@ -16,7 +16,6 @@ import subprocess
 import sys
 import time
 
-import pytest
 
 from codesearch.batch import table_cells
 from codesearch.model import Params

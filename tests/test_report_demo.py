@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import pathlib
 
 from codesearch import demo
 from codesearch.codefile import read_code
