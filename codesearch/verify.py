@@ -651,6 +651,7 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
                         add(tri(i + j - 2 * t, 0, 0), z * b)
                         add(tri(i, j, t), -z * b)
 
+    johnson_memo: dict = {}
     for mult in cert["multipliers"]:
         label = list(mult["row"])
         mu = parse_fraction(mult["value"])
@@ -668,6 +669,12 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
                 add(tri(i, 0, 0), -mu)
                 add(tri(j, 0, 0), -mu)
                 add(tri(i, j, t), mu)
+        elif label[0] == "weight":  # C(n,i) x[i,0,0] <= A(n,d,i) (Johnson)
+            i = int(label[1])
+            if not 1 <= i <= n:
+                return False, None, f"bad row {label}"
+            const += mu * _tp_johnson(n, (d + 1) // 2, i, johnson_memo)
+            add(tri(i, 0, 0), -mu * _tp_binom(n, i))
         elif label[0] == "delsarte":  # -sum_i C(n,i) K_k(i) x[i,0,0] <= 0
             k = int(label[1])
             if not 0 <= k <= n:
@@ -680,12 +687,11 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
         else:
             return False, None, f"unknown row {label}"
 
-    memo: dict = {}
     half = (d + 1) // 2
     for (a, b, c), r in coef.items():
         if r <= 0:
             continue
-        caps = sorted(1 if s == 0 else _tp_johnson(n, half, s, memo) for s in (a, b, c))
+        caps = sorted(1 if s == 0 else _tp_johnson(n, half, s, johnson_memo) for s in (a, b, c))
         p = (a + b + c) // 2
         shapes = math.factorial(n) // (
             math.factorial(p - a) * math.factorial(p - b) * math.factorial(p - c)
@@ -695,7 +701,8 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
     proven = math.floor(const)
     if claimed < proven:
         return False, None, f"claimed {claimed} but the certificate proves only {proven}"
-    return True, claimed, f"three-point SDP bound A({n0},{d0}) <= {proven} (exact {float(const):.6f})"
+    reason = f"three-point SDP bound A({n0},{d0}) <= {proven} (exact {float(const):.6f})"
+    return True, claimed, reason
 
 
 CERTIFICATE_CHECKERS["three-point-sdp"] = check_three_point_certificate

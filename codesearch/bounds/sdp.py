@@ -14,8 +14,9 @@ of distances, see :mod:`codesearch.bounds.terwilliger`):
                                 ( sum_t beta[i,j,k,t] (x[i+j-2t,0,0] - x[i,j,t]) )_{i,j}     PSD,
 
 with the named additions used in the literature where they are valid: Delsarte's linear
-inequalities (always), and for even ``d`` the restriction to even distances (some largest
-code has only even distances). For odd ``d`` the cell is bounded through
+inequalities and ``A_i <= A(n, d, i)`` with Johnson's bound for constant-weight codes
+(always valid), and for even ``d`` the restriction to even distances (some largest code has
+only even distances). For odd ``d`` the cell is bounded through
 ``A(n, d) = A(n + 1, d + 1)``.
 
 Rigorous rounding
@@ -34,7 +35,8 @@ every code the corresponding ``x`` satisfies all constraints and ``0 <= x_v <= u
 where the last sum absorbs whatever dual infeasibility rounding left, ``u_v`` being a
 proven cap (:func:`~codesearch.bounds.terwilliger.variable_cap`, from Johnson's bound on
 constant-weight codes; the plain cap 1 cost thousands on cells like A(28,12)). Everything
-on the right is computed with integers; the certified bound is its floor. :func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
+on the right is computed with integers; the certified bound is its floor.
+:func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
 Delsarte's LP dual is a dual solution of the same program (Delsarte rows only, no blocks);
 it is certified the same way and kept when the semidefinite dual certifies less.
 
@@ -252,7 +254,8 @@ def solve_three_point(
 
 
 def _delsarte_pass(data: Any, m0: float) -> dict:
-    """Certify Delsarte's LP inside the same program (no PSD blocks, Delsarte rows only).
+    """Certify Delsarte's LP inside the same program (no PSD blocks; the Delsarte rows and
+    the constant-weight rows ``A_i <= A(n,d,i)``, i.e. the LP strengthened as usual).
 
     The three-point program contains Delsarte's inequalities, so the LP dual is a dual
     solution of it too; certifying it the same way guarantees the result is never weaker
@@ -263,7 +266,8 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     from scipy.optimize import linprog
 
     t0 = time.perf_counter()
-    rows = [a for a, (label, cv, rhs) in enumerate(data.rows) if label[0] == "delsarte"]
+    kinds = ("delsarte", "weight")
+    rows = [a for a, (label, _cv, _rhs) in enumerate(data.rows) if label[0] in kinds]
     single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
     col = {v: c for c, v in enumerate(single)}
     a_ub = np.zeros((len(rows), len(single)))
