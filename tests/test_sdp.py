@@ -207,6 +207,8 @@ def test_golay_cells():
     ],
 )
 def test_published_three_point_values(n, d, published):
+    # The program here adds the rows A_i <= A(n,d,i) to Schrijver's, so it could only be
+    # lower; on these cells it reproduces the published values exactly.
     res = three_point_bound(Params(2, n, d))
     assert res.certified
     assert res.value == published

@@ -37,8 +37,9 @@ proven cap (:func:`~codesearch.bounds.terwilliger.variable_cap`, from Johnson's 
 constant-weight codes; the plain cap 1 cost thousands on cells like A(28,12)). Everything
 on the right is computed with integers; the certified bound is its floor.
 :func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
-Delsarte's LP dual is a dual solution of the same program (Delsarte rows only, no blocks);
-it is certified the same way and kept when the semidefinite dual certifies less.
+The dual of Delsarte's LP (with the constant-weight rows) is a dual solution of the same
+program (those rows only, no blocks); it is certified the same way and kept when the
+semidefinite dual certifies less.
 
 Solver choice (measured on this machine, see benchmarks/bench_sdp.py)
 ------------------------------------------------------------------
