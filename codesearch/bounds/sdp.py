@@ -194,7 +194,8 @@ def solve_three_point(
     ``certificate`` (JSON-ready, without the target cell), ``float_value`` (the solver's
     primal objective in the kept pass), ``exact_float`` (the exact bound as a float),
     ``gap`` (relative primal-dual gap reported by the solver), ``passes`` (per-pass
-    summaries), ``seconds`` and ``reason``.
+    summaries), ``seconds``, ``check_seconds`` (the independent re-check in
+    :mod:`codesearch.verify`, run before returning) and ``reason``.
     """
     import numpy as np
 
@@ -251,6 +252,15 @@ def solve_three_point(
             "passes": len(passes),
             "round_bits": _ROUND_BITS,
         }
+        # The independent checker re-derives everything; disagreement is a bug here.
+        from codesearch.errors import VerificationError
+        from codesearch.verify import check_certificate
+
+        t_check = time.perf_counter()
+        valid, bound, reason = check_certificate(dict(best["certificate"], q=2, n=n, d=d))
+        best["check_seconds"] = time.perf_counter() - t_check
+        if not valid or bound != best["value"]:
+            raise VerificationError(f"three-point certificate for ({n},{d}) rejected: {reason}")
     return best
 
 
