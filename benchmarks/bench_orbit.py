@@ -11,6 +11,7 @@ Timings are medians over ``--repeat`` runs of the orbit search (the peer runs on
 slow side). Run from the worktree root::
 
     PYTHONPATH=$PWD python benchmarks/bench_orbit.py [--repeat 3] [--cells 16,6 20,10 q4:5,3]
+    PYTHONPATH=$PWD python benchmarks/bench_orbit.py --auto 60   # the portfolio instead
 
 Target values are published best-known values of A_q(n,d); sources are named per cell.
 """
@@ -96,7 +97,7 @@ def run_orbit(cell: Cell, budget: float) -> tuple[int, str, float, bool]:
         if left <= 0.5:
             break
         try:
-            res = search(params, "orbit", group=spec, time_limit=left)
+            res = search(params, "orbit", group=spec, time_limit=left, size=cell.target or None)
         except ParameterError as exc:
             print(f"  {spec}: {exc}")
             continue
@@ -156,7 +157,7 @@ def _peer_child(q, n, d, conn):
 
 
 def run_peer(cell: Cell, budget: float) -> tuple[str, int | None, float | None]:
-    ctx = mp.get_context("fork")
+    ctx = mp.get_context("spawn")  # a forked child could inherit numba worker threads
     parent, child = ctx.Pipe()
     proc = ctx.Process(target=_peer_child, args=(cell.q, cell.n, cell.d, child))
     proc.start()
@@ -169,11 +170,22 @@ def run_peer(cell: Cell, budget: float) -> tuple[str, int | None, float | None]:
     return out
 
 
+def run_auto(cell: Cell, budget: float) -> None:
+    """One portfolio run on the cell (reports what each step reached)."""
+    params = Params(cell.q, cell.n, cell.d)
+    res = search(params, "auto", time_limit=budget, seed=0)
+    s = res.settings
+    print(f"| {params} | {cell.target or '-'} | {res.size} | {res.upper} | {res.status.value} | "
+          f"{s['lower_method']} | {s['upper_method']} | {res.seconds:.1f} |", flush=True)
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeat", type=int, default=1)
     ap.add_argument("--cells", nargs="*", help="cells as N,D or qQ:N,D (default: all)")
     ap.add_argument("--no-peer", action="store_true")
+    ap.add_argument("--auto", type=float, metavar="SECONDS",
+                    help="instead: run method auto with this budget on each cell")
     args = ap.parse_args()
     chosen = CELLS
     if args.cells:
@@ -183,6 +195,12 @@ def main() -> None:
             n, d = nd.split(",")
             keys.add((int(q[1:]) if q else 2, int(n), int(d)))
         chosen = [c for c in CELLS if (c.q, c.n, c.d) in keys]
+    if args.auto:
+        print("| cell | target | auto size | upper | status | lower_method | upper_method | s |")
+        print("|---|---|---|---|---|---|---|---|")
+        for cell in chosen:
+            run_auto(cell, args.auto)
+        return
     rows = []
     for cell in chosen:
         runs = [run_orbit(cell, BUDGET) for _ in range(args.repeat)]

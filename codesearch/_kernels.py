@@ -533,6 +533,29 @@ def clique_greedy(adj, weights, n, starts):
 
 
 @nb.njit(cache=True)
+def clique_prepare(adj, weights, n, starts):
+    """Set-up of a search in one call (one cache load instead of four): degeneracy order,
+    relabelled graph and weights, best greedy clique (relabelled vertices) and the number of
+    greedy colour classes of the whole relabelled graph (which bounds the clique size, hence
+    the stack depth)."""
+    order = clique_degeneracy_order(adj, n)
+    padj = clique_permute(adj, order, n)
+    pw = np.empty(n, np.int64)
+    for i in range(n):
+        pw[i] = weights[order[i]]
+    gw, gclique = clique_greedy(padj, pw, n, starts)
+    nwords = padj.shape[1]
+    root = np.zeros((1, nwords), np.uint64)
+    for v in range(n):
+        root[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
+    classes = clique_colour_level(padj, np.ones(n, np.int64), root, np.empty((1, n), np.int64),
+                                  np.empty((1, n), np.int64), np.empty(1, np.int64),
+                                  np.empty(1, np.int64), 0, -1, np.empty(nwords, np.uint64),
+                                  np.empty(nwords, np.uint64))
+    return order, padj, pw, gw, gclique, classes
+
+
+@nb.njit(cache=True)
 def code_adjacency(packed, planes, limbs, d):
     """Bitset graph on packed words: i ~ j iff i != j and their Hamming distance is >= d.
 
@@ -699,18 +722,21 @@ def heur_greedy_mark_qary(t0, t1, kind, q, n, pw, perm, pat_ptr, pat_pos, pat_ad
 
 
 @nb.njit(
-    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.uint64[:], nb.int64[:],
-             nb.int64),
+    nb.int64(nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:],
+             nb.uint64[:], nb.int64[:], nb.int64),
     cache=True,
 )
-def heur_greedy_sample(q, n, d, space, max_fail, rng, out, count):
+def heur_greedy_sample(q, n, d, space, max_fail, max_draws, fail_state, rng, out, count):
     """Random greedy for spaces too large to mark: draw words, keep those at distance >= d.
 
-    Stops after ``max_fail`` consecutive rejected draws or when ``out`` is full; pairwise
-    checks only, so memory is the code itself.
+    Stops after ``max_fail`` consecutive rejected draws (counted in ``fail_state[0]`` across
+    calls), when ``out`` is full, or after ``max_draws`` draws in this call (so the caller can
+    check a clock). Pairwise checks only: memory is the code itself.
     """
-    fails = 0
-    while fails < max_fail and count < out.shape[0]:
+    fails = fail_state[0]
+    draws = 0
+    while fails < max_fail and count < out.shape[0] and draws < max_draws:
+        draws += 1
         x = heur_randint(rng, space)
         ok = True
         for i in range(count):
@@ -723,6 +749,7 @@ def heur_greedy_sample(q, n, d, space, max_fail, rng, out, count):
             fails = 0
         else:
             fails += 1
+    fail_state[0] = fails
     return count
 
 

@@ -158,6 +158,11 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
     p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
+    p.add_argument("--sdp", action="store_true",
+                   help="also Schrijver's three-point SDP bound (binary, d >= 3; slow)")
+    p.add_argument("--fast", action="store_true",
+                   help="double-precision LP only: no high-precision fallback for cells "
+                   "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
     p.add_argument("--certificate", metavar="FILE",
                    help="write the LP certificate of the (single) cell as JSON")
     _COMMANDS["bounds"] = _cmd_bounds
@@ -167,7 +172,8 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
     from codesearch.bounds import report
 
     return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
-                                     lp=not args.no_lp, certificate=args.certificate)
+                                     lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
+                                     certificate=args.certificate)
 
 
 # ----------------------------------------------------------------------------------- find

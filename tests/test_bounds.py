@@ -314,3 +314,93 @@ def test_registry_and_errors():
         upper_bound((2, 5, 3))
     with pytest.raises(ParameterError):
         upper_bound(Params(2, 5000, 3))
+
+
+@pytest.mark.parametrize("m", [5, 6])
+def test_lp_exact_on_long_hamming_codes(m):
+    # Hamming codes are perfect (MacWilliams-Sloane ch. 6): A(2^m-1, 3) = 2^(2^m-1-m), and
+    # the LP lies between the code size and the sphere-packing bound, so it equals it. These
+    # values are beyond double precision's reach; the high-precision simplex certifies them.
+    n = 2**m - 1
+    r = delsarte.delsarte_lp(Params(2, n, 3))
+    assert r.certified and r.value == 2 ** (n - m)
+    assert verify.check_certificate(r.certificate)[:2] == (True, r.value)
+
+
+def test_lp_distance_two_long():
+    # A(n,2) = 2^(n-1) (even-weight code; common practice); the LP reaches it exactly.
+    r = delsarte.delsarte_lp(Params(2, 64, 2))
+    assert r.certified and r.value == 2**63
+
+
+def test_fast_path_leaves_hard_cells_uncertified_not_wrong():
+    # Without the fallback a cell may stay uncertified, but it never enters ``upper``.
+    r = delsarte.delsarte_lp(Params(2, 100, 30), exact_fallback=False)
+    if not r.certified:
+        assert not r.usable
+        assert upper_bound(Params(2, 100, 30), lp_fallback=False).method != "delsarte-lp"
+    full = delsarte.delsarte_lp(Params(2, 100, 30))
+    assert full.certified and verify.check_certificate(full.certificate)[0]
+
+
+@pytest.mark.slow
+def test_lp_exact_on_hamming_127():
+    # [127,120,3] Hamming code is perfect: the LP equals 2^120 (MacWilliams-Sloane ch. 6).
+    r = delsarte.delsarte_lp(Params(2, 127, 3))
+    assert r.certified and r.value == 2**120
+
+
+def _extend(code):
+    """Append an overall parity bit (MacWilliams-Sloane ch. 1: odd d becomes d + 1)."""
+    from codesearch.model import Code
+
+    w = code.words.astype(np.int64)
+    return Code(np.hstack([w, w.sum(axis=1, keepdims=True) % 2]), 2)
+
+
+@pytest.mark.parametrize("name,build,d", [
+    ("golay23", golay23, 7),
+    ("golay24", lambda: _extend(golay23()), 8),
+    ("hamming15", lambda: hamming_code(4), 3),
+    ("hamming16", lambda: _extend(hamming_code(4)), 4),
+    ("rm1_4", lambda: reed_muller_1(4), 8),
+    ("rm2_4", lambda: reed_muller_2(4), 4),
+])
+def test_extra_inequalities_hold_on_real_codes(name, build, d):
+    # Each extra inequality is claimed per codeword (see extra_inequalities): check it on the
+    # distance distribution seen from every codeword of well-known codes.
+    code = build()
+    n = code.n
+    w = code.words.astype(np.int64)
+    for c in range(0, code.size, max(1, code.size // 64)):
+        dist = (w != w[c]).sum(axis=1)
+        counts = np.bincount(dist, minlength=n + 1)
+        for fam, idx, coeffs, rhs in delsarte.extra_inequalities(n, d):
+            lhs = sum(a * int(counts[i]) for i, a in coeffs.items())
+            assert lhs <= rhs, (name, fam, idx)
+
+
+def test_public_api_and_lazy_imports():
+    import subprocess
+    import sys
+
+    import codesearch.bounds as b
+
+    assert {"upper_bound", "all_bounds", "gv_lower_bound", "cell_summary", "BOUNDS",
+            "compute_bound", "best_lp_certificate"} <= set(b.__all__)
+    # Importing the front end must not load scipy, highspy or matplotlib (common practice for
+    # a fast CLI; the project rule is that imports stay cheap).
+    code = ("import sys, codesearch.bounds, codesearch.plot; "
+            "print(any(m in sys.modules for m in ('scipy', 'highspy', 'matplotlib')))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_qary_johnson_sound_and_never_above_hamming():
+    # Ternary Golay code [11,6,5]_3 is perfect (MacWilliams-Sloane ch. 20): Johnson = 729.
+    assert classical.johnson(Params(3, 11, 5)).value == 729
+    for q in (3, 4, 5):
+        for n in range(2, 16):
+            for d in range(1, n + 1):
+                p = Params(q, n, d)
+                assert classical.johnson(p).value <= classical.hamming(p).value

@@ -135,3 +135,16 @@ def test_load_certificate_recognises_content(tmp_path):
     bad.write_text("{not json")
     with pytest.raises(InputError):
         verify.load_certificate(str(bad))
+
+
+def test_check_command_on_certificates(tmp_path, capsys):
+    good = tmp_path / "good.json"
+    assert main(["bounds", "12", "5", "--certificate", str(good)]) == 0
+    assert main(["check", str(good)]) == 0
+    cert = json.loads(good.read_text())
+    bad = tmp_path / "bad.json"
+    bad.write_text(json.dumps(dict(cert, bound="1/1")))
+    assert main(["check", str(bad)]) == 1
+    broken = tmp_path / "broken.json"
+    broken.write_text(json.dumps(dict(cert, y="nope")))
+    assert main(["check", str(broken)]) == 2

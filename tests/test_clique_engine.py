@@ -116,6 +116,23 @@ def test_order_permute_greedy_match_twins(gw):
     assert is_clique(adj, verts)
 
 
+@given(graphs(max_n=70))
+def test_prepare_matches_twins(gw):
+    a, w = gw
+    n = a.shape[0]
+    if n == 0:
+        return
+    adj = bitsets_from_dense(a)
+    sets = R.bitset_rows_to_sets(adj, n)
+    order, padj, pw, gwt, gclique, classes = K.clique_prepare(adj, np.asarray(w, np.int64), n, 7)
+    assert order.tolist() == R.degeneracy_order(sets)
+    psets = R.permute(sets, order)
+    assert R.bitset_rows_to_sets(padj, n) == psets
+    assert pw.tolist() == [int(w[v]) for v in order]
+    assert gwt == R.greedy_clique(psets, pw, 7) == int(pw[gclique].sum())
+    assert classes == R.colour_level(psets, np.ones(n), set(range(n)), -1)[2]
+
+
 @given(st.integers(2, 4), st.integers(1, 7), st.integers(1, 7), st.integers(0, 2**32 - 1))
 def test_code_adjacency_matches_twin(q, n, d, seed):
     from codesearch.search.graph import code_graph
@@ -136,6 +153,34 @@ def test_bitset_conversions_round_trip():
         assert np.array_equal(bitsets_to_dense(adj, n), a)
         edges = list(zip(*np.nonzero(upper)))
         assert np.array_equal(bitsets_from_edges(n, edges), adj)
+
+
+@given(graphs(max_n=80))
+def test_packbits_rows_are_accepted(gw):
+    # Same answer from np.packbits byte rows as from uint64 limbs (networkx as the oracle).
+    a, w = gw
+    if a.shape[0] == 0:
+        return
+    res = max_weight_clique(np.packbits(a, axis=1, bitorder="little"), w)
+    expected = nx.max_weight_clique(_nx_graph(a, w), weight="w")[1]
+    assert res.optimal and res.weight == expected
+    assert is_clique(bitsets_from_dense(a), res.vertices)
+
+
+@given(graphs(max_n=60), st.integers(0, 200))
+def test_stopped_search_bounds_bracket_the_optimum(gw, budget):
+    # Oracle: networkx max_weight_clique; a search cut after `budget` nodes must return a
+    # real clique no heavier than the optimum and an upper bound no lighter.
+    a, w = gw
+    if a.shape[0] == 0:
+        return
+    adj = bitsets_from_dense(a)
+    res = max_weight_clique(adj, w, node_limit=budget)
+    opt = nx.max_weight_clique(_nx_graph(a, w), weight="w")[1]
+    assert is_clique(adj, res.vertices)
+    assert res.weight <= opt <= res.upper
+    if res.complete:
+        assert res.weight == opt
 
 
 def test_anytime_node_limit_gives_valid_bound():
@@ -191,3 +236,27 @@ def test_goal_stops_early_with_a_valid_clique():
     assert full.optimal and full.size == 20
     res = max_clique(adj, goal=15)
     assert res.size >= 15 and is_clique(adj, res.vertices) and res.upper >= 20
+
+
+def test_importing_search_modules_loads_no_numba():
+    import subprocess
+    import sys
+
+    code = ("import sys, codesearch, codesearch.search.clique, codesearch.search.graph, "
+            "codesearch.search.exact, codesearch.search.progress; "
+            "assert 'numba' not in sys.modules, 'numba imported'")
+    subprocess.run([sys.executable, "-c", code], check=True)
+
+
+def test_public_api_of_the_clique_module():
+    import codesearch.search.clique as C
+
+    assert sorted(C.__all__) == sorted([
+        "CliqueResult", "bitsets_from_dense", "bitsets_from_edges", "bitsets_to_dense",
+        "is_clique", "max_clique", "max_weight_clique",
+    ])
+    import inspect
+
+    params = inspect.signature(C.max_weight_clique).parameters
+    assert list(params)[:2] == ["adj_bits", "weights"]
+    assert {"time_limit", "lower", "progress", "node_limit", "goal"} <= set(params)

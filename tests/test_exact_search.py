@@ -36,7 +36,8 @@ PUBLISHED = [
 
 @pytest.mark.parametrize("q,n,d,value", PUBLISHED)
 def test_published_cells_are_proved(q, n, d, value):
-    res = search(Params(q, n, d), "exact", time_limit=120)
+    # The search proves these by itself (no outside bound consulted).
+    res = search(Params(q, n, d), "exact", time_limit=120, use_bounds=False)
     assert res.status is Status.OPTIMAL
     assert res.size == res.upper == value
     verify.assert_code(res.code, Params(q, n, d))
@@ -59,8 +60,8 @@ SMALL_CELLS = [(2, n, d) for n in range(3, 8) for d in range(2, n + 1)] + [
 @pytest.mark.parametrize("q,n,d", SMALL_CELLS)
 def test_reduced_and_unreduced_searches_agree(q, n, d):
     p = Params(q, n, d)
-    reduced = search(p, "exact", time_limit=60)
-    plain = search(p, "exact", time_limit=60, reduce=False)
+    reduced = search(p, "exact", time_limit=60, use_bounds=False)
+    plain = search(p, "exact", time_limit=60, reduce=False, use_bounds=False)
     assert reduced.optimal and plain.optimal
     assert reduced.size == plain.size
 
@@ -72,7 +73,8 @@ DEPTHS = [(1, 2), (1, 4), (8, 3), (1000, 1)]
 def test_splitting_depth_does_not_change_the_answer(leaf_size, max_fixed):
     # A(7,3) = 16, A_3(5,3) = 18, A(7,4) = 8 (see PUBLISHED) whatever the splitting depth.
     for q, n, d, value in ((2, 7, 3, 16), (3, 5, 3, 18), (2, 7, 4, 8)):
-        res = search(Params(q, n, d), "exact", leaf_size=leaf_size, max_fixed=max_fixed)
+        res = search(Params(q, n, d), "exact", leaf_size=leaf_size, max_fixed=max_fixed,
+                     use_bounds=False)
         assert res.optimal and res.size == value, (q, n, d)
 
 
@@ -80,7 +82,8 @@ def test_splitting_depth_does_not_change_the_answer(leaf_size, max_fixed):
 @pytest.mark.parametrize("leaf_size,max_fixed", DEPTHS)
 def test_splitting_depth_a83(leaf_size, max_fixed):
     # A(8,3) = 20 (see PUBLISHED); these depths take 2-30 s each.
-    res = search(Params(2, 8, 3), "exact", leaf_size=leaf_size, max_fixed=max_fixed)
+    res = search(Params(2, 8, 3), "exact", leaf_size=leaf_size, max_fixed=max_fixed,
+                 use_bounds=False)
     assert res.optimal and res.size == 20
 
 
@@ -155,17 +158,18 @@ def test_time_limit_returns_verified_code_and_valid_bound():
     assert res.size <= 40 <= res.upper
 
 
-def test_target_decides_existence():
+@pytest.mark.parametrize("use_bounds", [False, True])
+def test_target_decides_existence(use_bounds):
     p = Params(2, 8, 3)  # A(8,3) = 20 (see PUBLISHED)
-    yes = search(p, "exact", target=20)
+    yes = search(p, "exact", size=20, use_bounds=use_bounds)
     assert yes.exists is True and yes.size >= 20
     assert yes.upper is not None and yes.upper >= 20
     for small in (1, 2, 5):
         # Meeting a small target proves nothing about optimality.
-        res = search(p, "exact", target=small)
+        res = search(p, "exact", size=small, use_bounds=use_bounds)
         assert res.exists is True and res.status is Status.FEASIBLE
         assert res.upper >= 20
-    no = search(p, "exact", target=21)
+    no = search(p, "exact", size=21, use_bounds=use_bounds)
     assert no.status is Status.INFEASIBLE and no.exists is False and no.upper == 20
 
 
@@ -192,6 +196,13 @@ def test_cli_find_bad_input_exits_2(argv, capsys):
     assert main(argv + ["--quiet"]) == 2
     err = capsys.readouterr().err.strip()
     assert err and "\n" not in err and "Traceback" not in err
+
+
+def test_known_bounds_agree_with_the_search():
+    # With the bounds module consulted the answers must not change (published cells above).
+    for q, n, d, value in PUBLISHED:
+        res = search(Params(q, n, d), "exact", time_limit=120)
+        assert res.optimal and res.size == value, (q, n, d)
 
 
 def test_progress_callback_and_live_display():

@@ -321,3 +321,48 @@ def test_no_admissible_orbit_gives_unknown():
     # Every coset of the span of 1100 holds two words at distance 2 < d = 4: nothing admissible.
     res = search(Params(2, 4, 4), "orbit", group="span:1100")
     assert res.status is Status.UNKNOWN and res.code is None
+
+
+# ------------------------------------------------------------------------------ clique heuristics
+@given(k=st.integers(1, 14), density=st.floats(0.2, 0.9), seed=st.integers(0, 10**6))
+def test_heuristics_return_cliques_no_heavier_than_networkx(k, density, seed):
+    rng = np.random.default_rng(seed)
+    upper = np.triu(rng.random((k, k)) < density, 1)
+    adj = upper | upper.T
+    w = rng.integers(1, 20, k)
+    graph = nx.Graph()
+    graph.add_nodes_from((v, {"weight": int(w[v])}) for v in range(k))
+    graph.add_edges_from(zip(*np.nonzero(upper)))
+    _, exact = nx.max_weight_clique(graph, weight="weight")  # networkx as the outside oracle
+    greedy, _ = orbit.heuristic_clique(adj, w, restarts=5, seed=seed, deadline=None)
+    tabu, _ = orbit.tabu_clique(adj, w, greedy, iterations=300, seed=seed, deadline=None)
+    for clique in (greedy, tabu):
+        assert len(set(clique)) == len(clique)
+        assert all(adj[a, b] for a in clique for b in clique if a != b)
+        assert int(w[clique].sum()) <= exact
+    assert int(w[tabu].sum()) >= int(w[greedy].sum())
+    again, _ = orbit.tabu_clique(adj, w, greedy, iterations=300, seed=seed, deadline=None)
+    assert again == tabu
+
+
+def test_size_option_stops_at_the_target():
+    params = Params(2, 10, 4)
+    res = search(params, "orbit", group="cyclic", size=30)
+    _check(res, params, "cyclic")
+    assert res.size >= 30 and res.target == 30 and res.exists is True
+
+
+def test_bitsets_layout():
+    rng = np.random.default_rng(5)
+    for k in (1, 63, 64, 65, 130):
+        upper = np.triu(rng.random((k, k)) < 0.5, 1)
+        adj = upper | upper.T
+        bits = orbit.bitsets(adj)
+        assert bits.dtype == np.uint64 and bits.shape == (k, (k + 63) // 64)
+        for i, j in itertools.product(range(k), repeat=2):
+            assert bool((int(bits[i, j >> 6]) >> (j & 63)) & 1) == adj[i, j]
+        try:
+            from codesearch.search.clique import bitsets_from_dense
+        except ImportError:
+            continue
+        assert np.array_equal(bits, bitsets_from_dense(adj))

@@ -150,3 +150,23 @@ def test_bad_options(opts):
 def test_too_large_cell():
     with pytest.raises(ParameterError):
         search(Params(2, 20, 3), "sat", size=10)
+
+
+@pytest.mark.slow
+def test_refutes_21_words_for_8_3():
+    # A(8,3) = 20 (published, MacWilliams & Sloane table, from memory): with symmetry breaking
+    # the 21-word question is refuted in every minimum-distance branch
+    res = search(Params(2, 8, 3), "sat", size=21)
+    assert res.status is Status.INFEASIBLE and res.upper == 20
+    assert res.settings["branches_refuted"] == [3, 4, 5, 6, 7, 8]
+
+
+@pytest.mark.parametrize("q,n,d", [(2, 6, 3), (2, 7, 4), (3, 4, 3), (2, 8, 5)])
+def test_agrees_with_exact_search(q, n, d):
+    # the exact max-clique search lives in another module; compare when it is present
+    pytest.importorskip("codesearch.search.exact")
+    p = Params(q, n, d)
+    a = search(p, "sat")
+    b = search(p, "exact")
+    assert a.status is b.status is Status.OPTIMAL
+    assert a.size == b.size

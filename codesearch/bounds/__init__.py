@@ -71,7 +71,8 @@ def compute_bound(params: Params, name: str) -> BoundResult | None:
     return _function(name)(params)
 
 
-def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True) -> dict[str, BoundResult]:
+def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
+               lp_fallback: bool = True) -> dict[str, BoundResult]:
     """Every applicable bound for one cell, by canonical name.
 
     Parameters
@@ -79,10 +80,13 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True) -> dict[st
     params : Params
         The cell.
     sdp : bool
-        Also try Schrijver's three-point semidefinite bound (``"sdp-three-point"``) when the
-        module :mod:`codesearch.bounds.sdp` is available; skipped silently otherwise.
+        Also compute Schrijver's three-point semidefinite bound (binary, d >= 3; seconds
+        to minutes per cell, see :func:`codesearch.bounds.sdp.three_point_cost`).
     lp : bool
         Include the Delsarte linear programs (the slow part of a grid run).
+    lp_fallback : bool
+        Let the LPs fall back to the high-precision simplex when double precision cannot
+        certify them (LP values beyond about 2^40; seconds per cell near n = 128).
 
     Returns
     -------
@@ -95,10 +99,12 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True) -> dict[st
     for name in BOUNDS:
         if not lp and name in _COMPUTED:
             continue
-        result = _function(name)(params)
+        func = _function(name)
+        result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
         if result is not None:
             out[name] = result
-    if sdp:
+    if sdp and params.q == 2 and params.d >= 3:
+        # Schrijver's bound is binary and needs d >= 3 (A(n,1), A(n,2) are known exactly).
         try:
             from codesearch.bounds.sdp import three_point_bound
         except ImportError:
@@ -110,12 +116,14 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True) -> dict[st
     return out
 
 
-def upper_bound(params: Params, *, sdp: bool = False, lp: bool = True) -> BoundResult:
+def upper_bound(params: Params, *, sdp: bool = False, lp: bool = True,
+                lp_fallback: bool = True) -> BoundResult:
     """The least usable upper bound on ``A_q(n,d)`` (certified, valid for every code).
 
-    Ties go to the earlier bound in :data:`BOUNDS` (the plainest argument).
+    Ties go to the earlier bound in :data:`BOUNDS` (the plainest argument). Options as in
+    :func:`all_bounds`.
     """
-    return least_usable(all_bounds(params, sdp=sdp, lp=lp))
+    return least_usable(all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback))
 
 
 def least_usable(bounds: dict[str, BoundResult]) -> BoundResult:
@@ -133,7 +141,8 @@ def gv_lower_bound(params: Params) -> int:
     return gilbert_varshamov(params).value
 
 
-def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True) -> dict:
+def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
+                 lp_fallback: bool = True) -> dict:
     """The machine-readable summary of one cell (one line of ``codesearch bounds --json``).
 
     Keys: ``q, n, d``; ``bounds`` (name -> int, usable bounds only); ``upper`` and
@@ -141,7 +150,7 @@ def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True) -> dict:
     ``linear`` (name -> int, bounds valid for linear codes only); ``uncertified`` (names
     whose solver answer failed its exact check; never used).
     """
-    found = all_bounds(params, sdp=sdp, lp=lp)
+    found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback)
     best = least_usable(found)
     return {
         "q": params.q,

@@ -29,7 +29,7 @@ from __future__ import annotations
 from functools import lru_cache
 from math import comb
 
-from codesearch.bounds.krawtchouk import ball_volume
+from codesearch.bounds.krawtchouk import ball_volume, sphere_size
 from codesearch.model import Params
 from codesearch.results import BoundResult
 
@@ -42,6 +42,7 @@ __all__ = [
     "griesmer",
     "gilbert_varshamov",
     "constant_weight_bound",
+    "constant_weight_bound_qary",
     "is_prime_power",
 ]
 
@@ -162,14 +163,52 @@ def _johnson_odd(n: int, e: int) -> int:
     return (2**n * per) // (ball_volume(2, n, e) * per + shell)
 
 
-def johnson(params: Params) -> BoundResult | None:
-    """Johnson's improved sphere-packing bound (binary only; None for q > 2).
+def constant_weight_bound_qary(q: int, n: int, d: int, w: int) -> int:
+    """Johnson's bound on A_q(n, d, w), q-ary words of weight w at distance >= d.
 
-    Odd d = 2e+1 directly; even d through A(n, 2e+2) = A(n-1, 2e+1).
+    ``M w <= n (q-1) A_q(n-1, d, w-1)`` (count pairs (word, nonzero position): the words
+    with symbol a at position p, that position deleted, form a code of weight w-1), and a
+    single word when ``2w < d``.
+    """
+    if w < 0 or w > n:
+        return 0
+    if 2 * w < d:
+        return 1
+    return (n * (q - 1) * constant_weight_bound_qary(q, n - 1, d, w - 1)) // w
+
+
+def _johnson_qary_odd(q: int, n: int, e: int) -> int:
+    """The improved sphere-packing bound for A_q(n, 2e+1), q >= 2.
+
+    Same count as :func:`_johnson_odd`: a word at distance e+1 from codeword c lies within e
+    of another codeword c' only if d(c, c') = 2e+1 and it takes c' values on e+1 of their
+    2e+1 differing positions and c values elsewhere (C(2e+1, e+1) words per c'); such c'
+    form a weight-(2e+1) code around c, at most A_q(n, 2e+1, 2e+1). A word outside all
+    balls is at distance e+1 from at most A_q(n, 2e+1, e+1) <= floor(n (q-1) / (e+1))
+    codewords (their difference patterns share at most one position and differ there).
+    """
+    shell = sphere_size(q, n, e + 1) - comb(2 * e + 1, e + 1) * constant_weight_bound_qary(
+        q, n, 2 * e + 1, 2 * e + 1)
+    shell = max(shell, 0)
+    per = (n * (q - 1)) // (e + 1)
+    vol = ball_volume(q, n, e)
+    if per == 0:
+        return q**n // vol
+    return (q**n * per) // (vol * per + shell)
+
+
+def johnson(params: Params) -> BoundResult | None:
+    """Johnson's improved sphere-packing bound.
+
+    Binary: odd d = 2e+1 directly, even d through A(n, 2e+2) = A(n-1, 2e+1). q-ary: the same
+    counting argument (:func:`_johnson_qary_odd`) at radius e = floor((d-1)/2), which for even d
+    bounds the codes of distance d-1 and hence those of distance d.
     """
     q, n, d = params.q, params.n, params.d
     if q != 2:
-        return None
+        e = (d - 1) // 2
+        return BoundResult(params, _johnson_qary_odd(q, n, e), "johnson",
+                           note=f"q-ary form, radius e={e}")
     if d % 2 == 1:
         return BoundResult(params, _johnson_odd(n, (d - 1) // 2), "johnson", note="odd d")
     if n == 1:

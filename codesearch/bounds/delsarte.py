@@ -224,12 +224,10 @@ def solve_float_lp(q: int, n: int, d: int, even: bool, use_extra: bool = False):
     """
     rows, ks, extras, G = _problem(q, n, d, even, use_extra)
     solve = _highs if _have_highs_core() else _linprog
-    # Dual simplex first (it returns a vertex, whose active set the exact solve uses); the
-    # interior point method as a second try when the simplex gives up on a badly scaled cell.
-    for method in ("highs-ds", "highs-ipm"):
-        res = solve(G, method)
-        if res.status == 0:
-            break
+    # Dual simplex: it returns a vertex, whose active set the exact solve uses. (The interior
+    # point method was tried as a fallback on the badly scaled cells and never succeeded
+    # where the simplex failed, on the binary grid n <= 128.)
+    res = solve(G, "highs-ds")
     return rows, ks, extras, G, res
 
 
@@ -345,6 +343,86 @@ def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
     return ex.certify(m)
 
 
+def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list[int] | None:
+    """Dual simplex in high-precision decimal arithmetic; returns an integer dual vector.
+
+    Used when the double-precision solve fails: on cells whose LP value is far beyond 2^40
+    the dual vector is huge while every constraint must hold to within 1, so doubles cannot
+    resolve it. The problem min sum_c u_c s.t. sum_c u_c G[r][c] <= -1, u >= 0 (columns
+    scaled by their objective weight, G = exact coefficient / cost) is solved from the slack
+    basis, which is dual feasible because every cost is 1, in a condensed dictionary with
+    ``digits`` significant digits (libmpdec, through numpy object arrays). The basis found is
+    then solved exactly over the integers (:func:`_solve_exact`), so the precision only has
+    to be good enough to find the right basis; the result is checked exactly by the caller.
+    """
+    import decimal
+
+    ctx = decimal.Context(prec=digits)
+    D = ctx.create_decimal
+    m, N = len(ex.rows), len(ex.cols)
+    T = np.empty((m + 1, N + 1), dtype=object)
+    for c, (col, cost) in enumerate(zip(ex.cols, ex.cost)):
+        dc = D(cost)
+        for r, a in enumerate(col):
+            T[r, c] = ctx.divide(D(a), dc)
+        T[m, c] = D(-1)  # objective row: z = z0 - (T[m, :N] . x_N) with reduced costs 1
+    T[:m, N] = D(-1)
+    T[m, N] = D(0)
+    basic = [("s", r) for r in range(m)]
+    nonbasic = [("u", c) for c in range(N)]
+    tiny = decimal.Decimal(10) ** (-(digits // 2))
+    with decimal.localcontext(ctx):
+        for pivot in range(max_pivots):
+            beta = T[:m, N]
+            infeasible = [i for i in range(m) if beta[i] < -tiny]
+            if not infeasible:
+                break
+            # Most negative row first; after 2m pivots Bland's rule (least label), which
+            # cannot cycle on degenerate vertices.
+            bland = pivot >= 2 * m
+            if bland:
+                r = min(infeasible, key=lambda i: basic[i])
+            else:
+                r = min(infeasible, key=lambda i: beta[i])
+            row = T[r, :N]
+            best_j, best_key = None, None
+            for j in range(N):
+                a = row[j]
+                if a < -tiny:
+                    ratio = T[m, j] / a  # = d_j / (-a) with d_j = -T[m, j] >= 0
+                    key = (ratio, nonbasic[j]) if bland else (ratio,)
+                    if best_key is None or key < best_key:
+                        best_j, best_key = j, key
+            if best_j is None:
+                return None  # dual unbounded: cannot happen for a Delsarte LP
+            j = best_j
+            p = T[r, j]
+            rowr = T[r, :] / p
+            col = T[:, j].copy()
+            T = T - np.outer(col, rowr)
+            T[r, :] = rowr
+            T[:, j] = -col / p
+            T[r, j] = 1 / p
+            basic[r], nonbasic[j] = nonbasic[j], basic[r]
+        else:
+            return None
+    S = [idx for (kind, idx) in basic if kind == "u"]
+    tight = [idx for (kind, idx) in nonbasic if kind == "s"]
+    if len(S) != len(tight) or not S:
+        return None
+    M = [[ex.cols[c][r] for c in S] for r in tight]
+    sol = _solve_exact(M, [-1] * len(tight))
+    if sol is None or any(v < 0 for v in sol):
+        return None
+    from math import lcm
+
+    L = lcm(*(v.denominator for v in sol))
+    out = [0] * N
+    for c, v in zip(S, sol):
+        out[c] = v.numerator * (L // v.denominator)
+    return out
+
+
 def _scaled_float(value: int, E: int) -> float:
     """value / 2^E as a float without overflowing on huge integers."""
     shift = max(0, abs(value).bit_length() - 64)
@@ -355,11 +433,12 @@ def _fmt(x: Fraction) -> str:
     return f"{x.numerator}/{x.denominator}"
 
 
-def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool):
+def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallback: bool):
     rows, ks, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
-    if res.status != 0:
-        return None, ks, extras, res
     ex = _Exact(q, n, rows, ks, extras)
+    if res.status != 0:
+        best = _decimal_fallback(ex, q, n) if fallback else None
+        return best, ks, extras, res, best is not None
     E = (q**n).bit_length() + _GUARD_BITS
     m = _to_dyadic(res.x, ex.cost, E)
     best = ex.certify(m)
@@ -396,7 +475,21 @@ def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool):
                 cand = ex.certify(m)
                 if cand is not None and (best is None or cand[0] < best[0]):
                     best = cand
-    return best, ks, extras, res
+    used = False
+    # Beyond 2^40 the double solve may also return a wrong (merely feasible) vertex whose
+    # exact solution certifies a loose value, so the high-precision simplex runs there too.
+    if fallback and (need or fobj > 2.0**40):
+        cand = _decimal_fallback(ex, q, n)
+        if cand is not None and (best is None or cand[0] < best[0]):
+            best, used = cand, True
+    return best, ks, extras, res, used
+
+
+def _decimal_fallback(ex: "_Exact", q: int, n: int) -> tuple[int, int, list[int], int] | None:
+    """Exact optimum through the high-precision dual simplex, checked exactly (or None)."""
+    digits = len(str(q**n)) + 30
+    m = _decimal_dual_simplex(ex, digits=digits, max_pivots=40 * len(ex.rows) + 200)
+    return ex.certify(m) if m is not None else None
 
 
 #: Largest LP handled: n (after the odd-d mapping) and bit length of q^n (the dyadic rounding
@@ -405,20 +498,21 @@ MAX_LP_N = 200
 MAX_LP_BITS = 800
 
 
-def _run(params: Params, use_extra: bool, name: str) -> BoundResult | None:
+def _run(params: Params, use_extra: bool, name: str, fallback: bool) -> BoundResult | None:
     from codesearch import verify
 
     q = params.q
     n, d, even = lp_cell(params)
     if n > MAX_LP_N or (q**n).bit_length() > MAX_LP_BITS:
         return None
-    best, ks, extras, res = _solve_certified(q, n, d, even, use_extra)
+    best, ks, extras, res, used_decimal = _solve_certified(q, n, d, even, use_extra, fallback)
     mapped = (n, d) != (params.n, params.d)
     where = f" solved at A({n},{d})" if mapped else ""
     if best is None:
         fval = int(np.floor(1.0 + res.fun)) if res.status == 0 else q**params.n
+        what = "float LP value" if res.status == 0 else "float LP failed;"
         return BoundResult(params, fval, name, certified=False,
-                           note=f"float LP value not certified{where}")
+                           note=f"{what} not certified{where}")
     value, W, m, obj = best
     y = [Fraction(0)] * n
     for k, mc in zip(ks, m):
@@ -443,22 +537,36 @@ def _run(params: Params, use_extra: bool, name: str) -> BoundResult | None:
         return BoundResult(params, value, name, certificate=cert, certified=False,
                            note=f"certificate rejected: {reason}")
     note = ("even distances" if even else "all distances") + where
+    if used_decimal:
+        note += ", high-precision simplex"
     return BoundResult(params, value, name, certificate=cert, note=note)
 
 
-def delsarte_lp(params: Params) -> BoundResult | None:
+def delsarte_lp(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
     """Delsarte's LP bound with an exact rational dual certificate (kind ``delsarte-lp``).
 
-    None when the cell is beyond :data:`MAX_LP_N` / :data:`MAX_LP_BITS`.
+    Parameters
+    ----------
+    params : Params
+        The cell.
+    exact_fallback : bool
+        When the double-precision solve cannot be certified tightly (LP values beyond about
+        2^40), run the high-precision dual simplex (seconds per cell at n ~ 128). Off, such
+        cells may come back uncertified (never used as a bound).
+
+    Returns
+    -------
+    BoundResult or None
+        None when the cell is beyond :data:`MAX_LP_N` / :data:`MAX_LP_BITS`.
     """
-    return _run(params, False, "delsarte-lp")
+    return _run(params, False, "delsarte-lp", exact_fallback)
 
 
-def delsarte_lp_plus(params: Params) -> BoundResult | None:
+def delsarte_lp_plus(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
     """Delsarte's LP with the extra binary inequalities of :func:`extra_inequalities`.
 
     None for q > 2 (no extra family implemented there).
     """
     if params.q != 2:
         return None
-    return _run(params, True, "delsarte-lp-plus")
+    return _run(params, True, "delsarte-lp-plus", exact_fallback)

@@ -29,6 +29,7 @@ _SHORT = {
     "elias": "elias",
     "delsarte-lp": "lp",
     "delsarte-lp-plus": "lp+",
+    "three-point-sdp": "sdp",
 }
 
 
@@ -61,7 +62,8 @@ def format_value(v: int) -> str:
 
 
 def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json: bool = False,
-                       lp: bool = True, certificate: str | None = None,
+                       lp: bool = True, lp_fallback: bool = True, sdp: bool = False,
+                       certificate: str | None = None,
                        out: TextIO | None = None) -> int:
     """Print the bounds of a grid of cells; returns the exit status."""
     from codesearch.bounds import MAX_N, best_lp_certificate, cell_summary
@@ -74,13 +76,14 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
         raise ParameterError("--certificate needs a single cell (N and D, not ranges)")
     if as_json:
         for p in grid:
-            print(json.dumps(cell_summary(p, lp=lp)), file=out)
+            print(json.dumps(cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)), file=out)
     else:
-        names = [k for k in _SHORT if lp or not k.startswith("delsarte")]
+        names = [k for k in _SHORT if (lp or not k.startswith("delsarte"))
+                 and (sdp or k != "three-point-sdp")]
         header = ["q", "n", "d", "upper", "by", "gv"] + [_SHORT[k] for k in names] + ["griesmer*"]
         rows = []
         for p in grid:
-            s = cell_summary(p, lp=lp)
+            s = cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)
             row = [str(p.q), str(p.n), str(p.d), str(s["upper"]), s["upper_method"],
                    format_value(s["gv"])]
             for k in names:

@@ -20,23 +20,35 @@ code has only even distances). For odd ``d`` the cell is bounded through
 
 Rigorous rounding
 -----------------
-The program is solved in floating point (Clarabel, interior point) on a rescaled copy. Its
-dual gives PSD matrices ``Z`` for the blocks and multipliers ``mu >= 0`` for the linear
-rows. They are rounded to dyadic rationals, each ``Z`` is shifted by ``eps * I`` until an
-exact LDL^T in rationals proves it positive definite, negative ``mu`` are set to zero. For
-every code the corresponding ``x`` satisfies all constraints and ``0 <= x <= 1``, hence
+The program is solved in floating point (Clarabel, interior point) on a rescaled copy,
+then re-solved with the block rows rebalanced at the solution (the first solve often
+stalls short of the optimum). Its dual gives PSD matrices ``Z`` for the blocks and
+multipliers ``mu >= 0`` for the linear rows. They are rounded to dyadic rationals, each
+``Z`` is shifted by ``eps * I`` until an exact LDL^T in rationals proves it positive
+definite, negative ``mu`` are set to zero. For
+every code the corresponding ``x`` satisfies all constraints and ``0 <= x_v <= u_v``, hence
 
     |C| <= 1 + sum <Z, B_const> + mu . rhs + sum_v max(r_v, 0) u_v,
     r_v = c_v + sum <Z, B_v> - (G^T mu)_v,
 
-where the last sum absorbs whatever dual infeasibility rounding left (each ``x_v`` lies in
-``[0, 1]``). Everything on the right is computed with integers; the certified bound is its
-floor. :func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
+where the last sum absorbs whatever dual infeasibility rounding left, ``u_v`` being a
+proven cap (:func:`~codesearch.bounds.terwilliger.variable_cap`, from Johnson's bound on
+constant-weight codes; the plain cap 1 cost thousands on cells like A(28,12)). Everything
+on the right is computed with integers; the certified bound is its floor. :func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
+Delsarte's LP dual is a dual solution of the same program (Delsarte rows only, no blocks);
+it is certified the same way and kept when the semidefinite dual certifies less.
 
-Why Clarabel without cvxpy's canonicalisation: cvxpy turns a PSD constraint on an affine
-matrix expression into a new symmetric variable plus equality constraints on both triangles,
-which are linearly dependent; on these programs that made every interior-point solver
-tried stop with numerical errors. The direct conic form (upper triangle only) solves.
+Solver choice (measured on this machine, see benchmarks/bench_sdp.py)
+------------------------------------------------------------------
+Clarabel (interior point) through its own conic interface. SCS (first order) on the same
+conic data took 45 s and stopped at its iteration limit with a 1e-4 relative error on
+A(13,6), where Clarabel needs 0.1 s and reaches ~1e-9; through cvxpy, SCS needed 33 s on
+A(20,8) and 189 s on A(28,12) and still reported an inaccurate solution. What made
+Clarabel fail at first (numerical errors on most cells with n >= 20) was its automatic
+equilibration, not the modelling layer: with equilibration off, the cvxpy model solves too
+(A(20,8), A(28,12), A(21,4) checked). The direct conic form is kept because the rebalanced
+passes rebuild it cheaply and it returns the dual blocks in the layout the rounding reads
+(upper triangles, known scaling). ``solver="scs"`` is kept for comparisons.
 
 References
 ----------
@@ -64,7 +76,7 @@ from codesearch.results import BoundResult
 __all__ = ["three_point_bound", "three_point_cost", "solve_three_point", "SOLVERS"]
 
 #: Solvers understood by :func:`three_point_bound`.
-SOLVERS = ("clarabel",)
+SOLVERS = ("clarabel", "scs")
 
 #: Bits kept when rounding the scaled dual matrices and multipliers.
 _ROUND_BITS = 52
@@ -96,38 +108,38 @@ def _sdp_cell(params: Params) -> tuple[int, int]:
 
 def three_point_bound(
     params: Params, *, solver: str | None = None, time_limit: float | None = None
-) -> BoundResult:
+) -> BoundResult | None:
     """Schrijver's three-point bound on ``A(n, d)`` with an exact certificate.
 
     Parameters
     ----------
     params : Params
-        A binary cell (``q == 2``) with ``d >= 3``.
+        The cell; the bound applies to binary cells with ``d >= 3``.
     solver : str, optional
-        ``"clarabel"`` (default, the only one kept; see the module notes).
+        ``"clarabel"`` (default) or ``"scs"`` (kept for comparison; see the module notes).
     time_limit : float, optional
         Seconds allowed to the numerical solver.
 
     Returns
     -------
-    BoundResult
+    BoundResult or None
         ``method="three-point-sdp"``; ``certified=False`` when the rounded dual could not be
-        made exactly feasible (the value must not be used then).
+        made exactly feasible (the value is then the solver's float estimate and must not
+        be used). None when the bound does not apply: ``q != 2`` (the q-ary version is not
+        implemented) or ``d < 3`` (``A(n,1) = 2^n``, ``A(n,2) = 2^(n-1)``).
 
     Raises
     ------
     ParameterError
-        For ``q != 2``, ``d < 3`` or an unknown solver.
+        For an unknown solver.
     """
-    if params.q != 2:
-        raise ParameterError("the three-point bound is implemented for binary codes only (q=2)")
-    if params.d < 3:
-        raise ParameterError("the three-point bound needs d >= 3 (A(n,1), A(n,2) are known)")
     solver = (solver or "clarabel").lower()
     if solver not in SOLVERS:
         raise ParameterError(f"unknown solver {solver!r}; choose from {', '.join(SOLVERS)}")
+    if params.q != 2 or params.d < 3:
+        return None  # not applicable: q-ary version not implemented; A(n,1), A(n,2) known
     sn, sd = _sdp_cell(params)
-    res = solve_three_point(sn, sd, time_limit=time_limit)
+    res = solve_three_point(sn, sd, time_limit=time_limit, solver=solver)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
     value = res["value"]
     if cert is not None:
@@ -161,7 +173,9 @@ def _pow2_exponent(x: float) -> int:
 
 
 @lru_cache(maxsize=256)
-def solve_three_point(n: int, d: int, *, time_limit: float | None = None) -> dict[str, Any]:
+def solve_three_point(
+    n: int, d: int, *, time_limit: float | None = None, solver: str = "clarabel"
+) -> dict[str, Any]:
     """Solve and certify the three-point program of the binary cell ``(n, d)``.
 
     Up to ``_PASSES`` numerical passes: the first with a fixed scaling, each later one with
@@ -205,7 +219,7 @@ def solve_three_point(n: int, d: int, *, time_limit: float | None = None) -> dic
     remaining = time_limit
     for attempt in range(_PASSES):
         t_pass = time.perf_counter()
-        sol = _solve_scaled(data, m0, sv, exps, remaining)
+        sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
         res = _certify(data, m0, sol)
         res["seconds"] = time.perf_counter() - t_pass
         passes.append({k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")})
@@ -274,7 +288,9 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     return out
 
 
-def _solve_scaled(data: Any, m0: float, sv: Any, exps: dict, time_limit: float | None) -> dict:
+def _solve_scaled(
+    data: Any, m0: float, sv: Any, exps: dict, time_limit: float | None, solver: str = "clarabel"
+) -> dict:
     """One Clarabel solve of the program in scaled variables ``w = x * sv``."""
     import clarabel
     import numpy as np
@@ -334,35 +350,84 @@ def _solve_scaled(data: Any, m0: float, sv: Any, exps: dict, time_limit: float |
     b = np.array(b_vec)
     # maximise sum c_v x_v = sum (c_v / sv_v) w_v; Clarabel minimises; objective / M0
     qvec = -np.array(data.objective, dtype=float) / sv / m0
-    settings = clarabel.DefaultSettings()
-    settings.verbose = False
-    settings.tol_gap_abs = _TOL
-    settings.tol_gap_rel = _TOL
-    settings.tol_feas = _TOL
-    settings.max_iter = 300
-    # Equilibration off: with it on, Clarabel stopped on numerical errors in many cells
-    # (measured on n <= 28); the problem is scaled by hand above.
-    settings.equilibrate_enable = False
-    if time_limit is not None:
-        settings.time_limit = float(time_limit)
-    solution = clarabel.DefaultSolver(sp.csc_matrix((nv, nv)), qvec, A, b, cones, settings).solve()
-    z = np.array(solution.z)
-    s_ = np.array(solution.s)
-    w = np.array(solution.x)
+    psd_sizes = [meta[6] for meta in block_meta]
+    if solver == "scs":
+        z, s_, w, status, obj_p, obj_d, version = _run_scs(
+            A, b, qvec, psd_sizes, lin_row0, time_limit
+        )
+    else:
+        settings = clarabel.DefaultSettings()
+        settings.verbose = False
+        settings.tol_gap_abs = _TOL
+        settings.tol_gap_rel = _TOL
+        settings.tol_feas = _TOL
+        settings.max_iter = 300
+        # Equilibration off: with it on, Clarabel stopped on numerical errors in many cells
+        # (measured on n <= 28); the problem is scaled by hand above.
+        settings.equilibrate_enable = False
+        if time_limit is not None:
+            settings.time_limit = float(time_limit)
+        solution = clarabel.DefaultSolver(
+            sp.csc_matrix((nv, nv)), qvec, A, b, cones, settings
+        ).solve()
+        z = np.array(solution.z)
+        s_ = np.array(solution.s)
+        w = np.array(solution.x)
+        status = str(solution.status)
+        obj_p, obj_d = float(solution.obj_val), float(solution.obj_val_dual)
+        version = f"clarabel {clarabel.__version__}"
     ok = bool(np.all(np.isfinite(z)) and np.all(np.isfinite(w)))
     return {
-        "status": str(solution.status),
+        "status": status,
         "z": z if ok else None,
         "s": s_ if ok else None,
         "w": w if ok else None,
-        "float_value": 1.0 - float(solution.obj_val) * m0,
-        "gap": abs(solution.obj_val - solution.obj_val_dual) / max(1.0, abs(solution.obj_val)),
+        "float_value": 1.0 - obj_p * m0,
+        "gap": abs(obj_p - obj_d) / max(1.0, abs(obj_p)),
         "block_meta": block_meta,
         "lin_row0": lin_row0,
         "row_scale": row_scale,
         "sv": sv,
-        "solver": f"clarabel {clarabel.__version__}",
+        "solver": version,
     }
+
+
+def _run_scs(A: Any, b: Any, qvec: Any, psd_sizes: list, lin_row0: int,
+             time_limit: float | None) -> tuple:
+    """Solve the same conic program with SCS (kept for the solver comparison).
+
+    SCS wants the nonnegative rows first and each PSD block as its lower triangle by
+    columns; Clarabel's rows (PSD blocks first, upper triangle by columns) are permuted in
+    and the dual and slack permuted back.
+    """
+    import numpy as np
+    import scs
+
+    perm = []  # SCS row -> Clarabel row
+    start = 0
+    blocks = []
+    for m in psd_sizes:
+        order = []
+        for c in range(m):
+            for r in range(c, m):
+                order.append(start + r * (r + 1) // 2 + c)  # Clarabel index of (c, r), c <= r
+        blocks.append(order)
+        start += m * (m + 1) // 2
+    perm = list(range(lin_row0, A.shape[0])) + [i for order in blocks for i in order]
+    perm = np.array(perm)
+    data = {"A": A[perm].tocsc(), "b": b[perm], "c": qvec}
+    cone = {"l": A.shape[0] - lin_row0, "s": psd_sizes}
+    kw = {"eps_abs": 1e-9, "eps_rel": 1e-9, "max_iters": 100000, "verbose": False}
+    if time_limit is not None:
+        kw["time_limit_secs"] = float(time_limit)
+    sol = scs.SCS(data, cone, **kw).solve()
+    z = np.empty(A.shape[0])
+    s_ = np.empty(A.shape[0])
+    z[perm] = sol["y"]
+    s_[perm] = sol["s"]
+    info = sol["info"]
+    return (z, s_, np.array(sol["x"]), str(info["status"]), float(info["pobj"]),
+            float(info["dobj"]), f"scs {scs.__version__}")
 
 
 def _unpack_block(vec: Any, start: int, m: int) -> Any:
@@ -394,12 +459,15 @@ def _rescale(data: Any, sol: dict, sv: Any, exps: dict, cap: Any) -> tuple[Any, 
         Z = _unpack_block(sol["z"], start, m)
         ds = np.abs(np.diag(S))
         dz = np.abs(np.diag(Z))
-        ds = np.maximum(ds, 1e-12 * max(ds.max(), 1e-300))
-        dz = np.maximum(dz, 1e-12 * max(dz.max(), 1e-300))
+        ds = np.maximum(ds, 1e-12 * max(float(ds.max()), 1e-100))
+        dz = np.maximum(dz, 1e-12 * max(float(dz.max()), 1e-100))
         e2 = list(e)
         for r, rr in enumerate(keep):
-            # D_r = (Z_rr / S_rr)^(1/4) balances the primal and dual diagonals
-            e2[rr] = e[rr] - int(round(0.25 * math.log2(dz[r] / ds[r])))
+            # D_r = (Z_rr / S_rr)^(1/4) balances the primal and dual diagonals; the shift is
+            # bounded so one bad pass cannot push the scaling out of range
+            ratio = math.log2(dz[r]) - math.log2(ds[r])
+            if math.isfinite(ratio):
+                e2[rr] = e[rr] - max(-30, min(30, int(round(0.25 * ratio))))
         new_exps[(family, k)] = (e2, g)
     return new_sv, new_exps
 

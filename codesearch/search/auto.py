@@ -186,7 +186,8 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     if params.space_size <= _ORBIT_MAX_WORDS:
         share = 0.4 / max(1, len(group_list))
         for spec_text in group_list:
-            step(f"orbit[{spec_text}]", "orbit", share, group=spec_text)
+            # An orbit search stops early once it meets the best proven bound.
+            step(f"orbit[{spec_text}]", "orbit", share, group=spec_text, size=upper)
     if params.space_size <= exact_max_words:
         step("exact", "exact", 0.25)
     if best is not None and not done():

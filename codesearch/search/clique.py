@@ -91,6 +91,11 @@ class CliqueResult:
         return int(self.vertices.size)
 
     @property
+    def clique(self) -> list[int]:
+        """The clique's vertices as a list of ints (the form the orbit search consumes)."""
+        return [int(v) for v in self.vertices]
+
+    @property
     def optimal(self) -> bool:
         """True when the clique found is proved to be of maximum weight."""
         return self.complete and self.upper == self.weight
@@ -152,8 +157,20 @@ def is_clique(adj: np.ndarray, vertices: Iterable[int]) -> bool:
 
 def _check_graph(adj: np.ndarray, n: int | None) -> tuple[np.ndarray, int]:
     adj = np.ascontiguousarray(adj)
+    if adj.ndim == 2 and adj.dtype == np.uint8:
+        # Rows packed bytewise by ``np.packbits(dense, axis=1, bitorder="little")``: bit j of
+        # a row is bit j & 7 of byte j >> 3, the same order as uint64 limbs on little-endian
+        # words, so padding each row to whole limbs and viewing it as "<u8" is exact.
+        rows = adj.shape[0]
+        nbytes = max(1, (rows + 63) >> 6) * 8
+        if adj.shape[1] > nbytes:
+            raise ParameterError(f"packed rows of {adj.shape[1]} bytes for {rows} vertices")
+        padded = np.zeros((rows, nbytes), dtype=np.uint8)
+        padded[:, : adj.shape[1]] = adj
+        adj = padded.view("<u8").astype(np.uint64)
     if adj.ndim != 2 or adj.dtype != np.uint64:
-        raise ParameterError("adjacency must be a 2-d uint64 bitset array (see bitsets_from_dense)")
+        raise ParameterError("adjacency must be 2-d uint64 bitset rows (see bitsets_from_dense) "
+                             "or uint8 rows from np.packbits(..., bitorder='little')")
     if n is None:
         n = adj.shape[0]
     if adj.shape[0] != n or adj.shape[1] < _nwords(n) or n < 0:
@@ -177,7 +194,9 @@ def max_weight_clique(
     ----------
     adj_bits : numpy.ndarray
         ``(N, ceil(N/64))`` uint64; bit ``j & 63`` of ``adj_bits[i, j >> 6]`` is set iff
-        ``i ~ j``. Must be symmetric with an empty diagonal (not re-checked here).
+        ``i ~ j``. Also accepted: ``(N, ceil(N/8))`` uint8 rows as made by
+        ``np.packbits(dense, axis=1, bitorder="little")``. Must be symmetric with an empty
+        diagonal (not re-checked here).
     weights : array_like of int
         Positive integer weight of each vertex.
     time_limit : float, optional
@@ -211,27 +230,17 @@ def max_weight_clique(
     if n == 0:
         return CliqueResult(np.empty(0, np.int64), 0, max(0, lower), True, 0, 0.0)
 
-    # Renumber in degeneracy order (ties keep the caller's order): colouring by lowest index
-    # then follows it, which is what makes the colour bound tight in practice [2], [4].
-    order = K.clique_degeneracy_order(adj, n)
-    padj = K.clique_permute(adj, order, n)
-    pw = np.ascontiguousarray(w[order])
-
-    gw, gclique = K.clique_greedy(padj, pw, n, min(n, 64))
-    nwords = padj.shape[1]
+    # Renumber in degeneracy order (ties by lowest index): colouring by lowest index then
+    # follows it, which is what makes the colour bound tight in practice [2], [4].
     # Depth never exceeds the number of colour classes of the whole graph (a clique meets
-    # each class once) plus the empty level; the colour count of the root gives it.
+    # each class once) plus the empty level.
+    order, padj, pw, gw, gclique, classes = K.clique_prepare(adj, w, n, min(n, 64))
+    nwords = padj.shape[1]
     scratch_q = np.empty(nwords, np.uint64)
     scratch_c = np.empty(nwords, np.uint64)
     root_p = np.zeros((1, nwords), np.uint64)
     for v in range(n):
         root_p[0, v >> 6] |= np.uint64(1) << np.uint64(v & 63)
-    tmp_l = np.empty((1, n), np.int64)
-    tmp_b = np.empty((1, n), np.int64)
-    tmp_c = np.empty(1, np.int64)
-    tmp_pos = np.empty(1, np.int64)
-    classes = K.clique_colour_level(padj, np.ones(n, np.int64), root_p, tmp_l, tmp_b, tmp_c,
-                                    tmp_pos, 0, -1, scratch_q, scratch_c)
     depth = int(classes) + 2
     pst = np.zeros((depth, nwords), np.uint64)
     pst[0] = root_p[0]

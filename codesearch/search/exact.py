@@ -3,7 +3,7 @@
 Problem
 -------
 Find a largest q-ary code of length n and minimum distance d and prove that no larger one
-exists (or, with ``target``, decide whether a code of that size exists). A code is a clique
+exists (or, with ``size``, decide whether a code of that size exists). A code is a clique
 of the code graph (:mod:`codesearch.search.graph`); the search is a tree of subproblems (fixed
 words + candidates) produced by isomorph rejection on orbits of fixed words, whose small
 leaves are solved by the bit-parallel clique engine (:mod:`codesearch.search.clique`).
@@ -47,7 +47,7 @@ from codesearch.results import SearchResult, Status
 
 __all__ = ["OPTIONS", "run", "known_upper"]
 
-OPTIONS = frozenset({"target", "reduce", "leaf_size", "max_fixed"})
+OPTIONS = frozenset({"size", "reduce", "leaf_size", "max_fixed", "use_bounds"})
 
 _DEFAULT_LEAF = 96
 _DEFAULT_MAX_FIXED = 4
@@ -164,7 +164,8 @@ class _Search:
             return
         if k + sub.candidates.shape[0] <= self.best:
             return
-        if sub.candidates.shape[0] <= self.leaf_size or k >= self.max_fixed:
+        m = sub.candidates.shape[0]
+        if m <= self.leaf_size or (k >= self.max_fixed and m <= graph.MAX_LEAF):
             self.solve_leaf(sub)
             return
         for child in graph.orbit_split(sub, self.params.q, self.params.d,
@@ -204,10 +205,11 @@ def run(
     time_limit: float | None = None,
     seed: int | None = None,
     progress: Callable[[dict[str, Any]], None] | None = None,
-    target: int | None = None,
+    size: int | None = None,
     reduce: bool = True,
     leaf_size: int = _DEFAULT_LEAF,
     max_fixed: int = _DEFAULT_MAX_FIXED,
+    use_bounds: bool = True,
 ) -> SearchResult:
     """Exact search of one cell (see the module docstring).
 
@@ -221,15 +223,20 @@ def run(
         Unused (the search is deterministic); recorded.
     progress : callable, optional
         Receives ``{"nodes", "incumbent", "leaves", "elapsed"}`` now and then.
-    target : int, optional
+    size : int, optional
         Decide whether a code of this size exists instead of maximising: stop at the first
-        such code (FEASIBLE) or prove none exists (INFEASIBLE, ``upper = target - 1``).
+        such code (FEASIBLE) or prove none exists (INFEASIBLE, ``upper = size - 1``). The
+        result records it as ``target``.
     reduce : bool
         Apply the symmetry reductions (default). ``False`` runs the plain clique search on
         all ``q^n`` words (for tests and comparisons).
     leaf_size, max_fixed : int
         Split a node by orbits while it has more than ``leaf_size`` candidates and fewer than
         ``max_fixed`` fixed words.
+    use_bounds : bool
+        Consult :mod:`codesearch.bounds` (default): stop when the incumbent meets a usable
+        upper bound of the cell, and use its bound on ``A_q(n,d+1)`` first. ``False`` makes
+        the search prove everything by itself (benchmarks, independent cross-checks).
 
     Returns
     -------
@@ -242,9 +249,10 @@ def run(
     start = time.perf_counter()
     deadline = None if time_limit is None else start + float(time_limit)
     q, n, d = params.q, params.n, params.d
+    target = size
     if target is not None:
         if isinstance(target, bool) or not isinstance(target, (int, np.integer)) or target < 1:
-            raise ParameterError(f"target size must be a positive integer, got {target!r}")
+            raise ParameterError(f"size must be a positive integer, got {target!r}")
         target = int(target)
     if int(leaf_size) < 1 or int(max_fixed) < 1:
         raise ParameterError("leaf_size and max_fixed must be positive")
@@ -252,7 +260,18 @@ def run(
         raise ParameterError(
             f"exact search enumerates all q^n = {q}^{n} words; limit is {graph.MAX_SPACE}"
         )
-    ext = known_upper(params)
+    if not reduce and q**n > graph.MAX_LEAF:
+        raise ParameterError(
+            f"the unreduced search takes all q^n = {q}^{n} words as one graph; limit is "
+            f"{graph.MAX_LEAF} (use the reductions)"
+        )
+    ext = known_upper(params) if use_bounds else None
+    if target is not None and ext is not None and ext < target:
+        # A usable bound already refutes the requested size: nothing to search.
+        return SearchResult(params, Status.INFEASIBLE, None, int(ext), "exact",
+                            time.perf_counter() - start, 0, seed,
+                            {"target": target, "known_upper": ext, "version": __version__},
+                            target)
     stop_at = target if target is not None else ext
     best0 = (target - 1) if target is not None else 0
     s = _Search(params, deadline, start, progress, stop_at, best0, int(leaf_size),
@@ -262,7 +281,7 @@ def run(
                                 "max_fixed": int(max_fixed), "time_limit": time_limit,
                                 "target": target, "version": __version__,
                                 "numba": _numba_version(),
-                                "known_upper": ext}
+                                "known_upper": ext, "use_bounds": bool(use_bounds)}
     even = bool(reduce) and graph.even_weight_suffices(q, d)
     settings["even_weight_only"] = even
     root = graph.root(q, n, d, even=even)
@@ -323,12 +342,12 @@ def _upper_next(params: Params, s: _Search, settings: dict[str, Any]) -> int | N
     if d + 1 > n:
         return 1
     nxt = Params(q, n, d + 1)
-    ext = known_upper(nxt)
+    ext = known_upper(nxt) if settings["use_bounds"] else None
     if ext is not None and s.best >= ext:
         settings["upper_next"] = {"value": ext, "source": "bounds"}
         return ext
     left = s.time_left()
-    res = run(nxt, time_limit=left)
+    res = run(nxt, time_limit=left, use_bounds=settings["use_bounds"])
     s.nodes += res.nodes
     value = res.upper if ext is None else min(ext, res.upper)
     settings["upper_next"] = {"value": value, "source": "exact",

@@ -53,7 +53,11 @@ __all__ = [
 ]
 
 #: Largest ambient space the exact search enumerates word by word.
-MAX_SPACE = 1 << 22
+MAX_SPACE = 1 << 20
+
+#: Largest candidate set given to the clique engine as one graph (its bitset matrix then
+#: takes at most MAX_LEAF^2 / 8 bytes, 50 MB); bigger nodes are always split further.
+MAX_LEAF = 20_000
 
 
 def all_words(q: int, n: int) -> np.ndarray:
@@ -186,16 +190,22 @@ def orbit_split(sub: Subproblem, q: int, d: int, *, first_weight: int | None = N
     equivalent code lies in child j. A code with S empty is just ``fixed`` and is recorded by
     the caller.
 
-    Orbits are ordered with ``first_weight`` first when given (see
-    :func:`distance_d_pair_suffices`), then by increasing distance sum to the fixed words
-    (words close to the fixed ones constrain the rest most, so those children are small),
-    then lexicographically.
+    Any order is valid. Orbits are ordered with ``first_weight`` first when given (see
+    :func:`distance_d_pair_suffices`), then by decreasing size among the candidates (large
+    orbits excluded early leave the later children small), then by increasing distance sum
+    to the fixed words, then lexicographically. Measured here against distance-first order:
+    A(8,3) 185k vs 228k clique nodes, A(9,4) 61k vs 258k.
     """
     cands = sub.candidates
     if cands.shape[0] == 0:
         return []
     canon = stabiliser_canon(cands, sub.fixed, q)
-    reps, inverse = np.unique(canon, axis=0, return_inverse=True)
+    # Orbits by the canonical word read as a base-q integer (q^n <= MAX_SPACE fits int64);
+    # much faster than np.unique over rows, and it sorts orbits lexicographically too.
+    radix = np.int64(q) ** np.arange(cands.shape[1] - 1, -1, -1, dtype=np.int64)
+    keys = canon.astype(np.int64) @ radix
+    _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
+    reps = canon[first]
     inverse = inverse.reshape(-1)
     dist_fixed = np.zeros(reps.shape[0], dtype=np.int64)
     for f in sub.fixed:
@@ -204,7 +214,8 @@ def orbit_split(sub: Subproblem, q: int, d: int, *, first_weight: int | None = N
     key_first = np.zeros(reps.shape[0], dtype=np.int64)
     if first_weight is not None:
         key_first = (weights != first_weight).astype(np.int64)
-    order = np.lexsort((np.arange(reps.shape[0]), dist_fixed, key_first))
+    sizes = np.bincount(inverse, minlength=reps.shape[0])
+    order = np.lexsort((np.arange(reps.shape[0]), dist_fixed, -sizes, key_first))
     excluded = np.zeros(cands.shape[0], dtype=bool)
     children = []
     for j in order:

@@ -52,6 +52,13 @@ ORDERS = {"lex": 0, "gray": 1, "random": 2}
 MAX_MARK_SPACE = 2**28
 #: Largest space for which a random order is stored as an explicit permutation (32 MiB).
 MAX_PERM_SPACE = 2**22
+#: Largest code built by random sampling (pairwise checks).
+MAX_SAMPLED = 2**16
+#: Random sampling stops after this many consecutive rejected draws (common practice: a
+#: free region of 1/64 of the space is then missed with probability about e^-8).
+_SAMPLE_FAILS = 512
+#: Draws per sampling kernel call, between time-limit checks.
+_SAMPLE_DRAWS = 4096
 #: Largest number of stored ball patterns (memory ~ 8 bytes x radius per pattern).
 MAX_BALL = 2**23
 #: Scan positions per kernel call, between time-limit checks.
@@ -124,14 +131,22 @@ def greedy_indices(
     cap = max(1, space // ws.ball_size(q, n, radius // 2))
     kind = ORDERS[order]
     if order == "random" and space > MAX_PERM_SPACE:
-        if cap > 2**24:
-            raise ParameterError(f"{params}: the code could be too large for random sampling")
+        # pairwise checks cost O(M^2): stop at MAX_SAMPLED words (the code is still valid)
         rng = _rng_state(seed, stream)
-        out = np.empty(cap, dtype=np.int64)
-        # stop after as many consecutive failures as it takes to miss a free region of
-        # volume space/64 with probability ~e^-8 (common practice: a coupon-style stop rule)
-        count = K.heur_greedy_sample(q, n, d, space, 512, rng, out, 0)
-        return out[:count].copy(), False, count
+        out = np.empty(min(cap, MAX_SAMPLED), dtype=np.int64)
+        fail_state = np.zeros(1, dtype=np.int64)
+        count = 0
+        draws = 0
+        while True:
+            before = fail_state[0]
+            count = K.heur_greedy_sample(q, n, d, space, _SAMPLE_FAILS, _SAMPLE_DRAWS,
+                                         fail_state, rng, out, count)
+            draws += _SAMPLE_DRAWS
+            if fail_state[0] >= _SAMPLE_FAILS or count >= out.shape[0]:
+                break
+            if deadline is not None and time.perf_counter() > deadline:
+                break
+        return out[:count].copy(), False, draws
     if space > MAX_MARK_SPACE:
         raise ParameterError(
             f"{params}: {space} words is too many to scan in {order} order "

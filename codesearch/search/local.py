@@ -54,6 +54,8 @@ OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
 
 #: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
 MAX_COUNT_SPACE = 2**24
+#: Largest code the local search holds.
+MAX_WORDS = 2**20
 #: Random candidate words scored per move, besides the distance-1 neighbours.
 _N_RANDOM = 8
 #: Moves per kernel call, between time-limit checks.
@@ -120,8 +122,9 @@ def run(
     pw = ws.powers(q, n)
     radius = d - 1
     ball = ws.ball_size(q, n, radius)
-    # sphere packing: no code exceeds space / |ball(floor((d-1)/2))|
-    cap = space // ws.ball_size(q, n, radius // 2)
+    # sphere packing: no code exceeds space / |ball(floor((d-1)/2))|; beyond 2^20 words a
+    # local search is hopeless anyway, and the cap bounds the memory of the word arrays
+    cap = min(space // ws.ball_size(q, n, radius // 2), MAX_WORDS)
 
     # initial code: one random greedy pass (stream 0 of the seed)
     init, _, _ = greedy.greedy_indices(cell, "random", seed=seed_used, stream=0,
@@ -131,9 +134,10 @@ def run(
     n_cand = n * (q - 1) + _N_RANDOM
     # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
     # conflict, typically a few) x candidates x M distances: take the cheaper
-    use_counts = (space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
-                  and cap < 65535)
+    use_counts = space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
     mode = 1 if use_counts else 2
+    if mode == 1:
+        cap = min(cap, 65534)  # counts are uint16 and never exceed the code size
     empty = np.empty(0, dtype=np.int64)
     masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
     counts = np.zeros(space if mode == 1 else 0, dtype=np.uint16)
@@ -148,9 +152,12 @@ def run(
     tabu = np.full(tenure + 1, -1, dtype=np.int64)
     tabu[0] = 0
     rng = greedy._rng_state(seed_used, 1)
-    total = K.heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos,
-                              pat_add, counts)
-    assert total == 0  # a greedy code has no conflicts
+    if mode == 1:
+        total = K.heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos,
+                                  pat_add, counts)
+        assert total == 0  # a greedy code has no conflicts
+    else:
+        total = 0  # a greedy code has no conflicts: conf = 0 is exact, no O(M^2) recount
     moves = 0
     level_moves = 0
     levels: list[int] = []
@@ -161,7 +168,11 @@ def run(
         M += 1
         level_moves = 0
         while total > 0:
-            chunk = _CHUNK if steps is None else min(_CHUNK, steps - level_moves)
+            # about 5e7 elementary operations per kernel call, so the clock is read often
+            work = 2 * ball + M * n_cand if mode == 1 else 4 * n_cand * M
+            chunk = max(1, min(_CHUNK, 50_000_000 // work))
+            if steps is not None:
+                chunk = min(chunk, steps - level_moves)
             if chunk <= 0:
                 break
             total, done = K.heur_local_steps(q, n, d, space, M, words, conf, total, mode, pw,

@@ -16,8 +16,8 @@ search runs on orbits instead of words:
    distances from the representative r1 to the words of O2 are all cross distances;
 4. a maximum-weight clique (weight = orbit size) is a largest G-invariant code.
 
-Step 4 runs a randomised greedy with perturbation (fast, any size) and then, in the default
-mode, an exact weighted clique search under the time limit. Even a completed exact search
+Step 4 runs a randomised greedy with perturbation and a multi-neighbourhood tabu search (fast,
+any size) and then, in the default mode, an exact weighted clique search under the time limit. Even a completed exact search
 proves only "largest G-invariant code", never ``A_q(n,d)``, so the status is FEASIBLE and the
 invariant-optimality is recorded in ``settings["invariant_optimal"]``.
 
@@ -30,6 +30,8 @@ References
    automorphisms).
 .. [3] F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*,
    North-Holland, 1977 (isometries of Hamming space; Reed-Muller and cyclic codes).
+.. [4] Q. Wu, J.-K. Hao and F. Glover, "Multi-neighborhood tabu search for the maximum weight
+   clique problem", Annals of Operations Research 196 (2012) 611-634.
 """
 
 from __future__ import annotations
@@ -41,7 +43,7 @@ from typing import Any, Callable
 import numpy as np
 
 from codesearch._version import __version__
-from codesearch.errors import ParameterError
+from codesearch.errors import ParameterError, VerificationError
 from codesearch.model import Code, Params
 from codesearch.results import SearchResult, Status
 from codesearch.search import groups as _groups
@@ -49,7 +51,8 @@ from codesearch.search import groups as _groups
 __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph"]
 
 #: Options accepted by :func:`run` (see its docstring).
-OPTIONS = frozenset({"group", "mode", "restarts", "max_words", "max_orbits"})
+OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
+                     "max_orbits"})
 
 _MODES = ("exact", "heuristic")
 DEFAULT_MAX_ORBITS = 12000
@@ -102,6 +105,17 @@ def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
     return out
 
 
+_BYTE_POPCOUNT = np.array([bin(i).count("1") for i in range(256)], dtype=np.int64)
+
+
+def _popcount(x: np.ndarray) -> np.ndarray:
+    """Bits set in each uint64 (numpy >= 2 has ``bitwise_count``; a byte table otherwise)."""
+    if hasattr(np, "bitwise_count"):
+        return np.bitwise_count(x).astype(np.int64)
+    as_bytes = np.ascontiguousarray(x, dtype=np.uint64).view(np.uint8).reshape(x.size, 8)
+    return _BYTE_POPCOUNT[as_bytes].sum(axis=1)
+
+
 class _GraphTimeout(Exception):
     """The time limit ran out while the orbit graph was being built."""
 
@@ -130,7 +144,7 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     diff = planes[0] ^ planes[0][orbits.label]
     for pl in planes[1:]:
         diff |= pl ^ pl[orbits.label]
-    to_rep = np.bitwise_count(diff).astype(np.int64)
+    to_rep = _popcount(diff)
     to_rep[orbits.reps] = params.n + 1
     inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
     kept = np.flatnonzero(inner >= d)
@@ -189,11 +203,12 @@ def _greedy_clique(adj: np.ndarray, w: np.ndarray, score: np.ndarray, start: lis
 
 
 def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int,
-                     deadline: float | None) -> tuple[list[int], int]:
+                     deadline: float | None, stop: int | None = None) -> tuple[list[int], int]:
     """Iterated greedy for a heavy clique: greedy starts, then drop-and-regrow perturbations.
 
-    Returns the best clique found and the number of greedy passes made. Deterministic for a
-    given seed when the deadline does not cut it short.
+    Returns the best clique found and the number of greedy passes made; stops early once the
+    weight reaches ``stop``. Deterministic for a given seed when the deadline does not cut it
+    short.
     """
     k = w.size
     if k == 0:
@@ -211,6 +226,8 @@ def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int
     for it in range(restarts):
         if deadline is not None and time.perf_counter() > deadline:
             break
+        if stop is not None and best_w >= stop:
+            break
         if it % 4 == 0 or len(current) <= 1:
             trial = _greedy_clique(adj, w, score, [], rng)
         else:
@@ -224,6 +241,93 @@ def heuristic_clique(adj: np.ndarray, w: np.ndarray, *, restarts: int, seed: int
         if tw > best_w:
             best, best_w = trial, tw
     return best, passes
+
+
+def tabu_clique(adj: np.ndarray, w: np.ndarray, start: list[int], *, iterations: int,
+                seed: int, deadline: float | None, stall: int = 3000,
+                stop: int | None = None) -> tuple[list[int], int]:
+    """Multi-neighbourhood tabu search for a heavy clique, from the clique ``start``.
+
+    Moves (after Wu, Hao and Glover [4]_): ADD a vertex adjacent to the whole clique; else the
+    better of SWAP (add a vertex missing exactly one clique neighbour, drop that neighbour) and
+    DROP (the lightest member). A removed vertex is tabu for ``7 + random(|C|)`` iterations; after
+    ``stall`` iterations without a new best the search restarts from a randomised greedy clique.
+
+    Invariant: ``miss[v]`` is the number of clique members not adjacent to v (v outside C).
+    Returns the best clique and the iterations made (stopping once the weight reaches
+    ``stop``); deterministic for a seed when the deadline
+    does not cut it short.
+    """
+    k = w.size
+    if k == 0 or iterations <= 0:
+        return list(start), 0
+    rng = np.random.default_rng(seed)
+    nonadj = ~adj
+    np.fill_diagonal(nonadj, False)
+    wi = w.astype(np.int64)
+    score = wi.astype(np.float64)
+
+    def load(clique: list[int]) -> tuple[np.ndarray, np.ndarray]:
+        in_c = np.zeros(k, dtype=bool)
+        in_c[clique] = True
+        miss = nonadj[:, in_c].sum(axis=1).astype(np.int64) if clique else np.zeros(k, np.int64)
+        return in_c, miss
+
+    best = list(start)
+    best_w = int(wi[best].sum()) if best else 0
+    in_c, miss = load(best)
+    cur_w = best_w
+    tabu = np.zeros(k, dtype=np.int64)
+    since = 0
+    it = 0
+    for it in range(1, iterations + 1):
+        if deadline is not None and it % 128 == 0 and time.perf_counter() > deadline:
+            break
+        if stop is not None and best_w >= stop:
+            break
+        free = ~in_c & (tabu <= it)
+        add = np.flatnonzero(free & (miss == 0))
+        if add.size:
+            v = int(add[np.argmax(wi[add] + rng.random(add.size) * 0.5)])
+            in_c[v] = True
+            miss += nonadj[v]
+            cur_w += int(wi[v])
+        else:
+            members = np.flatnonzero(in_c)
+            if members.size == 0:
+                break
+            swap = np.flatnonzero(free & (miss == 1))
+            drop_u = int(members[np.argmin(wi[members] + rng.random(members.size) * 0.5)])
+            drop_gain = -int(wi[drop_u])
+            if swap.size:
+                # the unique non-neighbour in C of each swap candidate
+                out = members[np.argmax(nonadj[np.ix_(swap, members)], axis=1)]
+                gains = wi[swap] - wi[out]
+                j = int(np.argmax(gains + rng.random(swap.size) * 0.5))
+                if gains[j] >= drop_gain:
+                    u, v = int(out[j]), int(swap[j])
+                    in_c[u] = False
+                    miss -= nonadj[u]
+                    in_c[v] = True
+                    miss += nonadj[v]
+                    cur_w += int(wi[v] - wi[u])
+                    tabu[u] = it + 7 + int(rng.integers(0, members.size + 1))
+                    drop_u = -1
+            if drop_u >= 0:
+                in_c[drop_u] = False
+                miss -= nonadj[drop_u]
+                cur_w += drop_gain
+                tabu[drop_u] = it + 7
+        if cur_w > best_w:
+            best, best_w, since = np.flatnonzero(in_c).tolist(), cur_w, 0
+        else:
+            since += 1
+            if since >= stall:
+                since = 0
+                tabu[:] = 0
+                in_c, miss = load(_greedy_clique(adj, w, score, [], rng))
+                cur_w = int(wi[in_c].sum())
+    return best, it
 
 
 class _Deadline(Exception):
@@ -268,44 +372,59 @@ def _exact_networkx(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
     return list(finder.incumbent_nodes), complete, _Timed.calls
 
 
-def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
-                  deadline: float | None) -> tuple[list[int], bool, int, str]:
-    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine name)``.
+def bitsets(adj: np.ndarray) -> np.ndarray:
+    """Dense bool adjacency -> ``(K, ceil(K/64))`` uint64 rows; bit ``j & 63`` of word
+    ``j >> 6`` of row i is set iff i ~ j (the clique engine's format)."""
+    k = adj.shape[0]
+    words = max(1, (k + 63) // 64)
+    packed = np.packbits(adj, axis=1, bitorder="little")
+    out = np.zeros((k, words * 8), dtype=np.uint8)
+    out[:, :packed.shape[1]] = packed
+    return out.view("<u8").astype(np.uint64)
 
-    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` once it is
-    available, networkx's branch and bound otherwise.
+
+def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
+                  deadline: float | None, goal: int | None
+                  ) -> tuple[list[int], bool, int, str, int | None]:
+    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine, upper)``.
+
+    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` when it is
+    available, networkx's branch and bound otherwise. ``complete`` means no heavier clique
+    exists; ``upper`` is a proven bound on the clique weight (None if unknown).
     """
     try:
         from codesearch.search import clique as engine  # the exact-search issue's engine
         fn = engine.max_weight_clique
     except (ImportError, AttributeError):
         fn = None
+    lower = int(w[incumbent].sum()) if incumbent else 0
     if fn is not None:
+        import inspect
+
         limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
-        out = fn(np.packbits(adj, axis=1, bitorder="little"), w, time_limit=limit)
-        return _engine_result(out, w)
+        accepted = inspect.signature(fn).parameters
+        extra = {k: v for k, v in (("lower", lower), ("goal", goal)) if k in accepted}
+        out = fn(bitsets(adj), w.astype(np.int64), time_limit=limit, **extra)
+        found = [int(v) for v in np.asarray(out.vertices).tolist()]
+        # With lower = the incumbent's weight the engine looks only for heavier cliques; when
+        # there is none the incumbent is the answer (and proved so if the search completed).
+        clique = found if int(w[found].sum()) > lower else list(incumbent)
+        upper = getattr(out, "upper", None)
+        return (clique, bool(out.complete), int(getattr(out, "nodes", 0)), "codesearch.clique",
+                None if upper is None else int(upper))
     if int(adj.sum()) // 2 > _NETWORKX_MAX_EDGES:
         # networkx holds the graph as dicts (hundreds of bytes per edge) and cannot be stopped
         # while building it: keep the heuristic's clique instead.
-        return list(incumbent), False, 0, "none (graph too large for networkx)"
+        return list(incumbent), False, 0, "none (graph too large for networkx)", None
     clique, complete, nodes = _exact_networkx(adj, w, incumbent, deadline)
-    return clique, complete, nodes, "networkx"
-
-
-def _engine_result(out: Any, w: np.ndarray) -> tuple[list[int], bool, int, str]:
-    """Normalise the engine's return value (kept in one place for when its shape settles)."""
-    members = getattr(out, "clique", None)
-    if members is None and isinstance(out, tuple):
-        members = out[0]
-    complete = bool(getattr(out, "optimal", getattr(out, "complete", False)))
-    nodes = int(getattr(out, "nodes", 0))
-    return [int(v) for v in members], complete, nodes, "codesearch.clique"
+    return clique, complete, nodes, "networkx", int(w[clique].sum()) if complete else None
 
 
 # ------------------------------------------------------------------------------ method entry
 def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
         progress: Callable[[dict[str, Any]], None] | None = None,
         group: str = "cyclic", mode: str = "exact", restarts: int = 200,
+        iterations: int = 20000, size: int | None = None,
         max_words: int = _groups.DEFAULT_MAX_WORDS,
         max_orbits: int = DEFAULT_MAX_ORBITS) -> SearchResult:
     """Largest code found that is invariant under the group ``group``.
@@ -327,7 +446,13 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         time limit (proving the largest G-invariant code when it finishes); ``"heuristic"``
         stops after the heuristic.
     restarts : int
-        Greedy passes of the heuristic (a deadline may cut them short).
+        Randomised greedy passes (a deadline may cut them short).
+    iterations : int
+        Moves of the tabu search that follows the greedy passes (see :func:`tabu_clique`),
+        capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded).
+    size : int, optional
+        Stop as soon as a G-invariant code of at least this many words is found (recorded as
+        the result's ``target``).
     max_words, max_orbits : int
         Limits on ``q**n`` and on the number of admissible orbits.
 
@@ -341,8 +466,11 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     deadline = None if time_limit is None else start + time_limit
     if mode not in _MODES:
         raise ParameterError(f"orbit mode must be one of {', '.join(_MODES)}, got {mode!r}")
-    if isinstance(restarts, bool) or not isinstance(restarts, int) or restarts < 0:
-        raise ParameterError(f"restarts must be a non-negative integer, got {restarts!r}")
+    if size is not None and (isinstance(size, bool) or not isinstance(size, int) or size < 1):
+        raise ParameterError(f"size must be a positive integer, got {size!r}")
+    for name, value in (("restarts", restarts), ("iterations", iterations)):
+        if isinstance(value, bool) or not isinstance(value, int) or value < 0:
+            raise ParameterError(f"{name} must be a non-negative integer, got {value!r}")
     seed = 0 if seed is None else int(seed)
     grp = _groups.parse_group(group, params.q, params.n)
     try:
@@ -364,17 +492,29 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
                       "elapsed": time.perf_counter() - start})
 
     report("graph", [])
+    # In exact mode the heuristics get at most half the budget left after the graph.
+    heur_deadline = deadline
+    if mode == "exact" and deadline is not None:
+        heur_deadline = time.perf_counter() + 0.5 * max(0.0, deadline - time.perf_counter())
     clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=seed,
-                                      deadline=deadline)
+                                      deadline=heur_deadline, stop=size)
+    # Small graphs need few moves (and the exact search settles them anyway).
+    iterations = min(iterations, 50 * int(w.size) + 500)
+    clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=seed,
+                                deadline=heur_deadline, stop=size)
     report("heuristic", clique)
-    complete, nodes, engine = False, passes, "greedy"
-    if mode == "exact" and w.size:
-        exact, complete, enodes, engine = _exact_clique(graph.adj, w, clique, deadline)
+    complete, nodes, engine, inv_upper = False, passes + moves, "greedy+tabu", None
+    reached = size is not None and int(w[clique].sum()) >= size
+    if mode == "exact" and w.size and not reached:
+        exact, complete, enodes, engine, inv_upper = _exact_clique(graph.adj, w, clique,
+                                                                   deadline, size)
         nodes += enodes
         if int(w[exact].sum()) >= int(w[clique].sum()):
             clique = exact
         report("exact", clique)
     code = graph.code_of(sorted(clique), params.q) if clique else None
+    if code is not None and not _groups.is_invariant(code, grp):
+        raise VerificationError(f"orbit search built a code not invariant under {grp.spec!r}")
     settings = {
         "group": grp.spec,
         "generators": len(grp.generators),
@@ -385,7 +525,10 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         "mode": mode,
         "clique_engine": engine,
         "invariant_optimal": bool(complete),
+        # a proven bound on the size of every G-invariant code (not on A_q(n,d))
+        "invariant_upper": inv_upper,
         "restarts": restarts,
+        "iterations": iterations,
         "time_limit": time_limit,
         "version": __version__,
     }
@@ -399,4 +542,5 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         nodes=nodes,
         seed=seed,
         settings=settings,
+        target=size,
     )
