@@ -32,7 +32,7 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 
 import numpy as np
 
-from codesearch.errors import InputError, ParameterError
+from codesearch.errors import InputError, ParameterError, VerificationError
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult, SearchResult, Status
 
@@ -228,6 +228,9 @@ class _LocalExecutor:
             initializer=_ignore_sigint,
         )
 
+    def capacity(self) -> int:
+        return self.workers
+
     def submit(self, task: CellTask) -> Any:
         return self.pool.submit(run_cell, task)
 
@@ -270,6 +273,15 @@ class _DaskExecutor:
         except (OSError, TimeoutError, ValueError) as exc:
             raise InputError(f"cannot reach Dask scheduler {address}: {exc}".splitlines()[0]) from None
         self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
+
+    def capacity(self) -> int:
+        # Two cells per worker keep workers busy while the driver stores results; workers
+        # that join later (a cluster scaling up under SLURM) raise it as they arrive.
+        try:
+            self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
+        except Exception:  # keep the last known size if the scheduler is briefly unreachable
+            pass
+        return 2 * self.workers
 
     def submit(self, task: CellTask) -> Any:
         p = task.params
@@ -407,6 +419,8 @@ def run_table(
         running: dict[Any, CellTask] = {}
         crashes: dict[Params, int] = {}
         while pending or running:
+            if executor is not None:
+                slots = executor.capacity()
             while pending and len(running) < slots:
                 task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
                 if task is None:
@@ -418,7 +432,7 @@ def run_table(
                     # never pays for worker start-up.
                     executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
                         workers or os.cpu_count() or 1)
-                    slots = executor.workers * 2 if scheduler else executor.workers
+                    slots = executor.capacity()
                 running[executor.submit(task)] = task
                 emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
                       "upper": task.known_upper})
@@ -448,7 +462,16 @@ def run_table(
                     summary.errors.append(msg)
                     emit({"event": "error", "cell": task.params, "error": msg})
                     continue
-                _store_outcome(st, task, out)
+                try:
+                    _store_outcome(st, task, out)
+                except VerificationError as exc:
+                    # A producer's bug: the cell's transaction rolled back, nothing of it is
+                    # stored; the run goes on and reports the cell as failed.
+                    summary.failed += 1
+                    msg = f"{task.params}: verification failed, nothing stored: {exc}"
+                    summary.errors.append(msg.splitlines()[0])
+                    emit({"event": "error", "cell": task.params, "error": msg})
+                    continue
                 for method, msg in out["errors"]:
                     summary.errors.append(f"{task.params} {method}: {msg}")
                 summary.ran += 1
