@@ -217,8 +217,9 @@ def _ignore_sigint() -> None:
 
 
 class _LocalExecutor:
-    def __init__(self, workers: int) -> None:
+    def __init__(self, workers: int, per_worker: int = 1) -> None:
         self.workers = workers
+        self.per_worker = per_worker
         self._new()
 
     def _new(self) -> None:
@@ -229,7 +230,7 @@ class _LocalExecutor:
         )
 
     def capacity(self) -> int:
-        return self.workers
+        return self.per_worker * self.workers
 
     def submit(self, task: CellTask) -> Any:
         return self.pool.submit(run_cell, task)
@@ -263,7 +264,8 @@ class _LocalExecutor:
 
 
 class _DaskExecutor:
-    def __init__(self, address: str) -> None:
+    def __init__(self, address: str, per_worker: int = 2) -> None:
+        self.per_worker = per_worker
         try:
             from distributed import Client
         except ImportError as exc:  # pragma: no cover - distributed is a dependency
@@ -281,7 +283,7 @@ class _DaskExecutor:
             self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
         except Exception:  # keep the last known size if the scheduler is briefly unreachable
             pass
-        return 2 * self.workers
+        return self.per_worker * self.workers
 
     def submit(self, task: CellTask) -> Any:
         p = task.params
@@ -355,6 +357,7 @@ def run_table(
     bounds: bool = True,
     sdp: bool = False,
     propagate: bool = True,
+    per_worker: int | None = None,
     progress: Progress | None = None,
 ) -> TableSummary:
     """Fill ``cells`` into ``store``: bounds, searches within ``budget`` seconds per cell.
@@ -381,6 +384,10 @@ def run_table(
     sdp : bool
         Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
         already ran are not redone).
+    per_worker : int, optional
+        Cells in flight per worker: default 1 on the local pool (a queued cell may still be
+        settled by propagation before it starts) and 2 on a Dask cluster (hides the round
+        trip to remote workers).
     progress : callable, optional
         Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
         ``finish``).
@@ -400,6 +407,8 @@ def run_table(
         raise ParameterError(f"budget must be positive, got {budget}")
     if workers is not None and workers < 1:
         raise ParameterError(f"workers must be at least 1, got {workers}")
+    if per_worker is not None and per_worker < 1:
+        raise ParameterError(f"per_worker must be at least 1, got {per_worker}")
     specs = _resolve_methods(methods)
     bounds = bounds and _bounds_available()
     own = not hasattr(store, "transaction")
@@ -430,8 +439,9 @@ def run_table(
                 if executor is None:
                     # Started on the first task only: a resumed run with nothing left to do
                     # never pays for worker start-up.
-                    executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
-                        workers or os.cpu_count() or 1)
+                    executor = (
+                        _DaskExecutor(scheduler, per_worker or 2) if scheduler
+                        else _LocalExecutor(workers or os.cpu_count() or 1, per_worker or 1))
                     slots = executor.capacity()
                 running[executor.submit(task)] = task
                 emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
