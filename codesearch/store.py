@@ -410,14 +410,24 @@ class Store:
             return int(row[0])
 
     def get_code(self, code_id: int) -> tuple[Params, Code]:
-        """The cell and the codewords of stored code ``code_id``."""
+        """The cell and the codewords of stored code ``code_id``, re-verified on the way out.
+
+        Raises
+        ------
+        VerificationError
+            If the stored bytes no longer decode to a code of the cell (a damaged store).
+        """
+        from codesearch import verify
+
         row = self._conn.execute(
             "SELECT q,n,d,size,words FROM codes WHERE id=?", (code_id,)
         ).fetchone()
         if row is None:
             raise InputError(f"no stored code with id {code_id}")
         q, n, d, size, blob = row
-        return Params(q, n, d), unpack_code(blob, q, n, size)
+        params, code = Params(q, n, d), unpack_code(blob, q, n, size)
+        verify.assert_code(code, params)
+        return params, code
 
     def best_code(self, params: Params) -> Code | None:
         """The largest stored code of the cell (None when there is none)."""

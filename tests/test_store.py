@@ -237,3 +237,19 @@ def test_many_processes_create_one_store_at_once(tmp_path):
         for extra in ("-wal", "-shm"):
             if os.path.exists(path + extra):
                 os.unlink(path + extra)
+
+
+def test_tampered_code_is_caught_on_the_way_out(tmp_path):
+    path = tmp_path / "s.sqlite"
+    with Store(path) as s:
+        cid = s.add_code(hamming_code(3), Params(2, 7, 3), method="exact")
+    con = sqlite3.connect(path)
+    blob = bytearray(con.execute("SELECT words FROM codes WHERE id=?", (cid,)).fetchone()[0])
+    blob[1] = blob[0]  # second word := first word: distance 0
+    con.execute("UPDATE codes SET words=? WHERE id=?", (bytes(blob), cid))
+    con.commit()
+    con.close()
+    with Store(path) as s:
+        with pytest.raises(VerificationError):
+            s.best_code(Params(2, 7, 3))
+        assert any(f"code #{cid}" in p for p in s.audit())
