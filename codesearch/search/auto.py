@@ -122,7 +122,8 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     seed : int, optional
         Seed passed to every randomised step (default 0; recorded).
     progress : callable, optional
-        Called after every step with ``{"step", "best", "upper", "elapsed"}``.
+        Passed to every step's search, and called after every step with ``{"step", "best",
+        "incumbent", "upper", "nodes", "elapsed"}`` (portfolio totals).
     group : sequence of str or str, optional
         Group specs for the orbit step (a string is split on ``;``, so the same
         ``--group`` option serves ``orbit`` and ``auto``); default :func:`natural_groups`.
@@ -177,12 +178,12 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         try:
             module = __import__(spec.module, fromlist=["OPTIONS"])
             accepted = set(getattr(module, "OPTIONS", ()))
-            res = search(params, method, time_limit=limit, seed=seed,
+            res = search(params, method, time_limit=limit, seed=seed, progress=progress,
                          **{k: v for k, v in options.items() if k in accepted})
         except ImportError as exc:
             log.append(f"{name}: skipped ({type(exc).__name__})")
             return
-        except (ParameterError, NotImplementedError) as exc:
+        except (ParameterError, NotImplementedError, MemoryError) as exc:
             log.append(f"{name}: skipped ({str(exc).splitlines()[0] if str(exc) else exc!r})")
             return
         nodes += int(res.nodes)
@@ -197,8 +198,9 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
                 f"upper bound {upper} ({upper_method}) is below a verified code of size "
                 f"{best.size} ({lower_method})")
         if progress is not None:
-            progress({"step": name, "best": 0 if best is None else best.size, "upper": upper,
-                      "elapsed": time.perf_counter() - start})
+            size = 0 if best is None else best.size
+            progress({"step": name, "best": size, "incumbent": size, "upper": upper,
+                      "nodes": nodes, "elapsed": time.perf_counter() - start})
 
     step("lexicode", "lexicode", 0.05)
     step("greedy", "greedy", 0.05)
