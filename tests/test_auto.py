@@ -182,3 +182,12 @@ def test_auto_is_sound_on_tiny_cells(q, n, d):
         assert res.upper >= truth
     if res.optimal:
         assert res.size == truth == res.upper
+
+
+def test_progress_reports_portfolio_totals(monkeypatch):
+    _only(monkeypatch, {"orbit", "auto"})
+    monkeypatch.setattr(bounds, "upper_bound", _fake_bound(16), raising=False)
+    seen = []
+    res = search(HAMMING, "auto", time_limit=20, progress=seen.append)
+    steps = [e for e in seen if "step" in e]
+    assert steps and steps[-1]["best"] == res.size == 16 and steps[-1]["upper"] == 16
