@@ -408,6 +408,10 @@ def _drive(job: Callable[..., None], args: tuple, deadline: float | None,
         return True
     import multiprocessing as mp
 
+    if mp.current_process().daemon:
+        raise ParameterError(
+            "SAT search with a time limit needs a child process, which a daemonic worker may "
+            "not start: run Dask workers with DASK_DISTRIBUTED__WORKER__DAEMON=False")
     ctx = mp.get_context("fork")
     recv, send = ctx.Pipe(duplex=False)
 
