@@ -171,3 +171,24 @@ def test_agrees_with_exact_search(q, n, d):
     b = search(p, "exact")
     assert a.status is b.status is Status.OPTIMAL
     assert a.size == b.size
+
+
+def test_cli_size_adds_exists(capsys):
+    import json
+
+    from codesearch.cli import main
+
+    assert main(["find", "6", "3", "--method", "sat", "--size", "9", "--json", "--quiet"]) == 0
+    out = json.loads(capsys.readouterr().out.strip().splitlines()[-1])
+    assert out["exists"] is False and out["upper"] == 8 and out["status"] == "infeasible"
+    assert main(["find", "6", "3", "--method", "sat", "--size", "8", "--json", "--quiet"]) == 0
+    out = json.loads(capsys.readouterr().out.strip().splitlines()[-1])
+    assert out["exists"] is True and out["size"] >= 8
+
+
+def test_cli_proof_without_size_is_exit_2(capsys):
+    from codesearch.cli import main
+
+    assert main(["find", "6", "3", "--method", "sat", "--proof", "x", "--quiet"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and "--size" in err
