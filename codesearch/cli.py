@@ -449,6 +449,13 @@ def main(argv: Sequence[str] | None = None) -> int:
     except InputError as exc:
         print(str(exc).splitlines()[0] if str(exc) else type(exc).__name__, file=sys.stderr)
         return 2
+    except BrokenPipeError:
+        # the reader (e.g. `| head`) went away: stop quietly, as text tools do
+        import os
+
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return 0
     except KeyboardInterrupt:
         print(f"codesearch {args.command}: interrupted", file=sys.stderr)
         return 130

@@ -81,7 +81,8 @@ def _nordstrom_robinson() -> Code:
     support = list(np.flatnonzero(octad))
     order = support + [i for i in range(24) if i not in support]
     g = golay[:, order]
-    heads = [tuple([0] * 8)] + [tuple(1 if p in (0, j) else 0 for p in range(8)) for j in range(1, 8)]
+    heads = [tuple([0] * 8)]
+    heads += [tuple(1 if p in (0, j) else 0 for p in range(8)) for j in range(1, 8)]
     rows = [w[8:] for w in g if tuple(w[:8]) in heads]
     return Code(np.array(rows, dtype=np.uint8), 2)
 
@@ -206,6 +207,8 @@ def test_golay_cells():
     ],
 )
 def test_published_three_point_values(n, d, published):
+    # The program here adds the rows A_i <= A(n,d,i) to Schrijver's, so it could only be
+    # lower; on these cells it reproduces the published values exactly.
     res = three_point_bound(Params(2, n, d))
     assert res.certified
     assert res.value == published
@@ -310,6 +313,13 @@ def test_checker_rejects_wrong_cell(cert):
     assert check_certificate(dict(cert, n=14))[0] is False  # program (13,6) cannot bound A(14,6)
     assert check_certificate(dict(cert, d=5, n=12))[0] is True  # A(12,5) = A(13,6)
     assert check_certificate(dict(cert, d=4))[0] is False
+
+
+def test_checker_rejects_bad_row_labels(cert):
+    for label in (["weight", 0], ["weight", 99], ["upper", 3, 2, 5], ["nonsense", 1]):
+        bad = json.loads(json.dumps(cert))
+        bad["multipliers"].append({"row": label, "value": "1/2"})
+        assert check_certificate(bad)[0] is False, label
 
 
 def test_checker_rejects_floats_and_garbage(cert):

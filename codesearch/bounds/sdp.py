@@ -14,8 +14,9 @@ of distances, see :mod:`codesearch.bounds.terwilliger`):
                                 ( sum_t beta[i,j,k,t] (x[i+j-2t,0,0] - x[i,j,t]) )_{i,j}     PSD,
 
 with the named additions used in the literature where they are valid: Delsarte's linear
-inequalities (always), and for even ``d`` the restriction to even distances (some largest
-code has only even distances). For odd ``d`` the cell is bounded through
+inequalities and ``A_i <= A(n, d, i)`` with Johnson's bound for constant-weight codes
+(always valid), and for even ``d`` the restriction to even distances (some largest code has
+only even distances). For odd ``d`` the cell is bounded through
 ``A(n, d) = A(n + 1, d + 1)``.
 
 Rigorous rounding
@@ -34,9 +35,11 @@ every code the corresponding ``x`` satisfies all constraints and ``0 <= x_v <= u
 where the last sum absorbs whatever dual infeasibility rounding left, ``u_v`` being a
 proven cap (:func:`~codesearch.bounds.terwilliger.variable_cap`, from Johnson's bound on
 constant-weight codes; the plain cap 1 cost thousands on cells like A(28,12)). Everything
-on the right is computed with integers; the certified bound is its floor. :func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
-Delsarte's LP dual is a dual solution of the same program (Delsarte rows only, no blocks);
-it is certified the same way and kept when the semidefinite dual certifies less.
+on the right is computed with integers; the certified bound is its floor.
+:func:`codesearch.verify.check_certificate` redoes this from the certificate alone.
+The dual of Delsarte's LP (with the constant-weight rows) is a dual solution of the same
+program (those rows only, no blocks); it is certified the same way and kept when the
+semidefinite dual certifies less.
 
 Solver choice (measured on this machine, see benchmarks/bench_sdp.py)
 ------------------------------------------------------------------
@@ -88,15 +91,18 @@ _PASSES = 3
 
 
 def three_point_cost(params: Params) -> float:
-    """Rough wall-clock estimate (seconds) of :func:`three_point_bound` on this machine.
+    """Estimated CPU seconds of :func:`three_point_bound` on this machine (one core).
 
-    Fitted on measured solves (benchmarks/bench_sdp.py): time grows roughly like ``n^4``
-    (the number of block entries times the triangles they touch).
+    Fitted on benchmarks/bench_sdp.py (binary grid n <= 28, d = 4..12, all passes
+    included): about 0.17 s at n = 17, 0.8 s at n = 22, 1.9 s at n = 26, 2.9 s at n = 29,
+    i.e. roughly ``3 (n / 29)^5.3``, with ``n + 1`` for odd ``d``. Wall time on a loaded
+    machine is larger (x2-4 measured while other jobs ran). ``inf`` where the bound does not
+    apply.
     """
-    if params.q != 2:
+    if params.q != 2 or params.d < 3:
         return math.inf
     n = params.n + (params.d % 2)
-    return 0.05 + 2.5 * (n / 28.0) ** 4
+    return 0.02 + 3.0 * (n / 29.0) ** 5.3
 
 
 def _sdp_cell(params: Params) -> tuple[int, int]:
@@ -188,7 +194,8 @@ def solve_three_point(
     ``certificate`` (JSON-ready, without the target cell), ``float_value`` (the solver's
     primal objective in the kept pass), ``exact_float`` (the exact bound as a float),
     ``gap`` (relative primal-dual gap reported by the solver), ``passes`` (per-pass
-    summaries), ``seconds`` and ``reason``.
+    summaries), ``seconds``, ``check_seconds`` (the independent re-check in
+    :mod:`codesearch.verify`, run before returning) and ``reason``.
     """
     import numpy as np
 
@@ -245,11 +252,21 @@ def solve_three_point(
             "passes": len(passes),
             "round_bits": _ROUND_BITS,
         }
+        # The independent checker re-derives everything; disagreement is a bug here.
+        from codesearch.errors import VerificationError
+        from codesearch.verify import check_certificate
+
+        t_check = time.perf_counter()
+        valid, bound, reason = check_certificate(dict(best["certificate"], q=2, n=n, d=d))
+        best["check_seconds"] = time.perf_counter() - t_check
+        if not valid or bound != best["value"]:
+            raise VerificationError(f"three-point certificate for ({n},{d}) rejected: {reason}")
     return best
 
 
 def _delsarte_pass(data: Any, m0: float) -> dict:
-    """Certify Delsarte's LP inside the same program (no PSD blocks, Delsarte rows only).
+    """Certify Delsarte's LP inside the same program (no PSD blocks; the Delsarte rows and
+    the constant-weight rows ``A_i <= A(n,d,i)``, i.e. the LP strengthened as usual).
 
     The three-point program contains Delsarte's inequalities, so the LP dual is a dual
     solution of it too; certifying it the same way guarantees the result is never weaker
@@ -260,8 +277,8 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     from scipy.optimize import linprog
 
     t0 = time.perf_counter()
-    nv = len(data.triangles)
-    rows = [a for a, (label, cv, rhs) in enumerate(data.rows) if label[0] == "delsarte"]
+    kinds = ("delsarte", "weight")
+    rows = [a for a, (label, _cv, _rhs) in enumerate(data.rows) if label[0] in kinds]
     single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
     col = {v: c for c, v in enumerate(single)}
     a_ub = np.zeros((len(rows), len(single)))
@@ -272,6 +289,7 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
             a_ub[r, col[v]] = c / m0
         b_ub[r] = rhs / m0
     cvec = -np.array([data.objective[v] for v in single], dtype=float) / m0
+    # x[i,0,0] <= 1 helps HiGHS; its multipliers are not needed (absorbed by the caps)
     res = linprog(cvec, A_ub=a_ub, b_ub=b_ub, bounds=[(0, 1)] * len(single), method="highs")
     sol = {"status": f"lp:{res.status}", "float_value": float("nan"), "gap": 0.0}
     out = _certify_parts(data, [], [], sol)
@@ -284,7 +302,6 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
                 mus.append((a, Fraction(mu)))
         out = _certify_parts(data, [], mus, dict(sol, float_value=out["float_value"]))
     out["seconds"] = time.perf_counter() - t0
-    del nv
     return out
 
 
@@ -566,9 +583,10 @@ def _frac_str(x: Fraction) -> str:
 def _round_psd(zt: "Any") -> list[list[int]] | None:
     """Round a float PSD matrix to integers N (meaning N / 2**_ROUND_BITS) with N exactly PD.
 
-    The matrix is normalised to unit largest entry before rounding is not needed: entries
-    of the scaled dual blocks are O(1) by construction. The shift ``eps * I`` starts at the
-    size of the most negative eigenvalue and grows tenfold until exact LDL^T succeeds.
+    Rounding is absolute (grid 2**-_ROUND_BITS): the scaled dual blocks have entries of
+    order one or larger by construction, so little relative precision is lost. The shift
+    ``eps * I`` starts at the size of the most negative eigenvalue of the rounded matrix
+    (plus a 1e-12 margin) and grows tenfold until exact LDL^T proves positive definiteness.
     """
     import numpy as np
 

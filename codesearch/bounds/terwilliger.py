@@ -128,7 +128,9 @@ class ThreePointData:
         ``sum coef * y <= rhs``; ``label`` is ``("upper", i, j, t)`` for
         ``x[i,j,t] <= x[i,0,0]``, ``("pair", i, j, t)`` for
         ``x[i,0,0] + x[j,0,0] <= 1 + x[i,j,t]`` and ``("delsarte", k)`` for
-        ``sum_i C(n,i) K_k(i) x[i,0,0] >= 0`` (``K_k`` the Krawtchouk polynomial).
+        ``sum_i C(n,i) K_k(i) x[i,0,0] >= 0`` (``K_k`` the Krawtchouk polynomial) and
+        ``("weight", i)`` for ``C(n,i) x[i,0,0] <= A(n,d,i)`` (a bound on constant-weight
+        codes, :func:`constant_weight_cap`).
     """
 
     n: int
@@ -265,6 +267,11 @@ def three_point_data(n: int, d: int, even: bool, delsarte: bool = True) -> Three
                 add(("upper", i, j, t), [(x, 1), (var(i, 0, 0), -1)], 0)
                 # x[i,0,0] + x[j,0,0] <= 1 + x[i,j,t]: [v in C] + [w in C] - 1 <= [v,w in C].
                 add(("pair", i, j, t), [(var(i, 0, 0), 1), (var(j, 0, 0), 1), (x, -1)], 1)
+    for i in range(1, n + 1):
+        # A_i <= A(n, d, i): the codewords at distance i from a codeword, translated to
+        # the origin, form a constant-weight code (Johnson's bound, as in the classical
+        # strengthening of Delsarte's LP); C(n,i) x[i,0,0] is the average A_i.
+        add(("weight", i), [(var(i, 0, 0), _binom(n, i))], constant_weight_cap(n, d, i))
     if delsarte:
         for k in range(n + 1):
             terms = [(var(i, 0, 0), -_binom(n, i) * _krawtchouk(n, k, i)) for i in range(n + 1)]

@@ -8,8 +8,9 @@ The portfolio runs, in order, while time remains and the best code is below the 
 
 1. the upper bound front end :func:`codesearch.bounds.upper_bound` (only a *usable* bound:
    certified and valid for all codes);
-2. the fast heuristics (``lexicode``, ``greedy``, ``local``);
-3. orbit searches over a few natural groups for the cell (:func:`natural_groups`);
+2. the fast heuristics (``lexicode``, ``greedy``);
+3. orbit searches over a few natural groups for the cell (:func:`natural_groups`), then the
+   local search (``local``);
 4. the exact search when the space is small enough to finish;
 5. SAT for the one step above the best code found (a "no" proves ``A_q(n,d) <= best``).
 
@@ -52,27 +53,46 @@ _ORBIT_MAX_WORDS = 1 << 22
 def natural_groups(q: int, n: int) -> list[str]:
     """A few groups under which good codes of the cell are often invariant (common practice).
 
-    Reed-Muller cosets for binary lengths ``2^m`` and ``2^m - 1``; the cyclic group on all
-    coordinates or on all but one (extended cyclic codes); with complementation (binary) or
-    scalar multiples (q prime); two-block quasi-cyclic shifts for even n; the dihedral group.
+    Reed-Muller cosets for binary lengths ``2^m`` and ``2^m - 1``; quadratic-residue
+    symmetry (shift and multiplication by squares) for prime n or prime n - 1, with scalar
+    multiples for q prime (QR and extended QR codes); the cyclic group on all
+    coordinates; quasi-cyclic shifts of two blocks (index 2; for odd n the last coordinate
+    fixed) and of blocks of three (the remaining coordinates fixed); the cyclic group on all
+    but one coordinate (extended cyclic codes), with complementation (binary) or scalar
+    multiples (q prime); the dihedral group.
     """
     out: list[str] = []
     if q == 2 and n >= 7 and ((n & (n - 1)) == 0 or (n & (n + 1)) == 0):
         out.append("rm1")
+    scale = "*scale" if q in (3, 5, 7, 11, 13) else ""
+    # Quadratic-residue symmetry: i -> i + 1 and i -> s*i with s generating the squares mod a
+    # prime p, on all n = p coordinates or on n - 1 = p of them (extended codes).
+    for p, blocks in ((n, ""), (n - 1, f":0-{n - 2}")):
+        if p >= 5 and all(p % f for f in range(2, int(p**0.5) + 1)):
+            k = pow(_primitive_root(p), 2, p)
+            out.append(f"cyclic{blocks}*mul:{k}{blocks}{scale}")
     out.append("cyclic")
+    if n >= 6:
+        h = n // 2
+        out.append(f"cyclic:0-{h - 1},{h}-{2 * h - 1}")
+    if n >= 9:
+        out.append("cyclic:" + ",".join(f"{3 * b}-{3 * b + 2}" for b in range(n // 3)))
     if n >= 4:
         out.append(f"cyclic:0-{n - 2}")
     if q == 2:
         out.append("cyclic*rep")
         if n >= 4:
             out.append(f"cyclic:0-{n - 2}*rep")
-    elif q in (3, 5, 7, 11, 13):
-        out.append("cyclic*scale")
-    if n >= 6 and n % 2 == 0:
-        h = n // 2
-        out.append(f"cyclic:0-{h - 1},{h}-{n - 1}")
+    elif scale:
+        out.append("cyclic" + scale)
     out.append("cyclic*rev")
     return out
+
+
+def _primitive_root(p: int) -> int:
+    """Least primitive root modulo the prime p."""
+    factors = [f for f in range(2, p) if (p - 1) % f == 0 and all(f % e for e in range(2, f))]
+    return next(a for a in range(2, p) if all(pow(a, (p - 1) // f, p) != 1 for f in factors))
 
 
 def _bound(params: Params) -> tuple[int | None, str | None, str]:
@@ -102,7 +122,8 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     seed : int, optional
         Seed passed to every randomised step (default 0; recorded).
     progress : callable, optional
-        Called after every step with ``{"step", "best", "upper", "elapsed"}``.
+        Passed to every step's search, and called after every step with ``{"step", "best",
+        "incumbent", "upper", "nodes", "elapsed"}`` (portfolio totals).
     group : sequence of str or str, optional
         Group specs for the orbit step (a string is split on ``;``, so the same
         ``--group`` option serves ``orbit`` and ``auto``); default :func:`natural_groups`.
@@ -157,12 +178,12 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
         try:
             module = __import__(spec.module, fromlist=["OPTIONS"])
             accepted = set(getattr(module, "OPTIONS", ()))
-            res = search(params, method, time_limit=limit, seed=seed,
+            res = search(params, method, time_limit=limit, seed=seed, progress=progress,
                          **{k: v for k, v in options.items() if k in accepted})
         except ImportError as exc:
             log.append(f"{name}: skipped ({type(exc).__name__})")
             return
-        except (ParameterError, NotImplementedError) as exc:
+        except (ParameterError, NotImplementedError, MemoryError) as exc:
             log.append(f"{name}: skipped ({str(exc).splitlines()[0] if str(exc) else exc!r})")
             return
         nodes += int(res.nodes)
@@ -177,17 +198,19 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
                 f"upper bound {upper} ({upper_method}) is below a verified code of size "
                 f"{best.size} ({lower_method})")
         if progress is not None:
-            progress({"step": name, "best": 0 if best is None else best.size, "upper": upper,
-                      "elapsed": time.perf_counter() - start})
+            size = 0 if best is None else best.size
+            progress({"step": name, "best": size, "incumbent": size, "upper": upper,
+                      "nodes": nodes, "elapsed": time.perf_counter() - start})
 
     step("lexicode", "lexicode", 0.05)
     step("greedy", "greedy", 0.05)
-    step("local", "local", 0.10)
+    # Orbit searches before the local search: on structured cells they are the cheap winners.
     if params.space_size <= _ORBIT_MAX_WORDS:
         share = 0.4 / max(1, len(group_list))
         for spec_text in group_list:
             # An orbit search stops early once it meets the best proven bound.
             step(f"orbit[{spec_text}]", "orbit", share, group=spec_text, size=upper)
+    step("local", "local", 0.10)
     if params.space_size <= exact_max_words:
         step("exact", "exact", 0.25)
     if best is not None and not done():
