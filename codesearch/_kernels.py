@@ -82,57 +82,67 @@ def _pair_distance(packed, i, j, planes, limbs):
     return acc
 
 
+@nb.njit(nb.void(nb.uint64[:, ::1], nb.int64, nb.int64, nb.int64, nb.int64, nb.int64[:, ::1]),
+         cache=True)
+def _distance_rows(packed, planes, limbs, first, step, h):
+    """Add to ``h[k & 3, dist]`` the pairs (i, j > i) for rows i = first, first + step, ...
+
+    Kept out of the parallel loop on purpose: compiled as a plain function, its inner loops
+    keep the optimisations that a prange body loses (measured: about twice the speed).
+    Four sub-histograms let consecutive increments proceed without waiting on each other.
+    """
+    m = packed.shape[0]
+    for i in range(first, m, step):
+        if planes * limbs == 1:
+            a = packed[i, 0]
+            j = i + 1
+            while j + 3 < m:
+                h[0, popcount64(a ^ packed[j, 0])] += 1
+                h[1, popcount64(a ^ packed[j + 1, 0])] += 1
+                h[2, popcount64(a ^ packed[j + 2, 0])] += 1
+                h[3, popcount64(a ^ packed[j + 3, 0])] += 1
+                j += 4
+            while j < m:
+                h[0, popcount64(a ^ packed[j, 0])] += 1
+                j += 1
+        elif limbs == 1 and planes == 2:
+            a0 = packed[i, 0]
+            a1 = packed[i, 1]
+            for j in range(i + 1, m):
+                x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1])
+                h[j & 3, popcount64(x)] += 1
+        elif limbs == 1 and planes == 3:
+            a0 = packed[i, 0]
+            a1 = packed[i, 1]
+            a2 = packed[i, 2]
+            for j in range(i + 1, m):
+                x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2])
+                h[j & 3, popcount64(x)] += 1
+        else:
+            for j in range(i + 1, m):
+                acc = 0
+                for l in range(limbs):
+                    x = nb.uint64(0)
+                    for p in range(planes):
+                        x |= packed[i, p * limbs + l] ^ packed[j, p * limbs + l]
+                    acc += popcount64(x)
+                h[j & 3, acc] += 1
+
+
 @nb.njit(nb.int64[::1](nb.uint64[:, ::1], nb.int64, nb.int64, nb.int64), cache=True,
          parallel=True)
 def distance_distribution_packed(packed, planes, limbs, n):
     """Number of unordered pairs {i < j} at each distance 0..n (int64 array of length n + 1).
 
-    Rows are dealt to chunks round-robin so that the triangle of pairs is evenly shared; each
-    chunk keeps four sub-histograms so that consecutive increments rarely hit the same counter
-    (breaking the store-to-load dependency of a single histogram).
+    Rows are dealt to chunks round-robin so that the triangle of pairs is evenly shared
+    between threads; each chunk fills its own histograms.
     """
     m = packed.shape[0]
-    chunks = min(m, 512)
+    chunks = min(m, 64)
     hist = np.zeros((max(chunks, 1), n + 1), dtype=np.int64)
-    width = planes * limbs
     for c in nb.prange(chunks):
         h = np.zeros((4, n + 1), dtype=np.int64)
-        for i in range(c, m, chunks):
-            if width == 1:
-                a = packed[i, 0]
-                j = i + 1
-                while j + 3 < m:
-                    h[0, popcount64(a ^ packed[j, 0])] += 1
-                    h[1, popcount64(a ^ packed[j + 1, 0])] += 1
-                    h[2, popcount64(a ^ packed[j + 2, 0])] += 1
-                    h[3, popcount64(a ^ packed[j + 3, 0])] += 1
-                    j += 4
-                while j < m:
-                    h[0, popcount64(a ^ packed[j, 0])] += 1
-                    j += 1
-            elif limbs == 1 and planes == 2:
-                a0 = packed[i, 0]
-                a1 = packed[i, 1]
-                for j in range(i + 1, m):
-                    x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1])
-                    h[j & 3, popcount64(x)] += 1
-            elif limbs == 1 and planes == 3:
-                a0 = packed[i, 0]
-                a1 = packed[i, 1]
-                a2 = packed[i, 2]
-                for j in range(i + 1, m):
-                    x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2])
-                    h[j & 3, popcount64(x)] += 1
-            else:
-                row = packed[i].copy()
-                for j in range(i + 1, m):
-                    acc = 0
-                    for l in range(limbs):
-                        x = nb.uint64(0)
-                        for p in range(planes):
-                            x |= row[p * limbs + l] ^ packed[j, p * limbs + l]
-                        acc += popcount64(x)
-                    h[j & 3, acc] += 1
+        _distance_rows(packed, planes, limbs, c, chunks, h)
         for k in range(n + 1):
             hist[c, k] = h[0, k] + h[1, k] + h[2, k] + h[3, k]
     out = np.zeros(n + 1, dtype=np.int64)
