@@ -16,7 +16,7 @@ What is measured, in the same process and run:
     The high-precision simplex on the cells the fast path left uncertified (every
     ``--sample``-th of them; time per cell and the total extrapolated to all of them).
 ``float``
-    The peer: the textbook Delsarte LP (unscaled primal, float Krawtchouk values) solved by
+    The peer: the same Delsarte LPs (scaled dual) solved by
     ``scipy.optimize.linprog(method="highs")`` and floored; no certificate.
 
 Printed: median wall time of each over the repeats and their ratio; how many cells the LP
@@ -35,18 +35,20 @@ import numpy as np
 
 
 def _float_lp_value(n: int, d: int) -> float | None:
+    """The same LP as the certified path (scaled, even distances, folded degrees), solved by
+    ``scipy.optimize.linprog(method="highs")``, value taken as is. (The unscaled textbook
+    primal is no usable peer beyond n ~ 40: HiGHS stalls on it, e.g. over 100 s on A(50,3).)
+    """
     from scipy.optimize import linprog
 
-    from codesearch.bounds.krawtchouk import krawtchouk_table
+    from codesearch.bounds.delsarte import _problem, lp_cell
+    from codesearch.model import Params
 
-    if d % 2:
-        n, d = n + 1, d + 1
-    K = krawtchouk_table(2, n)
-    rows = [i for i in range(d, n + 1) if i % 2 == 0]
-    A = np.array([[-float(K[k][i]) for i in rows] for k in range(1, n + 1)])
-    b = np.array([float(K[k][0]) for k in range(1, n + 1)])
-    res = linprog(-np.ones(len(rows)), A_ub=A, b_ub=b, bounds=(0, None), method="highs")
-    return 1.0 - res.fun if res.status == 0 else None
+    n2, d2, even = lp_cell(Params(2, n, d))
+    rows, _, _, G = _problem(2, n2, d2, even, False)
+    res = linprog(np.ones(G.shape[1]), A_ub=G, b_ub=-np.ones(len(rows)), bounds=(0, None),
+                  method="highs")
+    return 1.0 + res.fun if res.status == 0 else None
 
 
 def _cells(nmax: int) -> list[tuple[int, int]]:
