@@ -9,8 +9,9 @@ measured in this one run, and the ratios compare methods on the same code:
 * codesearch: ``_kernels.distance_distribution_packed`` on one core and on all cores;
 * the popcount ceiling: a numba loop that only sums popcounts of XORs (no histogram), one core.
 
-Memory: peak RSS (``/usr/bin/time -v``) of a process that checks a 2^20-word code, minus that of
-a process that only builds the same code, against the size of the packed code.
+Memory: peak RSS (``/usr/bin/time -v``) of a process that computes the distance distribution of
+a 2^17-word code of length 256, minus that of a process that only builds the same code (and
+loads the kernel), against the size of the packed code.
 """
 
 from __future__ import annotations
@@ -162,16 +163,14 @@ def bench_structure(repeat):
 MEM_SCRIPT = """
 import sys, numpy as np
 from codesearch.model import Code
+from codesearch import _kernels as K
 rng = np.random.default_rng(1)
-code = Code(rng.integers(0, 2, (1 << 20, 64)), 2)
+code = Code(rng.integers(0, 2, (1 << 17, 256), dtype=np.uint8), 2)
 if sys.argv[1] == "check":
     from codesearch import verify
-    verify.first_close_pair(code, 3)
-    from codesearch import _kernels as K
-    p = K.pack_words(code.words, 2)
-    del p
+    verify.distance_distribution(code)
 else:
-    from codesearch import _kernels as K
+    K.distance_distribution_packed(K.pack_words(code.words[:8], 2), 1, 4, 256)
 """
 
 
@@ -189,8 +188,9 @@ def bench_memory():
         print("\nmemory: /usr/bin/time not found, skipped")
         return
     base, full = peak_rss("base"), peak_rss("check")
-    packed = (1 << 20) * 8
-    print(f"\nmemory, 2^20 words of length 64 (packed code {packed / 2**20:.0f} MiB):")
+    packed = (1 << 17) * 32
+    print(f"\nmemory, 2^17 words of length 256 (packed code {packed / 2**20:.0f} MiB), "
+          f"full distance distribution:")
     print(f"  peak RSS beyond building the code: {(full - base) / 2**20:.1f} MiB "
           f"= {(full - base) / packed:.2f} x the packed code")
 

@@ -61,12 +61,16 @@ def pack_words(words: np.ndarray, q: int) -> np.ndarray:
     if m == 0:
         return out
     pad = limbs * 64 - n
-    for p in range(planes):
-        bits = (words >> np.uint8(p)) & np.uint8(1)
-        if pad:
-            bits = np.concatenate([bits, np.zeros((m, pad), dtype=np.uint8)], axis=1)
-        packed = np.packbits(bits, axis=1, bitorder="little")  # (m, limbs * 8) bytes
-        out[:, p * limbs : (p + 1) * limbs] = packed.view("<u8").astype(np.uint64, copy=False)
+    # rows go in blocks so that the temporaries stay O(block * n), whatever M is
+    block = 8192
+    for lo in range(0, m, block):
+        chunk = words[lo : lo + block]
+        for p in range(planes):
+            bits = (chunk >> np.uint8(p)) & np.uint8(1)
+            if pad:
+                bits = np.concatenate([bits, np.zeros((bits.shape[0], pad), dtype=np.uint8)], axis=1)
+            packed = np.packbits(bits, axis=1, bitorder="little")  # (rows, limbs * 8) bytes
+            out[lo : lo + block, p * limbs : (p + 1) * limbs] = packed.view("<u8")
     return out
 
 
