@@ -112,16 +112,31 @@ def _distance_rows(packed, planes, limbs, first, step, h):
         elif limbs == 1 and planes == 2:
             a0 = packed[i, 0]
             a1 = packed[i, 1]
-            for j in range(i + 1, m):
-                x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1])
-                h[j & 3, popcount64(x)] += 1
+            j = i + 1
+            while j + 1 < m:
+                h[0, popcount64((a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]))] += 1
+                h[1, popcount64((a0 ^ packed[j + 1, 0]) | (a1 ^ packed[j + 1, 1]))] += 1
+                j += 2
+            if j < m:
+                h[0, popcount64((a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]))] += 1
         elif limbs == 1 and planes == 3:
             a0 = packed[i, 0]
             a1 = packed[i, 1]
             a2 = packed[i, 2]
-            for j in range(i + 1, m):
-                x = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2])
-                h[j & 3, popcount64(x)] += 1
+            j = i + 1
+            while j + 3 < m:
+                x0 = (a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2])
+                x1 = (a0 ^ packed[j + 1, 0]) | (a1 ^ packed[j + 1, 1]) | (a2 ^ packed[j + 1, 2])
+                x2 = (a0 ^ packed[j + 2, 0]) | (a1 ^ packed[j + 2, 1]) | (a2 ^ packed[j + 2, 2])
+                x3 = (a0 ^ packed[j + 3, 0]) | (a1 ^ packed[j + 3, 1]) | (a2 ^ packed[j + 3, 2])
+                h[0, popcount64(x0)] += 1
+                h[1, popcount64(x1)] += 1
+                h[2, popcount64(x2)] += 1
+                h[3, popcount64(x3)] += 1
+                j += 4
+            while j < m:
+                h[0, popcount64((a0 ^ packed[j, 0]) | (a1 ^ packed[j, 1]) | (a2 ^ packed[j, 2]))] += 1
+                j += 1
         else:
             for j in range(i + 1, m):
                 acc = 0
