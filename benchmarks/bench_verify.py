@@ -6,7 +6,7 @@ measured in this one run, and the ratios compare methods on the same code:
 * numpy broadcasting: ``(x[i] != x[j:]).sum(1)`` per row, bincount (the plain check);
 * numpy packed: words packed in uint64 planes, ``np.bitwise_count`` of XORs per row;
 * a simple numba loop: one histogram, popcount per pair, one core;
-* codesearch: ``_kernels.distance_distribution_packed`` on one core and on all cores;
+* codesearch: ``verify.distance_distribution`` (packing included) on one core and on all cores;
 * the popcount ceiling: a numba loop that only sums popcounts of XORs (no histogram), one core.
 
 Memory: peak RSS (``/usr/bin/time -v``) of a process that computes the distance distribution of
@@ -115,9 +115,10 @@ def bench_code(name, code, repeat, threads):
     results = {}
     for th in threads:
         nb.set_num_threads(th)
-        K.distance_distribution_packed(packed[:10], planes, limbs, n)
-        t, out = timed(lambda: K.distance_distribution_packed(packed, planes, limbs, n), repeat)
-        assert (out == ref).all() and (out_simple == ref).all()
+        verify.distance_distribution(Code(code.words[:10], code.q))
+        # the public path: packing (plane or interleaved layout) counted in the time
+        t, out = timed(lambda: verify.distance_distribution(code), repeat)
+        assert (np.array(out) == ref).all() and (out_simple == ref).all()
         results[th] = t
     nb.set_num_threads(max(threads))
     rate = {

@@ -171,6 +171,90 @@ def distance_distribution_packed(packed, planes, limbs, n):
     return out
 
 
+def pack_interleaved(words: np.ndarray, q: int) -> np.ndarray:
+    """Pack each q-ary word into one uint64, symbol k in bits ``P k .. P k + P - 1``.
+
+    Only for ``n * P <= 64`` (P = ceil(log2 q)). Two words differ at position k iff their XOR
+    is nonzero in group k, so the distance is ``popcount(fold(x) & low)`` where ``fold`` ORs
+    the P bits of each group into its lowest bit and ``low`` marks the lowest bits.
+    """
+    words = np.ascontiguousarray(words, dtype=np.uint8)
+    planes = plane_count(q)
+    out = np.zeros(words.shape[0], dtype=np.uint64)
+    for k in range(words.shape[1]):
+        out |= words[:, k].astype(np.uint64) << np.uint64(planes * k)
+    return out
+
+
+def interleaved_low_mask(n: int, planes: int) -> int:
+    """The mask of the lowest bit of each of the n symbol groups."""
+    return sum(1 << (planes * k) for k in range(n))
+
+
+@nb.njit(nb.void(nb.uint64[::1], nb.int64, nb.uint64, nb.int64, nb.int64, nb.int64[:, ::1]),
+         cache=True)
+def _interleaved_rows(col, planes, low, first, step, h):
+    """Histogram rows first, first + step, ... of an interleaved q-ary code (see pack_interleaved)."""
+    m = col.shape[0]
+    for i in range(first, m, step):
+        a = col[i]
+        j = i + 1
+        while j + 3 < m:
+            x0 = a ^ col[j]
+            x1 = a ^ col[j + 1]
+            x2 = a ^ col[j + 2]
+            x3 = a ^ col[j + 3]
+            if planes == 3:  # q = 5..8, the common case: fold written out
+                f0 = x0 | (x0 >> nb.uint64(1)) | (x0 >> nb.uint64(2))
+                f1 = x1 | (x1 >> nb.uint64(1)) | (x1 >> nb.uint64(2))
+                f2 = x2 | (x2 >> nb.uint64(1)) | (x2 >> nb.uint64(2))
+                f3 = x3 | (x3 >> nb.uint64(1)) | (x3 >> nb.uint64(2))
+            else:
+                f0 = x0
+                f1 = x1
+                f2 = x2
+                f3 = x3
+                for s in range(1, planes):
+                    f0 |= x0 >> nb.uint64(s)
+                    f1 |= x1 >> nb.uint64(s)
+                    f2 |= x2 >> nb.uint64(s)
+                    f3 |= x3 >> nb.uint64(s)
+            h[0, popcount64(f0 & low)] += 1
+            h[1, popcount64(f1 & low)] += 1
+            h[2, popcount64(f2 & low)] += 1
+            h[3, popcount64(f3 & low)] += 1
+            j += 4
+        while j < m:
+            x0 = a ^ col[j]
+            f0 = x0
+            for s in range(1, planes):
+                f0 |= x0 >> nb.uint64(s)
+            h[0, popcount64(f0 & low)] += 1
+            j += 1
+
+
+@nb.njit(nb.int64[::1](nb.uint64[::1], nb.int64, nb.uint64, nb.int64), cache=True,
+         parallel=True)
+def distance_distribution_interleaved(col, planes, low, n):
+    """Pairs at each distance 0..n for a q-ary code packed by :func:`pack_interleaved`.
+
+    One 64-bit load per pair instead of one per plane: the fast path for short q-ary codes.
+    """
+    m = col.shape[0]
+    chunks = min(m, 64)
+    hist = np.zeros((max(chunks, 1), n + 1), dtype=np.int64)
+    for c in nb.prange(chunks):
+        h = np.zeros((4, n + 1), dtype=np.int64)
+        _interleaved_rows(col, planes, low, c, chunks, h)
+        for k in range(n + 1):
+            hist[c, k] = h[0, k] + h[1, k] + h[2, k] + h[3, k]
+    out = np.zeros(n + 1, dtype=np.int64)
+    for c in range(chunks):
+        for k in range(n + 1):
+            out[k] += hist[c, k]
+    return out
+
+
 @nb.njit(nb.int64[::1](nb.uint64[:, ::1], nb.int64, nb.int64, nb.int64), cache=True)
 def first_close_pair_packed(packed, planes, limbs, below):
     """First pair (i, j), i < j in row order, at distance < ``below``; returns [i, j, dist].

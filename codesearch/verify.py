@@ -130,8 +130,15 @@ def distance_distribution(code: Code) -> list[int]:
     """Unordered pairs of rows at each distance 0..n, over all pairs (packed kernel)."""
     if code.size < 2:
         return [0] * (code.n + 1)
+    k = _kernels()
+    planes = k.plane_count(code.q)
+    if planes > 1 and planes * code.n <= 64:
+        # short q-ary codes: all symbols in one word, one load per pair
+        col = k.pack_interleaved(code.words, code.q)
+        low = np.uint64(k.interleaved_low_mask(code.n, planes))
+        return [int(v) for v in k.distance_distribution_interleaved(col, planes, low, code.n)]
     packed, planes, limbs = _packed(code)
-    return [int(v) for v in _kernels().distance_distribution_packed(packed, planes, limbs, code.n)]
+    return [int(v) for v in k.distance_distribution_packed(packed, planes, limbs, code.n)]
 
 
 def first_close_pair(code: Code, below: int) -> tuple[int, int, int] | None:
