@@ -58,7 +58,10 @@ def _score(store_path: str) -> dict[str, int]:
 
 def _one(kind: str, cells, args, workdir: str, rep: int) -> dict:
     store = os.path.join(workdir, f"{kind}-{rep}.sqlite")
-    kwargs = dict(budget=args.budget, methods=args.methods, seed=args.seed)
+    # Same scheduling policy on both executors (cells in flight per worker), so the ratio
+    # measures the executor, not the policy.
+    kwargs = dict(budget=args.budget, methods=args.methods, seed=args.seed,
+                  per_worker=args.per_worker)
     t0 = time.perf_counter()
     if kind == "local":
         summary = run_table(store, cells, workers=args.workers, **kwargs)
@@ -88,6 +91,8 @@ def main() -> None:
     ap.add_argument("--methods", type=lambda s: s.split(","), default=None)
     ap.add_argument("--seed", type=int, default=0)
     ap.add_argument("--repeat", type=int, default=1)
+    ap.add_argument("--per-worker", type=int, default=1,
+                    help="cells in flight per worker on both executors (default 1)")
     ap.add_argument("--keep", help="keep the stores in this directory")
     ap.add_argument("--only", choices=["local", "dask"], help="run one executor only")
     args = ap.parse_args()

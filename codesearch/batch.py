@@ -32,7 +32,7 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 
 import numpy as np
 
-from codesearch.errors import InputError, ParameterError
+from codesearch.errors import InputError, ParameterError, VerificationError
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult, SearchResult, Status
 
@@ -217,8 +217,9 @@ def _ignore_sigint() -> None:
 
 
 class _LocalExecutor:
-    def __init__(self, workers: int) -> None:
+    def __init__(self, workers: int, per_worker: int = 1) -> None:
         self.workers = workers
+        self.per_worker = per_worker
         self._new()
 
     def _new(self) -> None:
@@ -227,6 +228,9 @@ class _LocalExecutor:
             max_workers=self.workers, mp_context=multiprocessing.get_context("spawn"),
             initializer=_ignore_sigint,
         )
+
+    def capacity(self) -> int:
+        return self.per_worker * self.workers
 
     def submit(self, task: CellTask) -> Any:
         return self.pool.submit(run_cell, task)
@@ -260,7 +264,8 @@ class _LocalExecutor:
 
 
 class _DaskExecutor:
-    def __init__(self, address: str) -> None:
+    def __init__(self, address: str, per_worker: int = 2) -> None:
+        self.per_worker = per_worker
         try:
             from distributed import Client
         except ImportError as exc:  # pragma: no cover - distributed is a dependency
@@ -270,6 +275,15 @@ class _DaskExecutor:
         except (OSError, TimeoutError, ValueError) as exc:
             raise InputError(f"cannot reach Dask scheduler {address}: {exc}".splitlines()[0]) from None
         self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
+
+    def capacity(self) -> int:
+        # Two cells per worker keep workers busy while the driver stores results; workers
+        # that join later (a cluster scaling up under SLURM) raise it as they arrive.
+        try:
+            self.workers = max(1, len(self.client.scheduler_info().get("workers", {})))
+        except Exception:  # keep the last known size if the scheduler is briefly unreachable
+            pass
+        return self.per_worker * self.workers
 
     def submit(self, task: CellTask) -> Any:
         p = task.params
@@ -343,6 +357,7 @@ def run_table(
     bounds: bool = True,
     sdp: bool = False,
     propagate: bool = True,
+    per_worker: int | None = None,
     progress: Progress | None = None,
 ) -> TableSummary:
     """Fill ``cells`` into ``store``: bounds, searches within ``budget`` seconds per cell.
@@ -369,6 +384,10 @@ def run_table(
     sdp : bool
         Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
         already ran are not redone).
+    per_worker : int, optional
+        Cells in flight per worker: default 1 on the local pool (a queued cell may still be
+        settled by propagation before it starts) and 2 on a Dask cluster (hides the round
+        trip to remote workers).
     progress : callable, optional
         Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
         ``finish``).
@@ -388,6 +407,8 @@ def run_table(
         raise ParameterError(f"budget must be positive, got {budget}")
     if workers is not None and workers < 1:
         raise ParameterError(f"workers must be at least 1, got {workers}")
+    if per_worker is not None and per_worker < 1:
+        raise ParameterError(f"per_worker must be at least 1, got {per_worker}")
     specs = _resolve_methods(methods)
     bounds = bounds and _bounds_available()
     own = not hasattr(store, "transaction")
@@ -407,6 +428,8 @@ def run_table(
         running: dict[Any, CellTask] = {}
         crashes: dict[Params, int] = {}
         while pending or running:
+            if executor is not None:
+                slots = executor.capacity()
             while pending and len(running) < slots:
                 task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
                 if task is None:
@@ -416,9 +439,10 @@ def run_table(
                 if executor is None:
                     # Started on the first task only: a resumed run with nothing left to do
                     # never pays for worker start-up.
-                    executor = _DaskExecutor(scheduler) if scheduler else _LocalExecutor(
-                        workers or os.cpu_count() or 1)
-                    slots = executor.workers * 2 if scheduler else executor.workers
+                    executor = (
+                        _DaskExecutor(scheduler, per_worker or 2) if scheduler
+                        else _LocalExecutor(workers or os.cpu_count() or 1, per_worker or 1))
+                    slots = executor.capacity()
                 running[executor.submit(task)] = task
                 emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
                       "upper": task.known_upper})
@@ -448,7 +472,16 @@ def run_table(
                     summary.errors.append(msg)
                     emit({"event": "error", "cell": task.params, "error": msg})
                     continue
-                _store_outcome(st, task, out)
+                try:
+                    _store_outcome(st, task, out)
+                except VerificationError as exc:
+                    # A producer's bug: the cell's transaction rolled back, nothing of it is
+                    # stored; the run goes on and reports the cell as failed.
+                    summary.failed += 1
+                    msg = f"{task.params}: verification failed, nothing stored: {exc}"
+                    summary.errors.append(msg.splitlines()[0])
+                    emit({"event": "error", "cell": task.params, "error": msg})
+                    continue
                 for method, msg in out["errors"]:
                     summary.errors.append(f"{task.params} {method}: {msg}")
                 summary.ran += 1

@@ -74,8 +74,8 @@ class CellRow:
 
     @property
     def mark(self) -> str:
-        """``=`` matched, ``+`` improved, ``-`` short vs published; empty when none imported."""
-        return {"matched": "=", "improved": "+", "short": "-"}.get(self.compare or "", "")
+        """``=`` matched, ``+`` improved, ``<`` short vs published; empty when none imported."""
+        return {"matched": "=", "improved": "+", "short": "<"}.get(self.compare or "", "")
 
     def to_json(self) -> dict[str, Any]:
         out = {k: v for k, v in asdict(self).items() if k != "code_id"}
@@ -167,7 +167,7 @@ def _pub_text(r: CellRow) -> str:
 def _legend() -> str:
     return ("Entries are proven by this tool: a single number is exact (bold), `lo-up` gives the "
             "best code found and the best certified upper bound. `[x]` is an imported published "
-            "value only. Against imported values: `=` matched, `+` improved, `-` short.")
+            "value only. Against imported values: `=` matched, `+` improved, `<` short.")
 
 
 def render_csv(rows: Sequence[CellRow]) -> str:
@@ -219,7 +219,7 @@ def render_tex(rows: Sequence[CellRow]) -> str:
         out.append(r"\end{tabular}")
         out.append(r"\caption{Bounds on $%s$ for $q=%d$: bold entries are exact, $a$--$b$ gives "
                    r"the best code found and the best proven upper bound; marks compare with "
-                   r"imported values ($=$ matched, $+$ improved, $-$ short).}" %
+                   r"imported values ($=$ matched, $+$ improved, $<$ short).}" %
                    (_tex_escape(_name(q)).replace("A\\_", "A_"), q))
         out.append(r"\end{table}")
     return "\n".join(out) + "\n"
@@ -269,7 +269,7 @@ def render_html(rows: Sequence[CellRow], store: Any, title: str = "codesearch ta
         '<span style="background:#f0503c">factor 4 or more</span>'
         '<span style="background:#dddddd">unknown</span>. Values are proven by this tool; '
         "[x] is an imported published value only. Marks vs published: = matched, + improved, "
-        "- short.</p>",
+        "&lt; short.</p>",
     ]
     for q, (ns, ds, cells) in _grid(rows).items():
         parts.append(f'<h2>{e(_name(q))}, q = {q}</h2><table id="table-q{q}">')

@@ -273,19 +273,19 @@ class Store:
     def _setup(self) -> None:
         c = self._conn
         c.execute("PRAGMA busy_timeout = 120000")
-        app, ver = self._ids()
+        app, ver, tables = self._snapshot()
         if app == APPLICATION_ID:
             self._check_version(ver)
             c.execute("PRAGMA journal_mode = WAL")
         else:
-            self._reject_foreign(app)
+            self._reject_foreign(app, tables)
             # Creation races with other processes: the check is repeated under the write lock.
             c.execute("PRAGMA journal_mode = WAL")
             c.execute("BEGIN IMMEDIATE")
             try:
-                app, ver = self._ids()
+                app, ver, tables = self._ids()
                 if app != APPLICATION_ID:
-                    self._reject_foreign(app)
+                    self._reject_foreign(app, tables)
                     # executescript() would COMMIT first, so the schema runs statement by statement.
                     for stmt in _SCHEMA.split(";"):
                         if stmt.strip():
@@ -296,7 +296,7 @@ class Store:
             except BaseException:
                 c.execute("ROLLBACK")
                 raise
-            self._check_version(self._ids()[1])
+            self._check_version(self._snapshot()[1])
         # NORMAL is durable against process crashes in WAL mode (only power loss may drop
         # the last commits), which is the failure the store is designed for.
         c.execute("PRAGMA synchronous = NORMAL")
@@ -304,13 +304,22 @@ class Store:
         if row is None or row[0] != "ok":
             raise InputError(f"{self.path}: store fails its integrity check ({row[0] if row else '?'})")
 
-    def _ids(self) -> tuple[int, int]:
+    def _ids(self) -> tuple[int, int, int]:
         app = self._conn.execute("PRAGMA application_id").fetchone()[0]
         ver = self._conn.execute("PRAGMA user_version").fetchone()[0]
-        return int(app), int(ver)
-
-    def _reject_foreign(self, app: int) -> None:
         tables = self._conn.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+        return int(app), int(ver), int(tables)
+
+    def _snapshot(self) -> tuple[int, int, int]:
+        # One read transaction, so that a store being created by another process is seen
+        # either empty or complete (never tables without the application id).
+        self._conn.execute("BEGIN")
+        try:
+            return self._ids()
+        finally:
+            self._conn.execute("COMMIT")
+
+    def _reject_foreign(self, app: int, tables: int) -> None:
         if app != 0 or tables:
             raise InputError(f"{self.path}: SQLite file of another program, not a codesearch store")
 
@@ -401,14 +410,24 @@ class Store:
             return int(row[0])
 
     def get_code(self, code_id: int) -> tuple[Params, Code]:
-        """The cell and the codewords of stored code ``code_id``."""
+        """The cell and the codewords of stored code ``code_id``, re-verified on the way out.
+
+        Raises
+        ------
+        VerificationError
+            If the stored bytes no longer decode to a code of the cell (a damaged store).
+        """
+        from codesearch import verify
+
         row = self._conn.execute(
             "SELECT q,n,d,size,words FROM codes WHERE id=?", (code_id,)
         ).fetchone()
         if row is None:
             raise InputError(f"no stored code with id {code_id}")
         q, n, d, size, blob = row
-        return Params(q, n, d), unpack_code(blob, q, n, size)
+        params, code = Params(q, n, d), unpack_code(blob, q, n, size)
+        verify.assert_code(code, params)
+        return params, code
 
     def best_code(self, params: Params) -> Code | None:
         """The largest stored code of the cell (None when there is none)."""

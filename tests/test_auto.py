@@ -137,3 +137,48 @@ def test_natural_groups_parse_for_many_cells():
     for q, n in [(2, 7), (2, 8), (2, 15), (2, 16), (3, 6), (4, 5), (2, 3), (5, 4)]:
         for spec in auto.natural_groups(q, n):
             groups.parse_group(spec, q, n)
+
+
+# ------------------------------------------------------------------------------ with the real
+# methods and bounds of the merged tree (steps missing from a checkout are skipped by auto)
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+def test_real_portfolio_on_perfect_and_mds_cells():
+    # A(7,3) = 16 (Hamming code, perfect: sphere-packing bound met) and A_4(5,3) = 64
+    # (MDS [5,3,3] over GF(4): Singleton bound met); closed forms, common practice.
+    for params, value in ((HAMMING, 16), (Params(4, 5, 3), 64)):
+        res = search(params, "auto", time_limit=30)
+        verify.assert_code(res.code, params)
+        assert res.size == value
+        if res.optimal:
+            assert res.upper == value and res.settings["upper_method"] is not None
+
+
+def _clique_number(params: Params) -> int:
+    # networkx's exact max clique on the code graph, as the outside oracle (tiny cells only)
+    import itertools
+    import networkx as nx
+
+    words = list(itertools.product(range(params.q), repeat=params.n))
+    graph = nx.Graph()
+    graph.add_nodes_from(range(len(words)))
+    graph.add_edges_from((i, j) for i in range(len(words)) for j in range(i + 1, len(words))
+                         if sum(a != b for a, b in zip(words[i], words[j])) >= params.d)
+    return max(len(c) for c in nx.find_cliques(graph))
+
+
+@settings(max_examples=8)
+@given(q=st.sampled_from([2, 3]), n=st.integers(2, 5), d=st.integers(2, 5))
+def test_auto_is_sound_on_tiny_cells(q, n, d):
+    if q == 3:
+        n = min(n, 4)
+    d = min(d, n)
+    params = Params(q, n, d)
+    res = search(params, "auto", time_limit=10)
+    truth = _clique_number(params)
+    assert res.size <= truth
+    if res.upper is not None:
+        assert res.upper >= truth
+    if res.optimal:
+        assert res.size == truth == res.upper

@@ -117,3 +117,26 @@ def test_cell_bounds_stage_in_process(tmp_path, monkeypatch):
         assert (summ.lower, summ.upper, summ.upper_method) == (16, 16, "hamming")
         assert s.run_budget(p, "bounds") is not None and s.run_budget(p, "stub-lex") == 1.0
         assert s.counts()["bounds"] == 2  # hamming and the uncertified one; griesmer dropped
+
+
+def test_bad_outcome_rolls_back_the_whole_cell(tmp_path):
+    import numpy as np
+
+    from codesearch.batch import CellTask, _store_outcome
+    from codesearch.errors import VerificationError
+    from codesearch.search import METHODS
+
+    p = Params(2, 5, 3)
+    task = CellTask(p, 1.0, (METHODS["stub-lex"],), True, 0)
+    # A Hamming-bound value (2^5 / 6 -> 5; common practice) and a "code" of two equal words.
+    out = {"seconds": 0.1, "errors": [],
+           "bounds": [{"value": 5, "method": "hamming", "certificate": None, "certified": True,
+                       "scope": "all", "note": "", "seconds": 0.0}],
+           "searches": [{"method": "stub-lex", "status": "feasible",
+                         "words": np.zeros((2, 5), np.uint8), "q": 2, "upper": None,
+                         "seconds": 0.1, "nodes": 0, "seed": 0, "settings": {},
+                         "exhaustive": False, "time_limit": 1.0}]}
+    with Store(tmp_path / "s.sqlite") as s:
+        with pytest.raises(VerificationError):
+            _store_outcome(s, task, out)
+        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0}

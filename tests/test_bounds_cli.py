@@ -50,6 +50,9 @@ def test_qary_json(capsys):
     ["bounds", "5000", "3"],
     ["bounds", "5..6", "2", "--certificate", "x.json"],
     ["bounds", "9..3", "2"],
+    ["bounds", "1..1000000000", "3"],
+    ["bounds", "5", "9..1000000000"],
+    ["bounds", "5", "3", "--q", "37"],
 ])
 def test_bad_input_exits_2(argv, capsys):
     with pytest.raises(SystemExit) as exc:

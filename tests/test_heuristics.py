@@ -149,3 +149,15 @@ def test_lexicode_24_8_is_extended_golay():
     assert weights.sum() == 4096
     report = verify.check_code(res.code, 8)
     assert report.linear
+
+
+@pytest.mark.parametrize("q,n,d", [(2, 6, 3), (2, 7, 4), (3, 4, 3), (2, 8, 5)])
+def test_heuristics_never_exceed_the_sat_optimum(q, n, d):
+    # lower <= upper: every heuristic code is at most the size SAT proves optimal
+    p = Params(q, n, d)
+    best = search(p, "sat")
+    assert best.status is Status.OPTIMAL
+    for method, opts in (("lexicode", {}), ("greedy", {"restarts": 3}), ("local", {"steps": 5000})):
+        res = search(p, method, seed=5, **opts)
+        assert res.size <= best.size
+        assert res.status is Status.FEASIBLE

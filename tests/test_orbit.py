@@ -366,3 +366,22 @@ def test_bitsets_layout():
         except ImportError:
             continue
         assert np.array_equal(bits, bitsets_from_dense(adj))
+
+
+def test_importing_orbit_modules_loads_no_numba():
+    import subprocess
+    import sys
+
+    code = ("import sys, codesearch, codesearch.search.groups, codesearch.search.orbit, "
+            "codesearch.search.auto; assert 'numba' not in sys.modules, 'numba imported'")
+    subprocess.run([sys.executable, "-c", code], check=True)
+
+
+def test_public_api_of_the_orbit_modules():
+    assert sorted(orbit.__all__) == sorted(["OPTIONS", "run", "OrbitGraph", "orbit_graph",
+                                           "heuristic_clique", "tabu_clique", "bitsets"])
+    assert sorted(groups.__all__) == sorted([
+        "Generator", "Group", "Orbits", "parse_group", "all_words", "encode", "compute_orbits",
+        "is_invariant", "DEFAULT_MAX_WORDS"])
+    assert orbit.OPTIONS == {"group", "mode", "restarts", "iterations", "size", "max_words",
+                             "max_orbits"}

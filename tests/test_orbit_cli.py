@@ -38,3 +38,14 @@ def test_find_orbit_end_to_end(capsys, tmp_path):
 def test_bad_group_is_a_one_line_error(capsys, spec):
     status, _, err = _run(capsys, ["find", "10", "4", "--method", "orbit", "--group", spec])
     assert status == 2 and len(err.strip().splitlines()) == 1
+
+
+def test_find_auto_end_to_end(capsys):
+    # A(7,3) = 16: the Hamming code is perfect (sphere-packing bound met; common practice)
+    status, out, _ = _run(capsys, ["find", "7", "3", "--method", "auto", "--group",
+                                   "cyclic;cyclic*rev", "--time", "30", "--json"])
+    assert status == 0
+    summary = json.loads(out.strip().splitlines()[-1])
+    assert summary["size"] == 16 and summary["method"] == "auto"
+    if summary["optimal"]:
+        assert summary["upper"] == 16

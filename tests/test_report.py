@@ -63,7 +63,7 @@ def test_json_csv_md_tex(store_path):
     assert cell["lower_method"] == "exact" and cell["upper_method"] == "hamming"
     rows = list(csv.DictReader(io.StringIO(text_csv)))
     assert {(r["n"], r["d"], r["gap"]) for r in rows} >= {("7", "3", "0"), ("6", "6", "2")}
-    assert "**16**=" in md and "2-4-" in md and "[20]" in md
+    assert "**16**=" in md and "2-4<" in md and "[20]" in md
     assert r"\textbf{16}" in tex and "2--4" in tex and r"\begin{tabular}" in tex
 
 

@@ -93,16 +93,17 @@ def test_every_cardinality_encoding_agrees(encoding):
     assert search(Params(2, 6, 3), "sat", size=8, encoding=encoding).exists is True
 
 
-def test_lex_leader_keeps_every_branch_answer():
+@pytest.mark.parametrize("q,n,d,sizes", [(2, 6, 3, (2, 4, 5, 8)), (3, 4, 2, (3, 9, 18, 27)),
+                                         (3, 4, 3, (2, 6, 9)), (4, 3, 2, (4, 16))])
+def test_lex_leader_keeps_every_branch_answer(q, n, d, sizes):
     # branch by branch, the lex-leader formula is satisfiable iff the "pair" formula is
-    p = Params(2, 6, 3)
-    for w in range(3, 7):
-        for M in (2, 4, 5, 8):
+    from pysat.solvers import Solver
+
+    for w in range(d, n + 1):
+        for M in sizes:
             ans = []
             for level in ("pair", "lex"):
-                enc = sat.encode(2, 6, 3, M, level, w)
-                from pysat.solvers import Solver
-
+                enc = sat.encode(q, n, d, M, level, w)
                 with Solver(name="cadical195", bootstrap_with=enc.clauses) as s:
                     ans.append(s.solve())
             assert ans[0] == ans[1], (w, M)

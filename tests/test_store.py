@@ -206,3 +206,50 @@ def test_published_reference_file_is_consistent():
         assert rows[(n, 3)].lower == rows[(n, 3)].upper == 2 ** (n - r_)
     for d in (4, 6, 8):
         assert rows[(2 * d, d)].upper == 4 * d
+
+
+def _open_and_write(path: str, n: int) -> str:
+    from table_helpers import repetition_code as rep
+
+    try:
+        with Store(path) as s:
+            s.add_code(rep(2, n), Params(2, n, n), method="exact")
+        return "ok"
+    except Exception as exc:  # reported to the parent, which asserts on it
+        return f"{type(exc).__name__}: {exc}"
+
+
+def test_many_processes_create_one_store_at_once(tmp_path):
+    import multiprocessing
+
+    from codesearch.verify import assert_code
+
+    # Load the verifier's kernels once here, so that the forked children start at once.
+    assert_code(repetition_code(2, 3), Params(2, 3, 3))
+    path = str(tmp_path / "race.sqlite")
+    ctx = multiprocessing.get_context("fork")
+    for _ in range(2):
+        with ctx.Pool(6) as pool:
+            assert pool.starmap(_open_and_write, [(path, n) for n in range(3, 9)]) == ["ok"] * 6
+        with Store(path) as s:
+            assert s.counts()["codes"] == 6 and s.audit() == []
+        os.unlink(path)
+        for extra in ("-wal", "-shm"):
+            if os.path.exists(path + extra):
+                os.unlink(path + extra)
+
+
+def test_tampered_code_is_caught_on_the_way_out(tmp_path):
+    path = tmp_path / "s.sqlite"
+    with Store(path) as s:
+        cid = s.add_code(hamming_code(3), Params(2, 7, 3), method="exact")
+    con = sqlite3.connect(path)
+    blob = bytearray(con.execute("SELECT words FROM codes WHERE id=?", (cid,)).fetchone()[0])
+    blob[1] = blob[0]  # second word := first word: distance 0
+    con.execute("UPDATE codes SET words=? WHERE id=?", (bytes(blob), cid))
+    con.commit()
+    con.close()
+    with Store(path) as s:
+        with pytest.raises(VerificationError):
+            s.best_code(Params(2, 7, 3))
+        assert any(f"code #{cid}" in p for p in s.audit())

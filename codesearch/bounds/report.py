@@ -33,6 +33,14 @@ _SHORT = {
 }
 
 
+def _largest(values: Iterable[int]) -> int | None:
+    """Largest value, O(1) for a range (a typo like 1..10**9 must fail fast)."""
+    if isinstance(values, range):
+        return max(values[0], values[-1]) if len(values) else None
+    values = list(values)
+    return max(values) if values else None
+
+
 def cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
     """Valid cells of the grid ``ns x ds`` (cells with d > n are skipped in a range).
 
@@ -41,6 +49,14 @@ def cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
     ParameterError
         If no cell of the grid is valid (the message names the reason for the first one).
     """
+    from codesearch.bounds import MAX_N
+
+    top = _largest(ns)
+    if top is not None and top > MAX_N:
+        raise ParameterError(f"length n={top} is beyond the bounds limit {MAX_N}")
+    if isinstance(ds, range) and len(ds) > 1 and top is not None:
+        # Distances beyond the longest length can never form a cell.
+        ds = range(ds.start, max(ds.start + 1, min(ds.stop, top + 1)))
     ns, ds = list(ns), list(ds)
     out, first_error = [], None
     for n in ns:
@@ -88,7 +104,7 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
                    format_value(s["gv"])]
             for k in names:
                 v = s["bounds"].get(k)
-                row.append("-" if v is None else format_value(v) + ("" if k not in s["uncertified"] else "?"))
+                row.append("-" if v is None else format_value(v))
             g = s["linear"].get("griesmer")
             row.append("-" if g is None else format_value(g))
             rows.append(row)
@@ -111,6 +127,11 @@ def finite_points(q: int, ns: Iterable[int], *, lp: bool = True) -> list[tuple[i
     """(n, d, gv, upper) for every cell of the given lengths (the plot's finite points)."""
     from codesearch.bounds import gv_lower_bound, upper_bound
 
+    from codesearch.bounds import MAX_N
+
+    top = _largest(ns)
+    if top is not None and top > MAX_N:
+        raise ParameterError(f"length n={top} is beyond the bounds limit {MAX_N}")
     out = []
     for n in ns:
         for d in range(1, n + 1):

@@ -10,14 +10,17 @@ leaves are solved by the bit-parallel clique engine (:mod:`codesearch.search.cli
 
 Outline
 -------
+0. Binary cells with even d search only even-weight words (:func:`graph.even_weight_suffices`).
 1. Root: the zero word is fixed (one orbit under the full isometry group).
-2. Second word: split by weight, weight d first. When the best code found there exceeds an
+2. Second word: split by weight, weight d first. When the best code found there reaches an
    upper bound on ``A_q(n,d+1)`` (the bounds module, else a recursive exact search on
    ``(n, d+1)``), the other weights are skipped (:func:`graph.distance_d_pair_suffices`).
 3. Further words: split by orbits of the stabiliser of the fixed words while a node has more
-   than ``leaf_size`` candidates and fewer than ``max_fixed`` fixed words.
+   than ``leaf_size`` candidates and fewer than ``max_fixed`` fixed words (nodes too large
+   for one graph, over :data:`graph.MAX_LEAF` candidates, are always split).
 4. Leaves: maximum clique on the candidates, seeking only cliques that beat the incumbent.
-The incumbent is shared by the whole tree; the search stops when it meets a known upper bound.
+The incumbent is shared by the whole tree. Unless ``use_bounds=False`` the search stops when
+the incumbent meets a usable bound from :mod:`codesearch.bounds` (recorded in ``settings``).
 
 Anytime: on the time limit the best code is returned with the largest bound still possible
 among the unfinished nodes (each pending node bounded by its fixed words plus a greedy colour

@@ -48,7 +48,8 @@ from codesearch.model import Code, Params
 from codesearch.results import SearchResult, Status
 from codesearch.search import groups as _groups
 
-__all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph"]
+__all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph", "heuristic_clique", "tabu_clique",
+           "bitsets"]
 
 #: Options accepted by :func:`run` (see its docstring).
 OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
@@ -136,6 +137,9 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     """
     if (group.q, group.n) != (params.q, params.n):
         raise ParameterError(f"group acts on q={group.q}, n={group.n}; cell is {params}")
+    if params.n > 64:
+        # one uint64 per bit plane holds a word (the space limit keeps n far below this anyway)
+        raise ParameterError(f"orbit search handles n <= 64, got n={params.n}")
     orbits = _groups.compute_orbits(group, max_words=max_words)
     planes = _planes(orbits.words, params.q)
     d = params.d
