@@ -60,6 +60,12 @@ def pack_words(words: np.ndarray, q: int) -> np.ndarray:
     out = np.zeros((m, planes * limbs), dtype=np.uint64)
     if m == 0:
         return out
+    if planes == 1:
+        # binary: packbits writes the bytes of each limb directly (no padded bit temporaries)
+        raw = np.packbits(words, axis=1, bitorder="little")
+        buf = out.view(np.uint8).reshape(m, limbs * 8)
+        buf[:, : raw.shape[1]] = raw
+        return out
     pad = limbs * 64 - n
     # rows go in blocks so that the temporaries stay O(block * n), whatever M is
     block = 8192

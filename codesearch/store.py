@@ -39,6 +39,7 @@ import json
 import os
 import platform
 import sqlite3
+import time
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping, Sequence
 
@@ -276,11 +277,11 @@ class Store:
         app, ver, tables = self._snapshot()
         if app == APPLICATION_ID:
             self._check_version(ver)
-            c.execute("PRAGMA journal_mode = WAL")
+            self._set_wal()
         else:
             self._reject_foreign(app, tables)
             # Creation races with other processes: the check is repeated under the write lock.
-            c.execute("PRAGMA journal_mode = WAL")
+            self._set_wal()
             c.execute("BEGIN IMMEDIATE")
             try:
                 app, ver, tables = self._ids()
@@ -303,6 +304,21 @@ class Store:
         row = c.execute("PRAGMA quick_check").fetchone()
         if row is None or row[0] != "ok":
             raise InputError(f"{self.path}: store fails its integrity check ({row[0] if row else '?'})")
+
+    def _set_wal(self) -> None:
+        # Switching the journal mode can answer "database is locked" at once, without the busy
+        # handler, while another process is creating the same file: retry for a while.
+        delay = 0.005
+        deadline = time.monotonic() + 60.0
+        while True:
+            try:
+                self._conn.execute("PRAGMA journal_mode = WAL")
+                return
+            except sqlite3.OperationalError as exc:
+                if "locked" not in str(exc) or time.monotonic() > deadline:
+                    raise
+                time.sleep(delay)
+                delay = min(delay * 2, 0.2)
 
     def _ids(self) -> tuple[int, int, int]:
         app = self._conn.execute("PRAGMA application_id").fetchone()[0]
