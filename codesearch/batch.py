@@ -32,6 +32,7 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 
 import numpy as np
 
+from codesearch import verify
 from codesearch.errors import InputError, ParameterError, VerificationError
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult, SearchResult, Status
@@ -438,7 +439,9 @@ def run_table(
                     continue
                 if executor is None:
                     # Started on the first task only: a resumed run with nothing left to do
-                    # never pays for worker start-up.
+                    # never pays for worker start-up. The driver's checker is loaded first, so
+                    # that a Ctrl-C during the run never lands inside numba's first import.
+                    verify.prepare()
                     executor = (
                         _DaskExecutor(scheduler, per_worker or 2) if scheduler
                         else _LocalExecutor(workers or os.cpu_count() or 1, per_worker or 1))

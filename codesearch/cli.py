@@ -459,3 +459,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except KeyboardInterrupt:
         print(f"codesearch {args.command}: interrupted", file=sys.stderr)
         return 130
+    except ImportError as exc:
+        # a Ctrl-C that lands inside a C extension's import surfaces as an ImportError
+        if isinstance(exc.__context__, KeyboardInterrupt):
+            print(f"codesearch {args.command}: interrupted", file=sys.stderr)
+            return 130
+        raise

@@ -47,6 +47,7 @@ __all__ = [
     "check_certificate",
     "CERTIFICATE_CHECKERS",
     "parse_fraction",
+    "prepare",
     "load_certificate",
 ]
 
@@ -119,6 +120,15 @@ def _kernels():
     from codesearch import _kernels
 
     return _kernels
+
+
+def prepare() -> None:
+    """Load the checker's compiled kernels now (a no-op once loaded).
+
+    Long-running drivers call this before starting work, so that the first import of numba
+    (a second or more) does not happen in the middle of the run.
+    """
+    _kernels()
 
 
 def _packed(code: Code) -> tuple[np.ndarray, int, int]:
