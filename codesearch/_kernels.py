@@ -102,7 +102,9 @@ def _distance_rows(packed, planes, limbs, first, step, h):
     Four sub-histograms let consecutive increments proceed without waiting on each other.
     """
     m = packed.shape[0]
-    for i in range(first, m, step):
+    for i in range(m):  # not range(first, m, step): that hides i >= 0 and costs index checks
+        if i % step != first:
+            continue
         if planes * limbs == 1:
             a = packed[i, 0]
             j = i + 1
@@ -202,7 +204,9 @@ def interleaved_low_mask(n: int, planes: int) -> int:
 def _interleaved_rows(col, planes, low, first, step, h):
     """Histogram rows first, first + step, ... of an interleaved q-ary code (see pack_interleaved)."""
     m = col.shape[0]
-    for i in range(first, m, step):
+    for i in range(m):  # not range(first, m, step): that hides i >= 0 and costs index checks
+        if i % step != first:
+            continue
         a = col[i]
         j = i + 1
         while j + 3 < m:
