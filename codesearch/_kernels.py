@@ -170,13 +170,8 @@ def distance_distribution_packed(packed, planes, limbs, n):
     for c in nb.prange(chunks):
         h = np.zeros((4, n + 1), dtype=np.int64)
         _distance_rows(packed, planes, limbs, c, chunks, h)
-        for k in range(n + 1):
-            hist[c, k] = h[0, k] + h[1, k] + h[2, k] + h[3, k]
-    out = np.zeros(n + 1, dtype=np.int64)
-    for c in range(chunks):
-        for k in range(n + 1):
-            out[k] += hist[c, k]
-    return out
+        hist[c] = h.sum(axis=0)
+    return hist.sum(axis=0)
 
 
 def pack_interleaved(words: np.ndarray, q: int) -> np.ndarray:
@@ -256,13 +251,8 @@ def distance_distribution_interleaved(col, planes, low, n):
     for c in nb.prange(chunks):
         h = np.zeros((4, n + 1), dtype=np.int64)
         _interleaved_rows(col, planes, low, c, chunks, h)
-        for k in range(n + 1):
-            hist[c, k] = h[0, k] + h[1, k] + h[2, k] + h[3, k]
-    out = np.zeros(n + 1, dtype=np.int64)
-    for c in range(chunks):
-        for k in range(n + 1):
-            out[k] += hist[c, k]
-    return out
+        hist[c] = h.sum(axis=0)
+    return hist.sum(axis=0)
 
 
 @nb.njit(nb.int64[::1](nb.uint64[:, ::1], nb.int64, nb.int64, nb.int64), cache=True)
@@ -322,11 +312,7 @@ def gray_weight_distribution_binary(gen_packed, n):
             if r < k:
                 for l in range(limbs):
                     word[l] ^= gen_packed[r, l]
-    out = np.zeros(n + 1, dtype=np.int64)
-    for c in range(chunks):
-        for w in range(n + 1):
-            out[w] += hist[c, w]
-    return out
+    return hist.sum(axis=0)
 
 
 @nb.njit(nb.int64[::1](nb.int64[:, ::1], nb.int64), cache=True, parallel=True)
@@ -364,11 +350,7 @@ def odometer_weight_distribution(gen, p):
                     break
                 digits[r] = 0  # p additions of the row brought the word back: carry
                 r += 1
-    out = np.zeros(n + 1, dtype=np.int64)
-    for c in range(lead):
-        for w in range(n + 1):
-            out[w] += hist[c, w]
-    return out
+    return hist.sum(axis=0)
 
 
 @nb.njit(nb.int64(nb.uint8[:, ::1], nb.int64, nb.int64), cache=True)

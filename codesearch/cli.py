@@ -67,34 +67,20 @@ def _cmd_check(args: argparse.Namespace) -> int:
         rows, q, _ = codefile.read_generator(args.file, args.q)
         report = verify.check_generator(rows, q, args.d)
         return _print_code_report(args, report, None)
-    head = _peek(args.file)
-    if head.lstrip().startswith("{"):
-        obj = verify.load_json_file(args.file)
-        if isinstance(obj, dict) and "kind" in obj:
-            valid, bound, reason = verify.check_certificate(obj)
-            if args.json:
-                _print_json({"certificate": obj.get("kind"), "valid": valid, "bound": bound,
-                             "reason": reason})
-            else:
-                verdict = "valid" if valid else "INVALID"
-                print(f"{args.file}: {obj.get('kind')} certificate {verdict}: {reason}")
-            return 0 if valid else 1
+    cert = verify.load_certificate(args.file)
+    if cert is not None:
+        valid, bound, reason = verify.check_certificate(cert)
+        if args.json:
+            _print_json({"certificate": cert["kind"], "valid": valid, "bound": bound,
+                         "reason": reason})
+        else:
+            verdict = "valid" if valid else "INVALID"
+            print(f"{args.file}: {cert['kind']} certificate {verdict}: {reason}")
+        return 0 if valid else 1
     parsed = codefile.read_code(args.file, args.q)
     d = args.d if args.d is not None else parsed.claimed_d
     report = verify.check_code(parsed.code, d)
     return _print_code_report(args, report, parsed)
-
-
-def _peek(path: str) -> str:
-    try:
-        with open(path, "rb") as fh:
-            return fh.read(256).decode("utf-8", errors="replace")
-    except FileNotFoundError:
-        raise InputError(f"{path}: no such file") from None
-    except IsADirectoryError:
-        raise InputError(f"{path}: is a directory, not a code file") from None
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read: {exc.strerror}") from None
 
 
 def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> int:

@@ -117,7 +117,8 @@ def check_fits_in_memory(path: str, needed: int, what: str) -> None:
         )
 
 
-def _read_bytes(path: str) -> bytes:
+def _file_size(path: str) -> int:
+    """Size of a readable regular file, or a one-line InputError."""
     try:
         size = os.path.getsize(path)
     except FileNotFoundError:
@@ -126,6 +127,21 @@ def _read_bytes(path: str) -> bytes:
         raise InputError(f"{path}: cannot read: {exc.strerror}") from None
     if os.path.isdir(path):
         raise InputError(f"{path}: is a directory, not a code file")
+    return size
+
+
+def _read_head(path: str, count: int = 256) -> bytes:
+    """The first ``count`` bytes of a file (to recognise its kind without reading it all)."""
+    _file_size(path)
+    try:
+        with open(path, "rb") as fh:
+            return fh.read(count)
+    except OSError as exc:
+        raise InputError(f"{path}: cannot read: {exc.strerror}") from None
+
+
+def _read_bytes(path: str) -> bytes:
+    size = _file_size(path)
     # the raw bytes, the symbol array and the packed copy together stay below ~3x the file
     check_fits_in_memory(path, 3 * size, f"a {size / 2**30:.1f} GiB file")
     try:

@@ -492,21 +492,14 @@ def _check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
 def load_certificate(path: str) -> dict[str, Any] | None:
     """The JSON object in ``path`` if it looks like a certificate (has ``kind``), else None.
 
-    Lets ``codesearch check FILE`` recognise a certificate by content, not by name.
+    Lets ``codesearch check FILE`` recognise a certificate by content, not by name. Only the
+    first bytes are read unless the file starts like JSON.
     """
-    import json
+    from codesearch.codefile import _read_head
 
-    try:
-        with open(path, encoding="utf-8") as fh:
-            text = fh.read()
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read ({exc.strerror})") from None
-    if not text.lstrip().startswith("{"):
+    if not _read_head(path).lstrip().startswith(b"{"):
         return None
-    try:
-        obj = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise InputError(f"{path}:{exc.lineno}: malformed JSON ({exc.msg})") from None
+    obj = load_json_file(path)
     return obj if isinstance(obj, dict) and "kind" in obj else None
 
 
