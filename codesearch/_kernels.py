@@ -177,9 +177,9 @@ def distance_distribution_packed(packed, planes, limbs, n):
 def pack_interleaved(words: np.ndarray, q: int) -> np.ndarray:
     """Pack each q-ary word into one uint64, symbol k in bits ``P k .. P k + P - 1``.
 
-    Only for ``n * P <= 64`` (P = ceil(log2 q)). Two words differ at position k iff their XOR
-    is nonzero in group k, so the distance is ``popcount(fold(x) & low)`` where ``fold`` ORs
-    the P bits of each group into its lowest bit and ``low`` marks the lowest bits.
+    Only for ``n * P <= 64`` and ``P = ceil(log2 q) >= 2``. Two words differ at position k iff
+    their XOR is nonzero in group k; :func:`interleaved_masks` gives the masks with which
+    :func:`distance_distribution_interleaved` tests every group at once.
     """
     words = np.ascontiguousarray(words, dtype=np.uint8)
     planes = plane_count(q)
@@ -189,15 +189,23 @@ def pack_interleaved(words: np.ndarray, q: int) -> np.ndarray:
     return out
 
 
-def interleaved_low_mask(n: int, planes: int) -> int:
-    """The mask of the lowest bit of each of the n symbol groups."""
-    return sum(1 << (planes * k) for k in range(n))
+def interleaved_masks(n: int, planes: int) -> tuple[int, int]:
+    """``(low, high)``: the lower ``planes - 1`` bits and the top bit of each of n groups."""
+    low = sum(((1 << (planes - 1)) - 1) << (planes * k) for k in range(n))
+    high = sum(1 << (planes * k + planes - 1) for k in range(n))
+    return low, high
 
 
-@nb.njit(nb.void(nb.uint64[::1], nb.int64, nb.uint64, nb.int64, nb.int64, nb.int64[:, ::1]),
+@nb.njit(nb.void(nb.uint64[::1], nb.uint64, nb.uint64, nb.int64, nb.int64, nb.int64[:, ::1]),
          cache=True)
-def _interleaved_rows(col, planes, low, first, step, h):
-    """Histogram rows first, first + step, ... of an interleaved q-ary code (see pack_interleaved)."""
+def _interleaved_rows(col, low, high, first, step, h):
+    """Histogram rows first, first + step, ... of an interleaved q-ary code (see pack_interleaved).
+
+    Group test without shifts: for x = a ^ b, ``(x & low) + low`` carries into the top bit of
+    a group iff the group's lower bits are not all zero (the sum stays below 2^P, so no carry
+    leaves the group); OR-ing x adds the top bit itself. So ``((x & low) + low | x) & high``
+    has one bit per differing position: four operations, whatever the number of planes.
+    """
     m = col.shape[0]
     for i in range(m):  # not range(first, m, step): that hides i >= 0 and costs index checks
         if i % step != first:
@@ -209,48 +217,31 @@ def _interleaved_rows(col, planes, low, first, step, h):
             x1 = a ^ col[j + 1]
             x2 = a ^ col[j + 2]
             x3 = a ^ col[j + 3]
-            if planes == 3:  # q = 5..8, the common case: fold written out
-                f0 = x0 | (x0 >> nb.uint64(1)) | (x0 >> nb.uint64(2))
-                f1 = x1 | (x1 >> nb.uint64(1)) | (x1 >> nb.uint64(2))
-                f2 = x2 | (x2 >> nb.uint64(1)) | (x2 >> nb.uint64(2))
-                f3 = x3 | (x3 >> nb.uint64(1)) | (x3 >> nb.uint64(2))
-            else:
-                f0 = x0
-                f1 = x1
-                f2 = x2
-                f3 = x3
-                for s in range(1, planes):
-                    f0 |= x0 >> nb.uint64(s)
-                    f1 |= x1 >> nb.uint64(s)
-                    f2 |= x2 >> nb.uint64(s)
-                    f3 |= x3 >> nb.uint64(s)
-            h[0, popcount64(f0 & low)] += 1
-            h[1, popcount64(f1 & low)] += 1
-            h[2, popcount64(f2 & low)] += 1
-            h[3, popcount64(f3 & low)] += 1
+            h[0, popcount64((((x0 & low) + low) | x0) & high)] += 1
+            h[1, popcount64((((x1 & low) + low) | x1) & high)] += 1
+            h[2, popcount64((((x2 & low) + low) | x2) & high)] += 1
+            h[3, popcount64((((x3 & low) + low) | x3) & high)] += 1
             j += 4
         while j < m:
             x0 = a ^ col[j]
-            f0 = x0
-            for s in range(1, planes):
-                f0 |= x0 >> nb.uint64(s)
-            h[0, popcount64(f0 & low)] += 1
+            h[0, popcount64((((x0 & low) + low) | x0) & high)] += 1
             j += 1
 
 
-@nb.njit(nb.int64[::1](nb.uint64[::1], nb.int64, nb.uint64, nb.int64), cache=True,
+@nb.njit(nb.int64[::1](nb.uint64[::1], nb.uint64, nb.uint64, nb.int64), cache=True,
          parallel=True)
-def distance_distribution_interleaved(col, planes, low, n):
+def distance_distribution_interleaved(col, low, high, n):
     """Pairs at each distance 0..n for a q-ary code packed by :func:`pack_interleaved`.
 
     One 64-bit load per pair instead of one per plane: the fast path for short q-ary codes.
+    ``low`` and ``high`` come from :func:`interleaved_masks`.
     """
     m = col.shape[0]
     chunks = min(m, 64)
     hist = np.zeros((max(chunks, 1), n + 1), dtype=np.int64)
     for c in nb.prange(chunks):
         h = np.zeros((4, n + 1), dtype=np.int64)
-        _interleaved_rows(col, planes, low, c, chunks, h)
+        _interleaved_rows(col, low, high, c, chunks, h)
         hist[c] = h.sum(axis=0)
     return hist.sum(axis=0)
 

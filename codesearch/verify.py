@@ -145,8 +145,8 @@ def distance_distribution(code: Code) -> list[int]:
     if planes > 1 and planes * code.n <= 64:
         # short q-ary codes: all symbols in one word, one load per pair
         col = k.pack_interleaved(code.words, code.q)
-        low = np.uint64(k.interleaved_low_mask(code.n, planes))
-        return [int(v) for v in k.distance_distribution_interleaved(col, planes, low, code.n)]
+        low, high = (np.uint64(v) for v in k.interleaved_masks(code.n, planes))
+        return [int(v) for v in k.distance_distribution_interleaved(col, low, high, code.n)]
     packed, planes, limbs = _packed(code)
     return [int(v) for v in k.distance_distribution_packed(packed, planes, limbs, code.n)]
 
