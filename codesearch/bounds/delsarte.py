@@ -45,8 +45,10 @@ constant-weight and antipodal inequalities to Delsarte's LP).
 
 from __future__ import annotations
 
+import decimal
 import math
 from fractions import Fraction
+from collections import OrderedDict
 from functools import lru_cache
 from typing import Any
 
@@ -142,10 +144,7 @@ def _degrees(n: int, even: bool) -> list[int]:
 def _problem(q: int, n: int, d: int, even: bool, use_extra: bool):
     rows = allowed_distances(n, d, even)
     ks = _degrees(n, even)
-    extras = extra_inequalities(n, d) if (use_extra and q == 2) else []
-    if even:
-        # Odd distances are absent, so inequalities touching only odd i are void.
-        extras = [e for e in extras if any(i % 2 == 0 and i >= d for i in e[2])]
+    extras = _extras(n, d, even) if (use_extra and q == 2) else []
     Q = _scaled_matrix(q, n)
     nk = len(ks)
     G = np.empty((len(rows), nk + len(extras)))
@@ -434,10 +433,17 @@ def _fmt(x: Fraction) -> str:
 
 
 def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallback: bool):
+    use_extra = use_extra and q == 2
+    if fallback:
+        # A neighbouring cell's high-precision run may already have solved this one.
+        hit = _chain_result(q, n, d, even, use_extra, start=False)
+        if hit is not None:
+            extras = _extras(n, d, even) if use_extra else []
+            return hit, _degrees(n, even), extras, None, True
     rows, ks, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
     ex = _Exact(q, n, rows, ks, extras)
     if res.status != 0:
-        best = _decimal_fallback(ex, q, n) if fallback else None
+        best = _high_precision(ex, q, n, d, even, use_extra) if fallback else None
         return best, ks, extras, res, best is not None
     E = (q**n).bit_length() + _GUARD_BITS
     m = _to_dyadic(res.x, ex.cost, E)
@@ -478,11 +484,236 @@ def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallba
     used = False
     # Beyond 2^40 the double solve may also return a wrong (merely feasible) vertex whose
     # exact solution certifies a loose value, so the high-precision simplex runs there too.
-    if fallback and (need or fobj > 2.0**40):
-        cand = _decimal_fallback(ex, q, n)
+    if fallback and (need or fobj > _FLOAT_LIMIT):
+        cand = _high_precision(ex, q, n, d, even, use_extra)
         if cand is not None and (best is None or cand[0] < best[0]):
             best, used = cand, True
     return best, ks, extras, res, used
+
+
+# ---------------------------------------------------------------- warm-started high precision
+#: LP values above this are beyond double precision's reach (see :func:`_solve_certified`).
+_FLOAT_LIMIT = 2.0**40
+_RECORD_LIMIT = 2.0**24
+#: Chains kept alive (one per LP length; a grid run needs two at a time: n and n + 1).
+_MAX_CHAINS = 4
+_CHAINS: "dict[tuple[int, int, bool], _Chain]" = {}
+
+
+def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
+    """Exact certificate from a high-precision optimal dictionary, by iterative refinement.
+
+    The dictionary's basic values are rounded to dyadic integers ``m / 2^E``; then, with the
+    exact integer residuals of the tight rows, corrections ``B^-1 r`` are taken from the
+    dictionary itself (the column of a nonbasic slack is ``B^-1 e_r``) until the residual is
+    far below 1 / value, so the exactly rescaled vector (:meth:`_Exact.certify`) is within
+    2^-20 of the basis's vertex value. E carries twice the bits of q^n: a constraint error of
+    eps moves the certified value by about value * eps. Returns ``(result, settled)``:
+    ``settled`` is False when the certified value sits within 2^-19 above an integer, where
+    only the exact vertex can say whether the floor is one too high (the caller solves it).
+    """
+    from fractions import Fraction
+
+    bits = (q**n).bit_length()
+    E = 2 * bits + 64
+    one = 1 << E
+    ctx = tab.ctx
+    D = ctx.create_decimal
+    rowpos = {i: r for r, i in enumerate(ex.rows)}
+    m = [0] * len(ex.cols)
+    basic_pos = {}
+    for p, (kind, idx) in enumerate(tab.basic):
+        if kind == "u":
+            basic_pos[idx] = p
+            v = tab.T[p, -1]
+            if v > 0:
+                f = Fraction(v)
+                m[idx] = (f.numerator << E) // (f.denominator * ex.cost[idx])
+    tight = [(j, rowpos[lab]) for j, (kind, lab) in enumerate(tab.nonbasic) if kind == "s"]
+    scale = [D(c) for c in ex.cost]
+    best = None
+    for _ in range(rounds):
+        s = ex.sums(m)
+        cand = ex.certify(m)
+        if cand is not None and (best is None or (cand[0], cand[3] * best[1]) < (best[0], best[3] * cand[1])):
+            best = cand
+        res = [-one - s[r] for (_, r) in tight]
+        worst = max((abs(x) for x in res), default=0)
+        if best is not None and worst * best[0] < one >> 24:
+            break
+        with decimal.localcontext(ctx):
+            dres = [D(x) for x in res]
+            for c, p in basic_pos.items():
+                acc = D(0)
+                for (j, _), x in zip(tight, dres):
+                    if x:
+                        acc += x * tab.T[p, j]
+                step = acc / scale[c]
+                m[c] = max(0, m[c] + int(step.to_integral_value()))
+    if best is None:
+        return None, True
+    value, W, mm, obj = best
+    frac_num = (obj + W) - value * W  # (1 + obj/W - value) * W, in [0, W)
+    if frac_num * (1 << 19) >= W:
+        return best, True
+    # Unsettled (typically an integer optimum): the vertex usually has small denominators,
+    # so round each component to the nearest fraction of bounded denominator and test
+    # whether that is the vertex exactly (every tight row sum equal to -1). Cheaper by far
+    # than an exact elimination on a 60 x 60 matrix of 128-bit integers.
+    from math import lcm
+
+    approx = [Fraction(x, one).limit_denominator(1 << (E // 2 - 32)) if x else Fraction(0)
+              for x in m]
+    L = lcm(*(v.denominator for v in approx))
+    mv = [v.numerator * (L // v.denominator) for v in approx]
+    s = ex.sums(mv)
+    if all(s[r] == -L for (_, r) in tight):
+        cand = ex.certify(mv)
+        if cand is not None and cand[1] == L:
+            # Exactly the basis's vertex: its floor is the LP optimum's when the basis is optimal.
+            return cand, True
+    return best, False
+
+
+class _Chain:
+    """High-precision Delsarte LPs of one length n, solved for decreasing d by adding rows.
+
+    The LP at distance d is the LP at the next larger allowed distance plus the constraint
+    row of distance d; its optimal dictionary stays dual feasible when that row is added, so
+    each step takes a few dual simplex pivots instead of a solve from the slack basis. The LP
+    with extra inequalities at the same d starts from a copy of the plain optimum with the
+    extra columns appended (primal feasible) and runs the primal simplex.
+    """
+
+    def __init__(self, q: int, n: int, even: bool) -> None:
+        from codesearch.bounds.hpsimplex import Tableau
+
+        self.q, self.n, self.even = q, n, even
+        self.ks = _degrees(n, even)
+        self.digits = len(str(q**n)) + 40
+        self.tab = Tableau(len(self.ks), self.digits)
+        self.d = n + 1  # rows present: every allowed distance >= self.d
+        self.results: dict[tuple[int, bool], tuple | None] = {}
+        self.pivots = 0
+
+    def _scaled(self, i: int) -> list:
+        K = krawtchouk_table(self.q, self.n)
+        ctx = self.tab.ctx
+        D = ctx.create_decimal
+        return [ctx.divide(D(K[k][i]), D(K[k][0])) for k in self.ks]
+
+    def solve(self, d: int, use_extra: bool, want: bool = True):
+        """Certified tuple for (d, use_extra), or None; ``want`` forces recording even when
+        the value is within double precision's reach."""
+        key = (d, use_extra)
+        if key in self.results:
+            return self.results[key]
+        if d >= self.d:
+            return None  # already past it without recording: the caller restarts
+        q, n, even = self.q, self.n, self.even
+        while self.d > d:
+            self.d -= 1
+            i = self.d
+            if even and i % 2:
+                continue
+            self.tab.add_row(i, self._scaled(i))
+            ok = self.tab.dual_simplex(40 * self.tab.m + 200)
+            self.pivots += self.tab.pivots
+            self.tab.pivots = 0
+            if not ok:
+                self.results[(i, False)] = None
+                self.d = -1  # broken: the caller starts over
+                return None
+            # Record well below the float limit too: near it the double-precision path
+            # sometimes cannot certify, and a miss would restart the chain from the top.
+            big = float(self.tab.objective()) > _RECORD_LIMIT
+            if i == d or big:
+                self._record(i)
+        return self.results.get(key)
+
+    def _record(self, d: int) -> None:
+        q, n, even = self.q, self.n, self.even
+        rows = allowed_distances(n, d, even)
+        ex = _Exact(q, n, rows, self.ks, [])
+        self.results[(d, False)] = _finish(ex, self.tab, q, n)
+        if q == 2:
+            extras = _extras(n, d, even)
+            exx = _Exact(q, n, rows, self.ks, extras)
+            tab = self.tab.copy()
+            ctx = tab.ctx
+            D = ctx.create_decimal
+            nk = len(self.ks)
+            present = set(rows)
+            for j, (_, _, coeffs, b) in enumerate(extras):
+                tab.add_column(nk + j, {i: ctx.divide(D(-a), D(b))
+                                        for i, a in coeffs.items() if i in present})
+            ok = tab.primal_simplex(40 * tab.m + 200)
+            self.pivots += tab.pivots
+            self.results[(d, True)] = _finish(exx, tab, q, n) if ok else None
+
+
+def _finish(ex: "_Exact", tab, q: int, n: int):
+    """Certify an optimal high-precision dictionary; exact vertex solve when unsettled."""
+    best, settled = _refine_certify(ex, tab, q, n)
+    if best is None or not settled:
+        S, T = tab.basis()
+        rowpos = {i: r for r, i in enumerate(ex.rows)}
+        exact = _vertex(ex, S, [rowpos[i] for i in T])
+        if exact is not None and (best is None or exact[0] <= best[0]):
+            best = exact
+    return best
+
+
+def _vertex(ex: "_Exact", S: list[int], T: list[int]):
+    """The exact vertex of basis (columns S, tight rows T), checked exactly (or None)."""
+    from math import lcm
+
+    if len(S) != len(T) or not S:
+        return None
+    M = [[ex.cols[c][r] for c in S] for r in T]
+    sol = _solve_exact(M, [-1] * len(T))
+    if sol is None or any(v < 0 for v in sol):
+        return None
+    L = lcm(*(v.denominator for v in sol))
+    out = [0] * len(ex.cols)
+    for c, v in zip(S, sol):
+        out[c] = v.numerator * (L // v.denominator)
+    return ex.certify(out)
+
+
+def _chain_result(q: int, n: int, d: int, even: bool, use_extra: bool, *, start: bool):
+    """The warm-started high-precision result for the LP cell, from (or into) its chain.
+
+    With ``start`` False only an already computed result is returned (no work)."""
+    key = (q, n, even)
+    chain = _CHAINS.get(key)
+    if chain is not None and (d, use_extra) in chain.results:
+        return chain.results[(d, use_extra)]
+    if not start:
+        return None
+    if chain is None or chain.d <= d:
+        chain = _Chain(q, n, even)
+        _CHAINS.pop(key, None)
+        while len(_CHAINS) >= _MAX_CHAINS:
+            _CHAINS.pop(next(iter(_CHAINS)))
+        _CHAINS[key] = chain
+    return chain.solve(d, use_extra)
+
+
+def _extras(n: int, d: int, even: bool) -> list:
+    """Extra inequalities of the LP cell; on even distances those touching only odd i are void."""
+    extras = extra_inequalities(n, d)
+    if even:
+        extras = [e for e in extras if any(i % 2 == 0 and i >= d for i in e[2])]
+    return extras
+
+
+def _high_precision(ex: "_Exact", q: int, n: int, d: int, even: bool, use_extra: bool):
+    """Warm-started chain first; the cold high-precision simplex if the chain fails."""
+    best = _chain_result(q, n, d, even, use_extra, start=True)
+    if best is None:
+        best = _decimal_fallback(ex, q, n)
+    return best
 
 
 def _decimal_fallback(ex: "_Exact", q: int, n: int) -> tuple[int, int, list[int], int] | None:
@@ -498,48 +729,89 @@ MAX_LP_N = 200
 MAX_LP_BITS = 800
 
 
-def _run(params: Params, use_extra: bool, name: str, fallback: bool) -> BoundResult | None:
+#: Certified results per LP cell. A binary grid asks for each LP twice (A(n, 2t) and
+#: A(n-1, 2t-1) are the same LP); a few thousand entries cover the reuse distance of a
+#: row-by-row grid run.
+_CELL_CACHE: "OrderedDict[tuple, tuple]" = OrderedDict()
+_CELL_CACHE_SIZE = 2048
+
+
+def _lp_cell_result(q: int, n: int, d: int, even: bool, use_extra: bool, fallback: bool):
+    """``(value or None, certificate or None, certified, detail)`` for one LP cell, cached.
+
+    The certificate is re-checked by :func:`codesearch.verify.check_certificate` before it is
+    cached: every later hit returns this same, already checked certificate.
+    """
     from codesearch import verify
 
+    key = (q, n, d, even, use_extra, fallback)
+    hit = _CELL_CACHE.get(key)
+    if hit is not None:
+        _CELL_CACHE.move_to_end(key)
+        return hit
+    best, ks, extras, res, used_decimal = _solve_certified(q, n, d, even, use_extra, fallback)
+    if best is None:
+        ok = res is not None and res.status == 0
+        fval = int(np.floor(1.0 + res.fun)) if ok else None
+        out = (fval, None, False, "float LP value" if ok else "float LP failed;")
+    else:
+        value, W, m, obj = best
+        y = [Fraction(0)] * n
+        for k, mc in zip(ks, m):
+            y[k - 1] = Fraction(mc, W)
+        z = [Fraction(mc, W) for mc in m[len(ks):]]
+        cert: dict[str, Any] = {
+            "kind": "delsarte-lp",
+            "q": q,
+            "n": n,
+            "d": d,
+            "even": even,
+            "y": [_fmt(v) for v in y],
+            "bound": _fmt(1 + Fraction(obj, W)),
+        }
+        if use_extra:
+            cert["extra"] = [
+                {"family": fam, "index": idx, "z": _fmt(zj)}
+                for (fam, idx, _, _), zj in zip(extras, z) if zj
+            ]
+        valid, checked, reason = verify.check_certificate(cert)
+        if not valid or checked != value:
+            out = (value, cert, False, f"certificate rejected: {reason}")
+        else:
+            out = (value, cert, True, ", high-precision simplex" if used_decimal else "")
+    _CELL_CACHE[key] = out
+    while len(_CELL_CACHE) > _CELL_CACHE_SIZE:
+        _CELL_CACHE.popitem(last=False)
+    return out
+
+
+def _copy_cert(cert: dict | None) -> dict | None:
+    if cert is None:
+        return None
+    out = dict(cert)
+    out["y"] = list(cert["y"])
+    if "extra" in cert:
+        out["extra"] = [dict(e) for e in cert["extra"]]
+    return out
+
+
+def _run(params: Params, use_extra: bool, name: str, fallback: bool) -> BoundResult | None:
     q = params.q
     n, d, even = lp_cell(params)
     if n > MAX_LP_N or (q**n).bit_length() > MAX_LP_BITS:
         return None
-    best, ks, extras, res, used_decimal = _solve_certified(q, n, d, even, use_extra, fallback)
+    value, cert, certified, detail = _lp_cell_result(q, n, d, even, use_extra, fallback)
     mapped = (n, d) != (params.n, params.d)
     where = f" solved at A({n},{d})" if mapped else ""
-    if best is None:
-        fval = int(np.floor(1.0 + res.fun)) if res.status == 0 else q**params.n
-        what = "float LP value" if res.status == 0 else "float LP failed;"
+    if cert is None:
+        fval = value if value is not None else q**params.n
         return BoundResult(params, fval, name, certified=False,
-                           note=f"{what} not certified{where}")
-    value, W, m, obj = best
-    y = [Fraction(0)] * n
-    for k, mc in zip(ks, m):
-        y[k - 1] = Fraction(mc, W)
-    z = [Fraction(mc, W) for mc in m[len(ks):]]
-    cert: dict[str, Any] = {
-        "kind": "delsarte-lp",
-        "q": q,
-        "n": n,
-        "d": d,
-        "even": even,
-        "y": [_fmt(v) for v in y],
-        "bound": _fmt(1 + Fraction(obj, W)),
-    }
-    if use_extra:
-        cert["extra"] = [
-            {"family": fam, "index": idx, "z": _fmt(zj)}
-            for (fam, idx, _, _), zj in zip(extras, z) if zj
-        ]
-    valid, checked, reason = verify.check_certificate(cert)
-    if not valid or checked != value:
-        return BoundResult(params, value, name, certificate=cert, certified=False,
-                           note=f"certificate rejected: {reason}")
-    note = ("even distances" if even else "all distances") + where
-    if used_decimal:
-        note += ", high-precision simplex"
-    return BoundResult(params, value, name, certificate=cert, note=note)
+                           note=f"{detail} not certified{where}")
+    if not certified:
+        return BoundResult(params, value, name, certificate=_copy_cert(cert), certified=False,
+                           note=detail)
+    note = ("even distances" if even else "all distances") + where + detail
+    return BoundResult(params, value, name, certificate=_copy_cert(cert), note=note)
 
 
 def delsarte_lp(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
