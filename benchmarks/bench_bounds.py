@@ -1,28 +1,32 @@
-"""Benchmark: every bound on the binary grid, certified LP, next to a plain float HiGHS loop.
+"""Benchmark: every bound on the binary grid with certified LPs, next to a plain float HiGHS loop.
 
 Run from the repository root::
 
     PYTHONPATH=$PWD python benchmarks/bench_bounds.py            # n = 1..128, 3 repeats
     PYTHONPATH=$PWD python benchmarks/bench_bounds.py --nmax 40 --repeat 5
 
-What is measured, in the same process and run:
+What is measured, in the same process and run (every run starts cold: the LP caches, the
+high-precision chains and the Krawtchouk tables are cleared first):
 
-``certified``
-    ``codesearch.bounds.all_bounds(..., lp_fallback=False)`` on every cell (Singleton,
-    Hamming, Plotkin, Johnson, Elias, Griesmer, Delsarte LP and LP with extra inequalities,
-    each LP with an exact certificate re-checked by ``codesearch.verify``), plus GV: the
-    double-precision path, which leaves the cells beyond its reach uncertified.
-``fallback``
-    The high-precision simplex on the cells the fast path left uncertified (every
-    ``--sample``-th of them; time per cell and the total extrapolated to all of them).
+``certified, 1 core``
+    ``codesearch.bounds.all_bounds(params)`` on every cell n = 1..nmax, d = 1..n in row order
+    (Singleton, Hamming, Plotkin, Johnson, Elias, Griesmer, Delsarte LP and the LP with extra
+    inequalities, each LP with an exact certificate re-checked by ``codesearch.verify``, the
+    high-precision fallback included), plus GV.
+``certified, 2 cores``
+    The same cells on a pool of two fresh processes (spawned, so nothing is inherited warm),
+    one task per LP length L: the cells (L, even d) and (L - 1, odd d), which share their LPs.
+    Wall time includes starting the pool.
 ``float``
-    The peer: the same Delsarte LPs (scaled dual) solved by
-    ``scipy.optimize.linprog(method="highs")`` and floored; no certificate.
+    The peer: the same Delsarte LPs (scaled dual; plain, and with the extra inequalities),
+    one ``scipy.optimize.linprog(method="highs")`` call each per cell, floored; no
+    certificate.
 
-Printed: median wall time of each over the repeats and their ratio; how many cells the LP
-certified; how many cells the float loop gets wrong (no answer, or a floor that differs from
-the certified LP value; "below" means it claims a bound no certificate backs); and the cells
-where the LP beats every classical bound. Timings vary with machine load; compare ratios.
+Printed: median wall time of each over the repeats and their ratios; the number of cells whose
+LP is left uncertified (goal 0); how many cells the float loop gets wrong (no answer, or a
+floor that differs from the certified value: "below" claims a bound no certificate backs);
+and the cells where the LP beats every classical bound. Timings vary with machine load;
+compare ratios measured in the same run.
 """
 
 from __future__ import annotations
@@ -33,8 +37,19 @@ import time
 
 import numpy as np
 
+CLASSICAL = ("singleton", "hamming", "plotkin", "johnson", "elias")
+LPS = ("delsarte-lp", "delsarte-lp-plus")
 
-def _float_lp_value(n: int, d: int) -> float | None:
+
+def _cold() -> None:
+    from codesearch import verify
+    from codesearch.bounds import delsarte
+
+    delsarte.clear_caches()
+    verify._kraw_columns.cache_clear()
+
+
+def _float_lp_value(n: int, d: int, plus: bool) -> float | None:
     """The same LP as the certified path (scaled, even distances, folded degrees), solved by
     ``scipy.optimize.linprog(method="highs")``, value taken as is. (The unscaled textbook
     primal is no usable peer beyond n ~ 40: HiGHS stalls on it, e.g. over 100 s on A(50,3).)
@@ -45,7 +60,7 @@ def _float_lp_value(n: int, d: int) -> float | None:
     from codesearch.model import Params
 
     n2, d2, even = lp_cell(Params(2, n, d))
-    rows, _, _, G = _problem(2, n2, d2, even, False)
+    rows, _, _, G = _problem(2, n2, d2, even, plus)
     res = linprog(np.ones(G.shape[1]), A_ub=G, b_ub=-np.ones(len(rows)), bounds=(0, None),
                   method="highs")
     return 1.0 + res.fun if res.status == 0 else None
@@ -55,123 +70,169 @@ def _cells(nmax: int) -> list[tuple[int, int]]:
     return [(n, d) for n in range(1, nmax + 1) for d in range(1, n + 1)]
 
 
-def run_certified(nmax: int) -> tuple[float, dict]:
+def _summary(bounds: dict) -> dict:
+    """Picklable essentials of one cell's ``all_bounds`` result."""
+    out = {k: (b.value, b.certified, b.usable) for k, b in bounds.items()}
+    return out
+
+
+def _one_cell(n: int, d: int) -> dict:
     from codesearch.bounds import all_bounds, gv_lower_bound
     from codesearch.model import Params
 
+    p = Params(2, n, d)
+    s = _summary(all_bounds(p))
+    gv_lower_bound(p)
+    return s
+
+
+def _lp_length_task(args: tuple[int, int]) -> dict:
+    """Cells sharing LP length L, d ascending: (L, even d) and (L - 1, odd d)."""
+    L, nmax = args
+    out = {}
+    for d in range(1, L + 1):
+        if L <= nmax and d % 2 == 0:
+            out[(L, d)] = _one_cell(L, d)
+        if d % 2 == 1 and d <= L - 1 and L - 1 <= nmax:
+            out[(L - 1, d)] = _one_cell(L - 1, d)
+    return out
+
+
+def run_certified(nmax: int) -> tuple[tuple[float, float], dict]:
+    _cold()
     out = {}
     t0, c0 = time.perf_counter(), time.process_time()
     for n, d in _cells(nmax):
-        p = Params(2, n, d)
-        out[(n, d)] = all_bounds(p, lp_fallback=False)
-        gv_lower_bound(p)
+        out[(n, d)] = _one_cell(n, d)
     return (time.perf_counter() - t0, time.process_time() - c0), out
 
 
-def run_fallback(cells: list[tuple[int, int]]) -> tuple[list[float], dict]:
-    from codesearch.bounds.delsarte import delsarte_lp
-    from codesearch.model import Params
-
-    times, out = [], {}
-    for n, d in cells:
-        c0 = time.process_time()
-        out[(n, d)] = delsarte_lp(Params(2, n, d), exact_fallback=True)
-        times.append(time.process_time() - c0)
-    return times, out
+def _warm_worker() -> None:
+    import codesearch.bounds.delsarte  # noqa: F401  (imports only; no cache is filled)
+    import scipy.optimize  # noqa: F401
 
 
-def run_float(nmax: int) -> tuple[float, dict]:
+def run_certified_pool(nmax: int, workers: int) -> tuple[float, dict]:
+    import multiprocessing as mp
+
+    t0 = time.perf_counter()
+    ctx = mp.get_context("spawn")
     out = {}
-    t0, c0 = time.perf_counter(), time.process_time()
+    # Largest LP lengths first so the two workers finish together.
+    tasks = [(L, nmax) for L in range(nmax + 1, 1, -1)]
+    with ctx.Pool(workers, initializer=_warm_worker) as pool:
+        for part in pool.imap_unordered(_lp_length_task, tasks):
+            out.update(part)
+    return time.perf_counter() - t0, out
+
+
+def run_float(nmax: int) -> tuple[tuple[float, float], dict]:
+    _cold()
+    out = {}
+    tp = 0.0
+    t0 = time.perf_counter()
     for n, d in _cells(nmax):
-        out[(n, d)] = _float_lp_value(n, d)
-    return (time.perf_counter() - t0, time.process_time() - c0), out
+        a = time.perf_counter()
+        plain = _float_lp_value(n, d, False)
+        b = time.perf_counter()
+        plus = _float_lp_value(n, d, True)
+        tp += time.perf_counter() - b
+        out[(n, d)] = (plain, plus)
+    total = time.perf_counter() - t0
+    return (total, total - tp), out
+
+
+def _floor(f: float) -> int:
+    return int(np.floor(f)) if abs(f) < 2**62 else int(f)
 
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--nmax", type=int, default=128)
     ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--workers", type=int, default=2, help="pool size of the parallel run (0: skip)")
     ap.add_argument("--list-n", type=int, default=24, help="list LP-winning cells up to this n")
-    ap.add_argument("--sample", type=int, default=10,
-                    help="run the high-precision fallback on every k-th uncertified cell")
     args = ap.parse_args()
 
-    # Warm-up outside the timings: imports, scipy/HiGHS start-up.
+    # Warm-up outside the timings: imports, scipy/HiGHS start-up (caches are cleared after).
     run_certified(6)
     run_float(6)
-    t_cert, t_float = [], []
+    t_cert, t_pool, t_float = [], [], []
     for rep in range(args.repeat):
         t, bounds = run_certified(args.nmax)
         t_cert.append(t)
-        print(f"  [repeat {rep + 1}] certified: wall {t[0]:.2f} s, CPU {t[1]:.2f} s", flush=True)
+        print(f"  [repeat {rep + 1}] certified, 1 core: wall {t[0]:.2f} s (CPU {t[1]:.2f} s)",
+              flush=True)
+        if args.workers > 1:
+            tp, pooled = run_certified_pool(args.nmax, args.workers)
+            t_pool.append(tp)
+            print(f"  [repeat {rep + 1}] certified, {args.workers} cores: wall {tp:.2f} s",
+                  flush=True)
+            assert pooled == bounds, "parallel run disagrees with the sequential one"
         t, floats = run_float(args.nmax)
         t_float.append(t)
-        print(f"  [repeat {rep + 1}] float:     wall {t[0]:.2f} s, CPU {t[1]:.2f} s", flush=True)
+        print(f"  [repeat {rep + 1}] float (plain + plus LP): wall {t[0]:.2f} s "
+              f"(plain LP alone {t[1]:.2f} s)", flush=True)
     cells = _cells(args.nmax)
     mc = statistics.median(t[0] for t in t_cert)
     mf = statistics.median(t[0] for t in t_float)
-    cc = statistics.median(t[1] for t in t_cert)
-    cf = statistics.median(t[1] for t in t_float)
-    print(f"binary grid n=1..{args.nmax}, {len(cells)} cells, {args.repeat} repeat(s), medians "
-          "(wall; CPU of this process in brackets, the better guide on a loaded machine):")
-    print(f"  certified (all bounds, exact LP certificates): {mc:8.2f} s [{cc:7.2f} s]  "
+    mfp = statistics.median(t[1] for t in t_float)
+    print(f"binary grid n=1..{args.nmax}, d=1..n: {len(cells)} cells, {args.repeat} repeat(s), "
+          "median wall times:")
+    print(f"  certified, all bounds, 1 core:          {mc:8.2f} s  "
           f"({1000 * mc / len(cells):.2f} ms/cell)")
-    print(f"  float HiGHS loop (LP only, no certificate):     {mf:8.2f} s [{cf:7.2f} s]  "
-          f"({1000 * mf / len(cells):.2f} ms/cell)")
-    print(f"  ratio certified / float: wall {mc / mf:.2f}, CPU {cc / cf:.2f}")
+    if t_pool:
+        mp_ = statistics.median(t_pool)
+        print(f"  certified, all bounds, {args.workers} cores:         {mp_:8.2f} s  "
+              f"(speed-up {mc / mp_:.2f} over 1 core)")
+    print(f"  float HiGHS loop, plain + plus LP:       {mf:8.2f} s  (plain LP alone {mfp:.2f} s)")
+    print(f"  ratio certified (1 core) / float loop:  {mc / mf:.2f}"
+          + (f"; 2 cores / float loop: {statistics.median(t_pool) / mf:.2f}" if t_pool else ""))
 
-    lp_cert = {c: b["delsarte-lp"] for c, b in bounds.items() if "delsarte-lp" in b}
-    ok = {c: r.value for c, r in lp_cert.items() if r.certified}
-    print(f"  fast path: LP certified in {len(ok)} of {len(cells)} cells "
-          f"({len(cells) - len(ok)} uncertified, kept out of 'upper')")
-    todo = sorted(c for c in cells if c not in ok)[:: max(1, args.sample)]
-    if todo:
-        times, extra = run_fallback(todo)
-        got = sum(1 for r in extra.values() if r is not None and r.certified)
-        missing = len(cells) - len(ok)
-        print(f"  fallback on {len(todo)} of those {missing} cells: {got} certified; "
-              f"median {statistics.median(times):.2f} CPU s/cell, max {max(times):.2f} s; "
-              f"all {missing} extrapolated: {statistics.mean(times) * missing:.0f} s")
-        for c, r in extra.items():
-            if r is not None and r.certified:
-                ok[c] = r.value
-    biggest = max((v for v in ok.values()), default=0)
-    print(f"  largest certified LP value: 2^{biggest.bit_length() - 1}..2^{biggest.bit_length()}")
+    for idx, name in enumerate(LPS):
+        got = {c: b[name] for c, b in bounds.items() if name in b}
+        ok = {c: v for c, (v, cert, _) in got.items() if cert}
+        print(f"  {name}: certified in {len(ok)} of {len(got)} cells "
+              f"({len(got) - len(ok)} uncertified)")
+        failed = [c for c in got if floats[c][idx] is None]
+        below, above = [], []
+        for c, v in ok.items():
+            f = floats[c][idx]
+            if f is None:
+                continue
+            fl = _floor(f)
+            if fl < v:
+                below.append(c)
+            elif fl > v:
+                above.append(c)
+        wrong = len(failed) + len(below) + len(above)
+        print(f"    float loop wrong in {wrong} cells: {len(failed)} no answer, {len(below)} "
+              f"floor below the certified value (unbacked claims), {len(above)} above (weaker)")
+        if below:
+            print("      first unbacked:", below[:10])
+        if ok:
+            big = max(ok.values())
+            print(f"    largest certified value: 2^{big.bit_length() - 1}..2^{big.bit_length()}")
 
-    failed = [c for c in cells if floats[c] is None]
-    below, above, same = [], [], 0
-    for c, v in ok.items():
-        f = floats[c]
-        if f is None:
-            continue
-        fl = int(np.floor(f)) if abs(f) < 2**62 else int(f)
-        if fl < v:
-            below.append(c)
-        elif fl > v:
-            above.append(c)
-        else:
-            same += 1
-    print(f"  float loop: {len(failed)} cells with no answer; among certified cells "
-          f"{same} agree, {len(below)} floor below the certified value (unbacked claims), "
-          f"{len(above)} above (weaker)")
-    if below:
-        print("    first unbacked cells:", below[:12])
-
-    classical = ("singleton", "hamming", "plotkin", "johnson", "elias")
     wins, wins_plus = [], []
     for c, b in bounds.items():
-        best_classical = min(b[k].value for k in classical if k in b)
+        best_classical = min(b[k][0] for k in CLASSICAL if k in b)
         lp = b.get("delsarte-lp")
         lpp = b.get("delsarte-lp-plus")
-        if lp is not None and lp.usable and lp.value < best_classical:
+        lp_ok = lp is not None and lp[2]
+        if lp_ok and lp[0] < best_classical:
             wins.append(c)
-        if lpp is not None and lpp.usable and lpp.value < min(best_classical, lp.value if lp and lp.usable else best_classical):
+        ref = min(best_classical, lp[0]) if lp_ok else best_classical
+        if lpp is not None and lpp[2] and lpp[0] < ref:
             wins_plus.append(c)
     print(f"  cells where the plain LP beats every classical bound: {len(wins)}")
-    print(f"  cells where the extra inequalities improve on the plain LP and classical: {len(wins_plus)}")
+    print(f"  cells where the extra inequalities improve on the plain LP and classical: "
+          f"{len(wins_plus)}")
     small = sorted(c for c in wins if c[0] <= args.list_n)
     print(f"  LP-winning cells with n <= {args.list_n}: " + " ".join(f"({n},{d})" for n, d in small))
+    small = sorted(c for c in wins_plus if c[0] <= args.list_n)
+    print(f"  cells with n <= {args.list_n} where the extra inequalities help: "
+          + " ".join(f"({n},{d})" for n, d in small))
 
 
 if __name__ == "__main__":

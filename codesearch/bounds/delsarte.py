@@ -59,7 +59,8 @@ from codesearch.bounds.krawtchouk import krawtchouk_table
 from codesearch.model import Params
 from codesearch.results import BoundResult
 
-__all__ = ["delsarte_lp", "delsarte_lp_plus", "lp_cell", "extra_inequalities", "solve_float_lp"]
+__all__ = ["delsarte_lp", "delsarte_lp_plus", "lp_cell", "extra_inequalities", "solve_float_lp",
+           "clear_caches"]
 
 #: Extra bits of the dyadic rounding beyond log2(q^n): rounding moves each constraint sum by
 #: at most q^n / 2^E, far below the slack the rescaling has to absorb.
@@ -783,6 +784,15 @@ def _lp_cell_result(q: int, n: int, d: int, even: bool, use_extra: bool, fallbac
     while len(_CELL_CACHE) > _CELL_CACHE_SIZE:
         _CELL_CACHE.popitem(last=False)
     return out
+
+
+def clear_caches() -> None:
+    """Forget every cached LP result, high-precision chain and Krawtchouk table (for
+    benchmarks that must time a cold run, and for tests)."""
+    _CELL_CACHE.clear()
+    _CHAINS.clear()
+    _scaled_matrix.cache_clear()
+    krawtchouk_table.cache_clear()
 
 
 def _copy_cert(cert: dict | None) -> dict | None:
