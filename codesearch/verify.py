@@ -764,3 +764,75 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
 
 
 CERTIFICATE_CHECKERS["three-point-sdp"] = check_three_point_certificate
+# ===================================================================== delsarte-lp-qcw
+# Delsarte's LP for q-ary codes with the constant-weight inequalities A_i <= B_q(n, d, i)
+# (see codesearch.bounds.delsarte.qary_extra_inequalities for the proof). The caps are
+# rebuilt here by their own recursion; Krawtchouk values come from _kraw_columns above.
+
+
+@lru_cache(maxsize=None)
+def _qcw_cap(q: int, n: int, d: int, w: int) -> int:
+    """q-ary constant-weight bound: the least of C(n,w)(q-1)^w, n(q-1)B(n-1,w-1)/w and
+    n B(n-1,w)/(n-w) (floors); 1 when w = 0 or two weight-w words cannot be d apart."""
+    if w < 0 or w > n:
+        return 0
+    if w == 0 or 2 * w < d or n < d:
+        return 1
+    caps = [math.comb(n, w) * (q - 1) ** w, (n * (q - 1) * _qcw_cap(q, n - 1, d, w - 1)) // w]
+    if n > w:
+        caps.append((n * _qcw_cap(q, n - 1, d, w)) // (n - w))
+    return min(caps)
+
+
+def _check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Check a ``delsarte-lp-qcw`` certificate: y >= 0, z >= 0 with, for every i = d..n,
+    ``sum_k y_k K_k(i) - z_i <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) + sum_i z_i
+    B_q(n, d, i)``. Integer arithmetic after clearing one common denominator."""
+    from math import lcm
+
+    for key in ("q", "n", "d", "y", "extra", "bound"):
+        if key not in cert:
+            raise InputError(f"certificate: missing key {key!r}")
+    q, n, d = cert["q"], cert["n"], cert["d"]
+    for name, v in (("q", q), ("n", n), ("d", d)):
+        if isinstance(v, bool) or not isinstance(v, int):
+            raise InputError(f"certificate: {name} must be an integer")
+    if not (2 <= q <= 1 << 16 and 1 <= d <= n <= 4096):
+        raise InputError(f"certificate: parameters q={q}, n={n}, d={d} out of range")
+    ys = cert["y"]
+    if not isinstance(ys, list) or len(ys) != n:
+        raise InputError(f"certificate: y must be a list of n={n} rationals")
+    y = [_parse_fraction(t, f"y[{k + 1}]") for k, t in enumerate(ys)]
+    claimed = _parse_fraction(cert["bound"], "bound")
+    if not isinstance(cert["extra"], list):
+        raise InputError("certificate: extra must be a list")
+    z: dict[int, Fraction] = {}
+    for j, e in enumerate(cert["extra"]):
+        if not isinstance(e, Mapping) or not {"index", "z"} <= set(e):
+            raise InputError(f"certificate: extra[{j}] needs index and z")
+        if e.get("family", "constant-weight") != "constant-weight":
+            return False, None, f"extra[{j}]: unknown family {e.get('family')!r}"
+        i = e["index"]
+        if isinstance(i, bool) or not isinstance(i, int) or not d <= i <= n or i in z:
+            raise InputError(f"certificate: extra[{j}].index must be a new integer in {d}..{n}")
+        z[i] = _parse_fraction(e["z"], f"extra[{j}].z")
+    if any(v < 0 for v in y) or any(v < 0 for v in z.values()):
+        return False, None, "a dual multiplier is negative"
+    L = lcm(*(v.denominator for v in y), *(v.denominator for v in z.values()))
+    Y = [v.numerator * (L // v.denominator) for v in y]
+    Z = {i: v.numerator * (L // v.denominator) for i, v in z.items()}
+    T = _kraw_columns(q, n)
+    for i in range(d, n + 1):
+        total = sum(Y[k - 1] * T[i][k] for k in range(1, n + 1) if Y[k - 1]) - Z.get(i, 0)
+        if total > -L:
+            return False, None, f"dual constraint fails at distance i={i}"
+    num = L + sum(Y[k - 1] * T[0][k] for k in range(1, n + 1))
+    num += sum(Zi * _qcw_cap(q, n, d, i) for i, Zi in Z.items())
+    value = Fraction(num, L)
+    if value != claimed:
+        return False, None, f"bound is {value}, certificate claims {claimed}"
+    bound = value.numerator // value.denominator
+    return True, bound, f"A_{q}({n},{d}) <= {bound} (constant-weight inequalities)"
+
+
+CERTIFICATE_CHECKERS["delsarte-lp-qcw"] = _check_delsarte_lp_qcw

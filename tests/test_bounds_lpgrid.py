@@ -132,3 +132,103 @@ def test_cell_cache_shares_checked_certificate_between_mapped_cells():
     b = delsarte.delsarte_lp(Params(2, 31, 8))
     assert a.value == b.value and a.certificate == b.certificate
     assert a.certificate is not b.certificate  # callers get their own copy
+
+
+# ----------------------------------------------------------------- q-ary extra inequalities
+def _ternary_golay_extended():
+    """[12, 6, 6]_3: the ternary Golay code with a zero-sum check symbol appended
+    (MacWilliams-Sloane ch. 20 section 2)."""
+    from bounds_codes import golay11_ternary
+    from codesearch.model import Code
+
+    w = golay11_ternary().words.astype(np.int64)
+    return Code(np.hstack([w, (-w.sum(axis=1, keepdims=True)) % 3]), 3)
+
+
+def _qary_codes():
+    from bounds_codes import golay11_ternary, reed_solomon
+
+    # (name, code, designed distance): MDS distances n - k + 1 (Reed and Solomon 1960).
+    return [
+        ("golay11_3", golay11_ternary(), 5),
+        ("golay12_3", _ternary_golay_extended(), 6),
+        ("rs_5_5_2", reed_solomon(5, 5, 2), 4),
+        ("rs_5_5_3", reed_solomon(5, 5, 3), 3),
+        ("rs_7_7_3", reed_solomon(7, 7, 3), 5),
+        ("rs_7_6_2", reed_solomon(7, 6, 2), 5),
+    ]
+
+
+@pytest.mark.parametrize("name,code,d", _qary_codes(), ids=lambda v: v if isinstance(v, str) else "")
+def test_qary_constant_weight_inequalities_hold_on_real_codes(name, code, d):
+    # Each inequality A_i <= B_q(n, d, i) is claimed per codeword: check it on the distance
+    # distribution seen from codewords of well-known codes; and the code's size never
+    # exceeds the LP with these inequalities.
+    assert verify.min_distance(code) >= d
+    q, n = code.q, code.n
+    w = code.words.astype(np.int64)
+    extras = delsarte.qary_extra_inequalities(q, n, d)
+    for c in range(0, code.size, max(1, code.size // 50)):
+        counts = np.bincount((w != w[c]).sum(axis=1), minlength=n + 1)
+        for _, _, coeffs, rhs in extras:
+            assert sum(a * int(counts[i]) for i, a in coeffs.items()) <= rhs, name
+    plus = delsarte.delsarte_lp_plus(Params(q, n, d))
+    assert plus.certified and plus.value >= code.size
+    assert verify.check_certificate(plus.certificate)[:2] == (True, plus.value)
+
+
+def test_qary_constant_weight_caps_agree_with_checker_and_small_exhaustive():
+    # Producer and checker compute the caps by separate code; and for tiny parameters the
+    # cap is at least the exact maximum found by brute force over all weight-w words.
+    import itertools
+
+    for q in (3, 4):
+        for n in range(1, 9):
+            for d in range(1, n + 1):
+                for w in range(0, n + 1):
+                    assert (delsarte.qary_constant_weight_bound(q, n, d, w)
+                            == verify._qcw_cap(q, n, d, w)), (q, n, d, w)
+    q = 3
+    for n, d, w in [(4, 3, 2), (4, 3, 3), (5, 3, 3), (4, 2, 2), (5, 4, 3)]:
+        words = [x for x in itertools.product(range(q), repeat=n)
+                 if sum(1 for s in x if s) == w]
+        best = _max_code(words, d)
+        assert delsarte.qary_constant_weight_bound(q, n, d, w) >= best, (n, d, w)
+
+
+def _max_code(words, d):
+    """Largest subset with pairwise distance >= d (networkx max clique; an outside solver)."""
+    import networkx as nx
+
+    g = nx.Graph()
+    g.add_nodes_from(range(len(words)))
+    for a in range(len(words)):
+        for b in range(a + 1, len(words)):
+            if sum(1 for x, y in zip(words[a], words[b]) if x != y) >= d:
+                g.add_edge(a, b)
+    return max(len(c) for c in nx.find_cliques(g))
+
+
+def test_qary_lp_plus_sound_never_weaker_and_strengthens_a_cell():
+    # MDS codes (Reed-Solomon, n <= q) have q^(n-d+1) words: the LP with the inequalities
+    # stays at or above that, and never above the plain LP.
+    for q in (3, 4, 5):
+        for n in range(2, q + 1):
+            for d in range(2, n + 1):
+                p = Params(q, n, d)
+                plain, plus = delsarte.delsarte_lp(p), delsarte.delsarte_lp_plus(p)
+                assert plus.certified and q ** (n - d + 1) <= plus.value <= plain.value
+    # A_5(7,5): plain LP 125 (= Singleton), with the inequalities 104 (computed here).
+    p = Params(5, 7, 5)
+    assert delsarte.delsarte_lp_plus(p).value < delsarte.delsarte_lp(p).value
+
+
+def test_qcw_checker_rejects_tampering():
+    r = delsarte.delsarte_lp_plus(Params(5, 7, 5))
+    cert = r.certificate
+    assert cert["kind"] == "delsarte-lp-qcw" and cert["extra"]
+    assert verify.check_certificate(cert)[:2] == (True, r.value)
+    smaller = dict(cert, bound=str(r.value - 1))
+    assert not verify.check_certificate(smaller)[0]
+    cheap = dict(cert, extra=[dict(e, z="0") for e in cert["extra"]])
+    assert not verify.check_certificate(cheap)[0]

@@ -31,6 +31,18 @@ iterative refinement on the active set (exact integer residuals, float correctio
 the dual; every candidate is checked exactly and the least certified value is reported. A
 result that cannot be certified is returned with ``certified=False`` and never used.
 
+Beyond about 2^40 doubles cannot even find the optimal basis (the certificate must hold to
+within 1 while its terms are as large as the value). Those LPs are solved in high-precision
+decimal arithmetic (:mod:`codesearch.bounds.hpsimplex`), warm-started along a *chain*: for
+one length n the LP at distance d is the LP at the next allowed distance plus one row, so
+the optimal dictionary of the previous d stays dual feasible and a few dual simplex pivots
+finish (:class:`_Chain`, which walks d downwards from n and keeps every result); the LP with
+extra inequalities adds its columns to a copy of the plain optimum and runs the primal
+simplex. The decimal solution is turned into an exact certificate by iterative refinement
+with exact integer residuals (:func:`_refine_certify`); an exact rational vertex is used
+only when the value sits at an integer. A grid run also asks for each LP twice (A(n, 2t-1)
+is solved as A(n+1, 2t)), so certified results are cached per LP cell.
+
 References
 ----------
 P. Delsarte, "Bounds for unrestricted codes, by linear programming", Philips Res. Rep. 27
@@ -60,7 +72,7 @@ from codesearch.model import Params
 from codesearch.results import BoundResult
 
 __all__ = ["delsarte_lp", "delsarte_lp_plus", "lp_cell", "extra_inequalities", "solve_float_lp",
-           "clear_caches"]
+           "clear_caches", "qary_extra_inequalities", "qary_constant_weight_bound"]
 
 #: Extra bits of the dyadic rounding beyond log2(q^n): rounding moves each constraint sum by
 #: at most q^n / 2^E, far below the slack the rescaling has to absorb.
@@ -123,6 +135,57 @@ def extra_inequalities(n: int, d: int) -> list[tuple[str, int, dict[int, int], i
     return out
 
 
+@lru_cache(maxsize=None)
+def qary_constant_weight_bound(q: int, n: int, d: int, w: int) -> int:
+    """Upper bound on the size of a q-ary code of length n, constant weight w, distance >= d.
+
+    Proof of each step (valid for every q >= 2):
+
+    * w = 0, or min(n, 2w) < d: at most one word (two weight-w words differ in at most
+      min(n, 2w) positions); w > n: none.
+    * Nonzero positions: count pairs (word x, position p with x_p != 0): M w of them. For a
+      fixed p and symbol a != 0, the words with x_p = a agree at p, so deleting p leaves a
+      code of length n-1, weight w-1, distance >= d: at most B(n-1, w-1) words. Hence
+      M w <= n (q-1) B(n-1, w-1).
+    * Zero positions: likewise the words with x_p = 0, with p deleted, form a code of length
+      n-1, weight w, distance >= d, so M (n-w) <= n B(n-1, w).
+    * Trivially M <= C(n, w) (q-1)^w, the number of weight-w words.
+
+    The first recursion is the q-ary form of Johnson's bound for constant-weight codes.
+    """
+    from math import comb
+
+    if w < 0 or w > n:
+        return 0
+    if w == 0 or min(n, 2 * w) < d:
+        return 1
+    best = comb(n, w) * (q - 1) ** w
+    best = min(best, n * (q - 1) * qary_constant_weight_bound(q, n - 1, d, w - 1) // w)
+    if w < n:
+        best = min(best, n * qary_constant_weight_bound(q, n - 1, d, w) // (n - w))
+    return best
+
+
+def qary_extra_inequalities(q: int, n: int, d: int) -> list[tuple[str, int, dict[int, int], int]]:
+    """Valid inequalities ``A_i <= B_q(n, d, i)`` for q-ary codes (any q >= 2; used for q > 2).
+
+    For a codeword c, the words x - c (symbolwise in Z_q, an isometry of the Hamming space)
+    of the codewords x at distance i from c have weight i and pairwise distance >= d, so
+    A_i(c) is at most the largest such constant-weight code, bounded by
+    :func:`qary_constant_weight_bound`; averaging over c gives the inequality for the
+    distance distribution. Kept only where the cap is below C(n, i) (q-1)^i. The same
+    argument, binary, is the constant-weight family of Best et al. (1978).
+    """
+    from math import comb
+
+    out = []
+    for i in range(d, n + 1):
+        cap = qary_constant_weight_bound(q, n, d, i)
+        if cap < comb(n, i) * (q - 1) ** i:
+            out.append(("constant-weight", i, {i: 1}, cap))
+    return out
+
+
 @lru_cache(maxsize=512)
 def _scaled_matrix(q: int, n: int) -> np.ndarray:
     """Float Q[x, k-1] = K_k(x) / K_k(0) for k = 1..n (exactly rounded int division)."""
@@ -145,7 +208,7 @@ def _degrees(n: int, even: bool) -> list[int]:
 def _problem(q: int, n: int, d: int, even: bool, use_extra: bool):
     rows = allowed_distances(n, d, even)
     ks = _degrees(n, even)
-    extras = _extras(n, d, even) if (use_extra and q == 2) else []
+    extras = _extras(q, n, d, even) if use_extra else []
     Q = _scaled_matrix(q, n)
     nk = len(ks)
     G = np.empty((len(rows), nk + len(extras)))
@@ -434,12 +497,11 @@ def _fmt(x: Fraction) -> str:
 
 
 def _solve_certified(q: int, n: int, d: int, even: bool, use_extra: bool, fallback: bool):
-    use_extra = use_extra and q == 2
     if fallback:
         # A neighbouring cell's high-precision run may already have solved this one.
         hit = _chain_result(q, n, d, even, use_extra, start=False)
         if hit is not None:
-            extras = _extras(n, d, even) if use_extra else []
+            extras = _extras(q, n, d, even) if use_extra else []
             return hit, _degrees(n, even), extras, None, True
     rows, ks, extras, G, res = solve_float_lp(q, n, d, even, use_extra)
     ex = _Exact(q, n, rows, ks, extras)
@@ -603,9 +665,9 @@ class _Chain:
         D = ctx.create_decimal
         return [ctx.divide(D(K[k][i]), D(K[k][0])) for k in self.ks]
 
-    def solve(self, d: int, use_extra: bool, want: bool = True):
-        """Certified tuple for (d, use_extra), or None; ``want`` forces recording even when
-        the value is within double precision's reach."""
+    def solve(self, d: int, use_extra: bool):
+        """Certified tuple for the LP at distance d (with the extra inequalities when
+        ``use_extra``), or None when the chain already went past d without recording it."""
         key = (d, use_extra)
         if key in self.results:
             return self.results[key]
@@ -637,20 +699,25 @@ class _Chain:
         rows = allowed_distances(n, d, even)
         ex = _Exact(q, n, rows, self.ks, [])
         self.results[(d, False)] = _finish(ex, self.tab, q, n)
-        if q == 2:
-            extras = _extras(n, d, even)
-            exx = _Exact(q, n, rows, self.ks, extras)
-            tab = self.tab.copy()
-            ctx = tab.ctx
-            D = ctx.create_decimal
-            nk = len(self.ks)
-            present = set(rows)
-            for j, (_, _, coeffs, b) in enumerate(extras):
-                tab.add_column(nk + j, {i: ctx.divide(D(-a), D(b))
-                                        for i, a in coeffs.items() if i in present})
+        extras = _extras(q, n, d, even)
+        exx = _Exact(q, n, rows, self.ks, extras)
+        ctx = self.tab.ctx
+        D = ctx.create_decimal
+        nk = len(self.ks)
+        present = set(rows)
+        columns = [{i: ctx.divide(D(-a), D(b)) for i, a in coeffs.items() if i in present}
+                   for (_, _, coeffs, b) in extras]
+        tab = self.tab
+        if any(tab.entering_cost(col) > tab.tiny for col in columns):
+            # Some inequality cuts off the plain optimum: add them all and re-optimise a copy.
+            tab = tab.copy()
+            for j, col in enumerate(columns):
+                tab.add_column(nk + j, col)
             ok = tab.primal_simplex(40 * tab.m + 200)
-            self.pivots += tab.pivots
-            self.results[(d, True)] = _finish(exx, tab, q, n) if ok else None
+        else:
+            ok = True  # the plain optimum satisfies every extra inequality: it is optimal
+        self.pivots += tab.pivots
+        self.results[(d, True)] = _finish(exx, tab, q, n) if ok else None
 
 
 def _finish(ex: "_Exact", tab, q: int, n: int):
@@ -701,9 +768,9 @@ def _chain_result(q: int, n: int, d: int, even: bool, use_extra: bool, *, start:
     return chain.solve(d, use_extra)
 
 
-def _extras(n: int, d: int, even: bool) -> list:
+def _extras(q: int, n: int, d: int, even: bool) -> list:
     """Extra inequalities of the LP cell; on even distances those touching only odd i are void."""
-    extras = extra_inequalities(n, d)
+    extras = extra_inequalities(n, d) if q == 2 else qary_extra_inequalities(q, n, d)
     if even:
         extras = [e for e in extras if any(i % 2 == 0 and i >= d for i in e[2])]
     return extras
@@ -775,6 +842,10 @@ def _lp_cell_result(q: int, n: int, d: int, even: bool, use_extra: bool, fallbac
                 {"family": fam, "index": idx, "z": _fmt(zj)}
                 for (fam, idx, _, _), zj in zip(extras, z) if zj
             ]
+            if q > 2:
+                # Its own kind: the q-ary family has its own checker in codesearch.verify.
+                cert["kind"] = "delsarte-lp-qcw"
+                del cert["even"]
         valid, checked, reason = verify.check_certificate(cert)
         if not valid or checked != value:
             out = (value, cert, False, f"certificate rejected: {reason}")
@@ -833,8 +904,9 @@ def delsarte_lp(params: Params, *, exact_fallback: bool = True) -> BoundResult |
         The cell.
     exact_fallback : bool
         When the double-precision solve cannot be certified tightly (LP values beyond about
-        2^40), run the high-precision dual simplex (seconds per cell at n ~ 128). Off, such
-        cells may come back uncertified (never used as a bound).
+        2^40), solve in high precision (warm-started along d, see the module docstring;
+        about 20 ms per LP at n ~ 128 within a grid run, up to a second for a single cell
+        there). Off, such cells may come back uncertified (never used as a bound).
 
     Returns
     -------
@@ -845,10 +917,7 @@ def delsarte_lp(params: Params, *, exact_fallback: bool = True) -> BoundResult |
 
 
 def delsarte_lp_plus(params: Params, *, exact_fallback: bool = True) -> BoundResult | None:
-    """Delsarte's LP with the extra binary inequalities of :func:`extra_inequalities`.
-
-    None for q > 2 (no extra family implemented there).
-    """
-    if params.q != 2:
-        return None
+    """Delsarte's LP with extra inequalities: the binary families of
+    :func:`extra_inequalities`, or for q > 2 the constant-weight family of
+    :func:`qary_extra_inequalities` (certificate kind ``delsarte-lp-qcw``)."""
     return _run(params, True, "delsarte-lp-plus", exact_fallback)

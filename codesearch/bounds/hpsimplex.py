@@ -131,6 +131,18 @@ class Tableau:
             self.T = np.hstack([self.T[:, :N], col[:, None], self.T[:, N:]])
             self.nonbasic.append(("u", label))
 
+    def entering_cost(self, coeffs: dict) -> decimal.Decimal:
+        """Objective-row entry a column with these coefficients would get (> 0: it would
+        improve the optimum, so the dictionary is no longer optimal once it is added)."""
+        with decimal.localcontext(self.ctx):
+            m = self.m
+            where = {lab: j for j, (kind, lab) in enumerate(self.nonbasic) if kind == "s"}
+            total = self.ctx.create_decimal(-1)
+            for lab, a in coeffs.items():
+                if a and lab in where:
+                    total += a * self.T[m, where[lab]]
+            return total
+
     # ------------------------------------------------------------------ pivoting
     def _pivot(self, r: int, j: int) -> None:
         T = self.T
