@@ -312,7 +312,10 @@ def run(
         s.walk(root)
     else:
         zero_node = graph.orbit_split(root, q, d)[0]  # one orbit: the zero word
-        children = graph.orbit_split(zero_node, q, d, first_weight=d)
+        if zero_node.candidates.shape[0] <= s.leaf_size:
+            children = [zero_node]  # small enough to be one leaf: no split by weight
+        else:
+            children = graph.orbit_split(zero_node, q, d, first_weight=d)
         if zero_node.fixed.shape[0] > s.best:
             s.best, s.code = 1, zero_node.fixed.copy()
             s.stopped = s.goal_met()
