@@ -389,6 +389,120 @@ def gf_rank(words, p, limit):
     return r
 
 
+@nb.njit(nb.int64(nb.uint64[:, ::1], nb.int64, nb.int64), cache=True, parallel=True)
+def least_weight_of_row_sums_binary(gen, w, best):
+    """Least weight among the sums of exactly ``w`` distinct rows of ``gen`` (binary, packed).
+
+    ``gen`` is (k, L) uint64 (one plane). Returns ``best`` when no sum is lighter. The
+    combinations are visited depth first keeping the partial sums of every prefix, so each
+    costs one row XOR; the first row of a combination is spread over 64 interleaved chunks
+    (the number of combinations falls with the first row, so a contiguous split would not
+    balance).
+    """
+    k, limbs = gen.shape
+    chunks = 64
+    out = np.full(chunks, best, dtype=np.int64)
+    if w < 1 or w > k:
+        return best
+    for c in nb.prange(chunks):
+        idx = np.zeros(w, dtype=np.int64)
+        acc = np.zeros((w + 1, limbs), dtype=np.uint64)  # acc[t]: sum of rows idx[0..t-1]
+        local = best
+        for i0 in range(k - w + 1):
+            if i0 % chunks != c:
+                continue
+            idx[0] = i0
+            for l in range(limbs):
+                acc[1, l] = gen[i0, l]
+            if w == 1:
+                wt = 0
+                for l in range(limbs):
+                    wt += popcount64(acc[1, l])
+                local = min(local, wt)
+                continue
+            t = 1
+            idx[1] = i0
+            while t >= 1:
+                idx[t] += 1
+                if idx[t] > k - w + t:  # too few rows left after it: back up
+                    t -= 1
+                    continue
+                r = idx[t]
+                for l in range(limbs):
+                    acc[t + 1, l] = acc[t, l] ^ gen[r, l]
+                if t + 1 == w:
+                    wt = 0
+                    for l in range(limbs):
+                        wt += popcount64(acc[w, l])
+                    if wt < local:
+                        local = wt
+                else:
+                    t += 1
+                    idx[t] = idx[t - 1]
+        out[c] = local
+    return out.min()
+
+
+@nb.njit(nb.int64(nb.int64[:, ::1], nb.int64, nb.int64, nb.int64), cache=True, parallel=True)
+def least_weight_of_row_sums_prime(gen, p, w, best):
+    """Least weight among the combinations of exactly ``w`` distinct rows of ``gen`` over GF(p)
+    with nonzero coefficients, the first coefficient 1 (the others are its scalar multiples,
+    of the same weight). Returns ``best`` when none is lighter. As
+    :func:`least_weight_of_row_sums_binary`, depth first with the partial sums of prefixes.
+    """
+    k, n = gen.shape
+    chunks = 64
+    out = np.full(chunks, best, dtype=np.int64)
+    if w < 1 or w > k:
+        return best
+    for c in nb.prange(chunks):
+        idx = np.zeros(w, dtype=np.int64)
+        coef = np.zeros(w, dtype=np.int64)
+        acc = np.zeros((w + 1, n), dtype=np.int64)
+        local = best
+        for i0 in range(k - w + 1):
+            if i0 % chunks != c:
+                continue
+            idx[0] = i0
+            for x in range(n):
+                acc[1, x] = gen[i0, x]
+            if w == 1:
+                wt = 0
+                for x in range(n):
+                    if acc[1, x] != 0:
+                        wt += 1
+                local = min(local, wt)
+                continue
+            t = 1
+            idx[1] = i0
+            coef[1] = p - 1  # so that the first step moves on to the next row
+            while t >= 1:
+                coef[t] += 1
+                if coef[t] == p:
+                    coef[t] = 1
+                    idx[t] += 1
+                    if idx[t] > k - w + t:
+                        t -= 1
+                        continue
+                r = idx[t]
+                a = coef[t]
+                for x in range(n):
+                    acc[t + 1, x] = (acc[t, x] + a * gen[r, x]) % p
+                if t + 1 == w:
+                    wt = 0
+                    for x in range(n):
+                        if acc[w, x] != 0:
+                            wt += 1
+                    if wt < local:
+                        local = wt
+                else:
+                    t += 1
+                    idx[t] = idx[t - 1]
+                    coef[t] = p - 1
+        out[c] = local
+    return out.min()
+
+
 # ======================================================================= clique engine (exact search)
 #
 # Bitset branch and bound for the maximum (weight) clique, after BBMC (San Segundo, Rodriguez-Losada

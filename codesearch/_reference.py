@@ -50,6 +50,18 @@ def linear_weight_distribution(gen: np.ndarray, p: int) -> list[int]:
     return out
 
 
+def least_weight_of_row_sums(gen: np.ndarray, p: int, w: int, best: int) -> int:
+    """Least weight of the combinations of exactly ``w`` distinct rows, all coefficients
+    nonzero (``best`` if none is lighter); twin of ``least_weight_of_row_sums_*``."""
+    k, n = gen.shape
+    out = best
+    for rows in itertools.combinations(range(k), w):
+        for coeffs in itertools.product(range(1, p), repeat=w):
+            word = [sum(c * int(gen[r, x]) for r, c in zip(rows, coeffs)) % p for x in range(n)]
+            out = min(out, sum(1 for s in word if s))
+    return out
+
+
 def gf_rank(words: np.ndarray, p: int) -> int:
     """Rank over GF(p) by textbook Gaussian elimination on a list of lists."""
     rows = [[int(s) % p for s in r] for r in words]

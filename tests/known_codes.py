@@ -85,6 +85,19 @@ def reed_muller_1(m: int) -> Code:
     return span(gen, 2)
 
 
+def reed_muller_generator(r: int, m: int) -> np.ndarray:
+    """Generator matrix of the Reed-Muller code RM(r,m): evaluations on GF(2)^m of the
+    monomials of degree <= r (MacWilliams & Sloane, ch. 13, from memory). Parameters
+    [2^m, sum_{i<=r} C(m,i), 2^(m-r)]."""
+    points = np.array(list(itertools.product([0, 1], repeat=m)), dtype=np.int64)
+    rows = []
+    for deg in range(r + 1):
+        for subset in itertools.combinations(range(m), deg):
+            rows.append(points[:, list(subset)].prod(axis=1) if subset
+                        else np.ones(2**m, dtype=np.int64))
+    return np.array(rows, dtype=np.uint8)
+
+
 def repetition(n: int, q: int) -> Code:
     """The q words (s, s, ..., s): distance n."""
     return Code(np.repeat(np.arange(q, dtype=np.uint8)[:, None], n, axis=1), q)

@@ -60,7 +60,8 @@ SMALL_CELLS = [(2, n, d) for n in range(3, 8) for d in range(2, n + 1)] + [
 @pytest.mark.parametrize("q,n,d", SMALL_CELLS)
 def test_reduced_and_unreduced_searches_agree(q, n, d):
     p = Params(q, n, d)
-    reduced = search(p, "exact", time_limit=60, use_bounds=False)
+    # leaf_size=8: these spaces are small enough that the default would search them whole
+    reduced = search(p, "exact", time_limit=60, use_bounds=False, leaf_size=8)
     plain = search(p, "exact", time_limit=60, reduce=False, use_bounds=False)
     assert reduced.optimal and plain.optimal
     assert reduced.size == plain.size
