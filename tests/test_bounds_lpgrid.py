@@ -232,3 +232,17 @@ def test_qcw_checker_rejects_tampering():
     assert not verify.check_certificate(smaller)[0]
     cheap = dict(cert, extra=[dict(e, z="0") for e in cert["extra"]])
     assert not verify.check_certificate(cheap)[0]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("d", [3, 4, 9, 17, 26, 33, 40])
+def test_chain_agrees_with_cold_simplex_at_128(d):
+    # The longest cells of the grid (values up to 2^121): chain and cold simplex agree.
+    for plus in (False, True):
+        p = Params(2, 128, d)
+        r = (delsarte.delsarte_lp_plus if plus else delsarte.delsarte_lp)(p)
+        assert r.certified and verify.check_certificate(r.certificate)[:2] == (True, r.value)
+        n, d2, even = delsarte.lp_cell(p)
+        rows, ks, extras, _ = delsarte._problem(2, n, d2, even, plus)
+        cold = delsarte._decimal_fallback(delsarte._Exact(2, n, rows, ks, extras), 2, n)
+        assert cold is not None and cold[0] == r.value
