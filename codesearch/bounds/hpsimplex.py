@@ -49,6 +49,9 @@ import numpy as np
 
 __all__ = ["Tableau"]
 
+#: Pivots after which the double shadow of the tableau is rebuilt from the decimals.
+_SHADOW_AGE = 40
+
 
 class Tableau:
     """Condensed simplex dictionary over :class:`decimal.Decimal` (see the module docstring).
@@ -70,6 +73,11 @@ class Tableau:
         self.basic: list[tuple[str, int]] = []
         self.nonbasic: list[tuple[str, int]] = [("u", c) for c in range(ncols)]
         self.pivots = 0
+        # Double-precision shadow of T, updated by the same pivots and rows; it only ranks
+        # candidate rows (steepest-edge weights), and is rebuilt from T every _SHADOW_AGE
+        # pivots so that its rounding errors stay small.
+        self.F: np.ndarray | None = None
+        self._age = 0
 
     # ------------------------------------------------------------------ structure
     @property
@@ -83,6 +91,7 @@ class Tableau:
         other.T = self.T.copy()  # Decimals are immutable: a shallow copy is a full copy
         other.basic, other.nonbasic = list(self.basic), list(self.nonbasic)
         other.pivots = 0
+        other.F, other._age = None, 0
         return other
 
     def add_row(self, label: int, coeffs: Sequence) -> None:
@@ -104,6 +113,9 @@ class Tableau:
                     row = row - coeffs[idx] * self.T[p, :]
             self.T = np.vstack([self.T[:m], row[None, :], self.T[m:]])
             self.basic.append(("s", label))
+            if self.F is not None:
+                frow = np.array(row, dtype=float)
+                self.F = np.vstack([self.F[:m], frow[None, :], self.F[m:]])
 
     def add_column(self, label: int, coeffs: dict) -> None:
         """Append structural column ``("u", label)`` (cost 1), nonbasic at 0.
@@ -129,6 +141,7 @@ class Tableau:
                     col = col + a * self.T[:, where[lab]]
             N = self.T.shape[1] - 1
             self.T = np.hstack([self.T[:, :N], col[:, None], self.T[:, N:]])
+            self.F = None
             self.nonbasic.append(("u", label))
 
     def entering_cost(self, coeffs: dict) -> decimal.Decimal:
@@ -156,6 +169,9 @@ class Tableau:
         self.T = T
         self.basic[r], self.nonbasic[j] = self.nonbasic[j], self.basic[r]
         self.pivots += 1
+        if self.F is not None:
+            self._pivot_float(self.F, r, j)
+            self._age += 1
 
     def _weights(self, F: np.ndarray) -> np.ndarray:
         """Dual steepest-edge weights ||e_r^T B^-1||^2 of every row, from the double shadow F.
@@ -191,7 +207,6 @@ class Tableau:
         these LPs; after 2m + 10 pivots Bland's least-label rule takes over (no cycling).
         """
         tiny = self.tiny
-        F = None
         with decimal.localcontext(self.ctx):
             for step in range(max_pivots):
                 m, N = self.m, self.T.shape[1] - 1
@@ -203,9 +218,9 @@ class Tableau:
                 if bland:
                     r = min(infeasible, key=lambda i: self.basic[i])
                 else:
-                    if F is None:
-                        F = np.array(self.T, dtype=float)
-                    w = self._weights(F)
+                    if self.F is None or self._age >= _SHADOW_AGE:
+                        self.F, self._age = np.array(self.T, dtype=float), 0
+                    w = self._weights(self.F)
                     r = max(infeasible, key=lambda i: float(beta[i]) ** 2 / w[i])
                 row = self.T[r, :N]
                 obj = self.T[m, :N]
@@ -220,8 +235,6 @@ class Tableau:
                 if best_j is None:
                     return False  # primal infeasible: cannot happen for a Delsarte LP
                 self._pivot(r, best_j)
-                if F is not None:
-                    self._pivot_float(F, r, best_j)
         return False
 
     def primal_simplex(self, max_pivots: int) -> bool:
