@@ -156,7 +156,8 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--nmax", type=int, default=128)
     ap.add_argument("--repeat", type=int, default=3)
-    ap.add_argument("--workers", type=int, default=2, help="pool size of the parallel run (0: skip)")
+    ap.add_argument("--workers", type=int, default=2,
+                    help="pool size of the parallel run (0 or 1: skip it)")
     ap.add_argument("--list-n", type=int, default=24, help="list LP-winning cells up to this n")
     args = ap.parse_args()
 
@@ -238,7 +239,8 @@ def main() -> None:
     print(f"  cells where the extra inequalities improve on the plain LP and classical: "
           f"{len(wins_plus)}")
     small = sorted(c for c in wins if c[0] <= args.list_n)
-    print(f"  LP-winning cells with n <= {args.list_n}: " + " ".join(f"({n},{d})" for n, d in small))
+    print(f"  LP-winning cells with n <= {args.list_n}: "
+          + " ".join(f"({n},{d})" for n, d in small))
     small = sorted(c for c in wins_plus if c[0] <= args.list_n)
     print(f"  cells with n <= {args.list_n} where the extra inequalities help: "
           + " ".join(f"({n},{d})" for n, d in small))

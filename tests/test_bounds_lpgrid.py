@@ -159,7 +159,8 @@ def _qary_codes():
     ]
 
 
-@pytest.mark.parametrize("name,code,d", _qary_codes(), ids=lambda v: v if isinstance(v, str) else "")
+@pytest.mark.parametrize("name,code,d", _qary_codes(),
+                         ids=lambda v: v if isinstance(v, str) else "")
 def test_qary_constant_weight_inequalities_hold_on_real_codes(name, code, d):
     # Each inequality A_i <= B_q(n, d, i) is claimed per codeword: check it on the distance
     # distribution seen from codewords of well-known codes; and the code's size never

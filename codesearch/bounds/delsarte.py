@@ -14,10 +14,12 @@ distances; odd d maps through A(n, 2t-1) = A(n+1, 2t)). Every dual-feasible vect
 y >= 0 with sum_k y_k K_k(i) <= -1 for all i in I proves |C| <= 1 + sum_k y_k K_k(0)
 (weak duality), whatever its origin: that vector, in exact rationals, is the certificate.
 
-Optionally (binary only) extra valid inequalities ``sum_i a_i A_i <= b`` are appended, each
-proved per codeword and so valid for the average (see :func:`extra_inequalities`); their dual
-multipliers z_j >= 0 enter the certificate as ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1`` and
-the bound becomes ``1 + sum_k y_k K_k(0) + sum_j z_j b_j``.
+Optionally extra valid inequalities ``sum_i a_i A_i <= b`` are appended, each proved per
+codeword and so valid for the average (binary: :func:`extra_inequalities`; q > 2: the
+constant-weight family of :func:`qary_extra_inequalities`, certificate kind
+``delsarte-lp-qcw``); their dual multipliers z_j >= 0 enter the certificate as
+``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1`` and the bound becomes
+``1 + sum_k y_k K_k(0) + sum_j z_j b_j``.
 
 How the value is made exact
 ---------------------------
@@ -59,8 +61,8 @@ from __future__ import annotations
 
 import decimal
 import math
-from fractions import Fraction
 from collections import OrderedDict
+from fractions import Fraction
 from functools import lru_cache
 from typing import Any
 
@@ -598,7 +600,9 @@ def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
     for _ in range(rounds):
         s = ex.sums(m)
         cand = ex.certify(m)
-        if cand is not None and (best is None or (cand[0], cand[3] * best[1]) < (best[0], best[3] * cand[1])):
+        # Keep the least certified value (compare obj/W exactly by cross-multiplying).
+        if cand is not None and (
+                best is None or (cand[0], cand[3] * best[1]) < (best[0], best[3] * cand[1])):
             best = cand
         res = [-one - s[r] for (_, r) in tight]
         worst = max((abs(x) for x in res), default=0)

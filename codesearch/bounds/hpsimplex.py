@@ -1,4 +1,4 @@
-"""A high-precision simplex tableau that can be warm-started and grown row by row or column by column.
+"""A high-precision simplex tableau that is warm-started and grown by rows or by columns.
 
 Problem
 -------
@@ -95,7 +95,7 @@ class Tableau:
         return other
 
     def add_row(self, label: int, coeffs: Sequence) -> None:
-        """Append the constraint ``sum_c coeffs[c] u_c <= -1`` with its slack ``("s", label)`` basic.
+        """Append the constraint ``sum_c coeffs[c] u_c <= -1``; its slack ``("s", label)`` is basic.
 
         ``coeffs`` are Decimals indexed by structural column. The new row is the constraint
         with every basic structural variable substituted by its dictionary row.
