@@ -694,7 +694,8 @@ class _Chain:
             # Record well below the float limit too: near it the double-precision path
             # sometimes cannot certify, and a miss would restart the chain from the top.
             big = float(self.tab.objective()) > _RECORD_LIMIT
-            if i == d or big:
+            done = (i, False) in self.results and (i, True) in self.results
+            if (i == d or big) and not done:
                 self._record(i)
         return self.results.get(key)
 
@@ -764,11 +765,16 @@ def _chain_result(q: int, n: int, d: int, even: bool, use_extra: bool, *, start:
     if not start:
         return None
     if chain is None or chain.d <= d:
+        # Start over from the top (the old chain went past d without recording it); keep
+        # what the old chain already certified.
+        old = chain
         chain = _Chain(q, n, even)
-        _CHAINS.pop(key, None)
-        while len(_CHAINS) >= _MAX_CHAINS:
-            _CHAINS.pop(next(iter(_CHAINS)))
-        _CHAINS[key] = chain
+        if old is not None:
+            chain.results.update((k, v) for k, v in old.results.items() if v is not None)
+    _CHAINS.pop(key, None)  # re-insert: the dict's order is least recently used first
+    while len(_CHAINS) >= _MAX_CHAINS:
+        _CHAINS.pop(next(iter(_CHAINS)))
+    _CHAINS[key] = chain
     return chain.solve(d, use_extra)
 
 
