@@ -247,3 +247,30 @@ def test_chain_agrees_with_cold_simplex_at_128(d):
         rows, ks, extras, _ = delsarte._problem(2, n, d2, even, plus)
         cold = delsarte._decimal_fallback(delsarte._Exact(2, n, rows, ks, extras), 2, n)
         assert cold is not None and cold[0] == r.value
+
+
+@pytest.mark.parametrize("q,n,d", [(3, 40, 5), (4, 30, 8)])
+def test_qary_chain_agrees_with_cold_simplex(q, n, d):
+    # All distances (no even restriction) and q-ary Krawtchouk values: values beyond 2^40.
+    for plus in (False, True):
+        p = Params(q, n, d)
+        r = (delsarte.delsarte_lp_plus if plus else delsarte.delsarte_lp)(p)
+        assert r.certified and r.value > 2**40
+        assert verify.check_certificate(r.certificate)[:2] == (True, r.value)
+        rows, ks, extras, _ = delsarte._problem(q, n, d, False, plus)
+        cold = delsarte._decimal_fallback(delsarte._Exact(q, n, rows, ks, extras), q, n)
+        assert cold is not None and cold[0] == r.value
+
+
+def test_chain_restart_keeps_results_and_solves_the_skipped_cell():
+    # A request for a distance the chain walked past without recording restarts it from
+    # the top; what the old chain certified is kept. Reference: the float path (value small).
+    delsarte.clear_caches()
+    first = delsarte._chain_result(2, 64, 10, True, False, start=True)
+    assert first is not None
+    again = delsarte._chain_result(2, 64, 40, True, False, start=True)
+    assert again is not None
+    chain = delsarte._CHAINS[(2, 64, True)]
+    assert chain.results[(10, False)][0] == first[0]
+    assert again[0] == delsarte.delsarte_lp(Params(2, 64, 40), exact_fallback=False).value
+    delsarte.clear_caches()
