@@ -574,8 +574,9 @@ def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
     far below 1 / value, so the exactly rescaled vector (:meth:`_Exact.certify`) is within
     2^-20 of the basis's vertex value. E carries twice the bits of q^n: a constraint error of
     eps moves the certified value by about value * eps. Returns ``(result, settled)``:
-    ``settled`` is False when the certified value sits within 2^-19 above an integer, where
-    only the exact vertex can say whether the floor is one too high (the caller solves it).
+    ``settled`` is False when the refinement did not converge, or when the certified value
+    sits within 2^-19 above an integer, where only the exact vertex can say whether the
+    floor is one too high (the caller then solves the vertex exactly).
     """
     from fractions import Fraction
 
@@ -597,6 +598,7 @@ def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
     tight = [(j, rowpos[lab]) for j, (kind, lab) in enumerate(tab.nonbasic) if kind == "s"]
     scale = [D(c) for c in ex.cost]
     best = None
+    converged = False
     for _ in range(rounds):
         s = ex.sums(m)
         cand = ex.certify(m)
@@ -607,6 +609,7 @@ def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
         res = [-one - s[r] for (_, r) in tight]
         worst = max((abs(x) for x in res), default=0)
         if best is not None and worst * best[0] < one >> 24:
+            converged = True
             break
         with decimal.localcontext(ctx):
             dres = [D(x) for x in res]
@@ -621,7 +624,7 @@ def _refine_certify(ex: "_Exact", tab, q: int, n: int, rounds: int = 8):
         return None, True
     value, W, mm, obj = best
     frac_num = (obj + W) - value * W  # (1 + obj/W - value) * W, in [0, W)
-    if frac_num * (1 << 19) >= W:
+    if converged and frac_num * (1 << 19) >= W:
         return best, True
     # Unsettled (typically an integer optimum): the vertex usually has small denominators,
     # so round each component to the nearest fraction of bounded denominator and test
