@@ -411,9 +411,10 @@ def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
 def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list[int] | None:
     """Dual simplex in high-precision decimal arithmetic; returns an integer dual vector.
 
-    Used when the double-precision solve fails: on cells whose LP value is far beyond 2^40
-    the dual vector is huge while every constraint must hold to within 1, so doubles cannot
-    resolve it. The problem min sum_c u_c s.t. sum_c u_c G[r][c] <= -1, u >= 0 (columns
+    The cold last resort, used when the warm-started chain (:class:`_Chain`) fails, and the
+    independent reference its tests compare with: on cells whose LP value is far beyond
+    2^40 the dual vector is huge while every constraint must hold to within 1, so doubles
+    cannot resolve it. The problem min sum_c u_c s.t. sum_c u_c G[r][c] <= -1, u >= 0 (columns
     scaled by their objective weight, G = exact coefficient / cost) is solved from the slack
     basis, which is dual feasible because every cost is 1, in a condensed dictionary with
     ``digits`` significant digits (libmpdec, through numpy object arrays). The basis found is
