@@ -561,28 +561,39 @@ def _parse_fraction(text: Any, what: str) -> Fraction:
     return Fraction(p, q)
 
 
-def _check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
-    """Check a ``delsarte-lp`` certificate: y >= 0 (and z >= 0) with, for every allowed i >= d,
-    ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) +
-    sum_j z_j b_j``. Integer arithmetic only (one common denominator)."""
-    from math import lcm
+def _lp_certificate_head(cert: Mapping[str, Any], more: tuple[str, ...]
+                         ) -> tuple[int, int, int, list[Fraction], Fraction]:
+    """Parse the part every LP certificate shares: ``(q, n, d, y, bound)``.
 
-    for key in ("q", "n", "d", "even", "y", "bound"):
+    Raises :class:`InputError` for a missing key (``q n d y bound`` and ``more``), non-integer
+    or out-of-range parameters, or a ``y`` that is not a list of n rationals.
+    """
+    for key in ("q", "n", "d", *more, "y", "bound"):
         if key not in cert:
             raise InputError(f"certificate: missing key {key!r}")
-    q, n, d, even = cert["q"], cert["n"], cert["d"], cert["even"]
+    q, n, d = cert["q"], cert["n"], cert["d"]
     for name, v in (("q", q), ("n", n), ("d", d)):
         if isinstance(v, bool) or not isinstance(v, int):
             raise InputError(f"certificate: {name} must be an integer")
-    if not isinstance(even, bool):
-        raise InputError("certificate: even must be true or false")
     if not (2 <= q <= 1 << 16 and 1 <= d <= n <= 4096):
         raise InputError(f"certificate: parameters q={q}, n={n}, d={d} out of range")
     ys = cert["y"]
     if not isinstance(ys, list) or len(ys) != n:
         raise InputError(f"certificate: y must be a list of n={n} rationals")
     y = [_parse_fraction(t, f"y[{k + 1}]") for k, t in enumerate(ys)]
-    claimed = _parse_fraction(cert["bound"], "bound")
+    return q, n, d, y, _parse_fraction(cert["bound"], "bound")
+
+
+def _check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Check a ``delsarte-lp`` certificate: y >= 0 (and z >= 0) with, for every allowed i >= d,
+    ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) +
+    sum_j z_j b_j``. Integer arithmetic only (one common denominator)."""
+    from math import lcm
+
+    q, n, d, y, claimed = _lp_certificate_head(cert, ("even",))
+    even = cert["even"]
+    if not isinstance(even, bool):
+        raise InputError("certificate: even must be true or false")
     extras_in = cert.get("extra", [])
     if not isinstance(extras_in, list):
         raise InputError("certificate: extra must be a list")
@@ -921,20 +932,7 @@ def _check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
     B_q(n, d, i)``. Integer arithmetic after clearing one common denominator."""
     from math import lcm
 
-    for key in ("q", "n", "d", "y", "extra", "bound"):
-        if key not in cert:
-            raise InputError(f"certificate: missing key {key!r}")
-    q, n, d = cert["q"], cert["n"], cert["d"]
-    for name, v in (("q", q), ("n", n), ("d", d)):
-        if isinstance(v, bool) or not isinstance(v, int):
-            raise InputError(f"certificate: {name} must be an integer")
-    if not (2 <= q <= 1 << 16 and 1 <= d <= n <= 4096):
-        raise InputError(f"certificate: parameters q={q}, n={n}, d={d} out of range")
-    ys = cert["y"]
-    if not isinstance(ys, list) or len(ys) != n:
-        raise InputError(f"certificate: y must be a list of n={n} rationals")
-    y = [_parse_fraction(t, f"y[{k + 1}]") for k, t in enumerate(ys)]
-    claimed = _parse_fraction(cert["bound"], "bound")
+    q, n, d, y, claimed = _lp_certificate_head(cert, ("extra",))
     if not isinstance(cert["extra"], list):
         raise InputError("certificate: extra must be a list")
     z: dict[int, Fraction] = {}

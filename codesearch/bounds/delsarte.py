@@ -423,6 +423,8 @@ def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list
     """
     import decimal
 
+    from codesearch.bounds.hpsimplex import pivot as exchange
+
     ctx = decimal.Context(prec=digits)
     D = ctx.create_decimal
     m, N = len(ex.rows), len(ex.cols)
@@ -462,13 +464,7 @@ def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list
             if best_j is None:
                 return None  # dual unbounded: cannot happen for a Delsarte LP
             j = best_j
-            p = T[r, j]
-            rowr = T[r, :] / p
-            col = T[:, j].copy()
-            T = T - np.outer(col, rowr)
-            T[r, :] = rowr
-            T[:, j] = -col / p
-            T[r, j] = 1 / p
+            T = exchange(T, r, j)
             basic[r], nonbasic[j] = nonbasic[j], basic[r]
         else:
             return None

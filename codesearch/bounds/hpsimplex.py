@@ -47,10 +47,27 @@ from typing import Sequence
 
 import numpy as np
 
-__all__ = ["Tableau"]
+__all__ = ["Tableau", "pivot"]
 
 #: Pivots after which the double shadow of the tableau is rebuilt from the decimals.
 _SHADOW_AGE = 40
+
+
+def pivot(T: np.ndarray, r: int, j: int) -> np.ndarray:
+    """Exchange basic row ``r`` with nonbasic column ``j`` in a condensed tableau.
+
+    ``T`` is an object array of :class:`decimal.Decimal` (any field works); returns the new
+    tableau: pivot row divided by the pivot, column ``j`` replaced by ``-col / p`` and the
+    pivot entry by ``1 / p``, every other entry updated by the rank-one correction.
+    """
+    p = T[r, j]
+    rowr = T[r, :] / p
+    col = T[:, j].copy()
+    T = T - np.outer(col, rowr)
+    T[r, :] = rowr
+    T[:, j] = -col / p
+    T[r, j] = 1 / p
+    return T
 
 
 class Tableau:
@@ -158,15 +175,7 @@ class Tableau:
 
     # ------------------------------------------------------------------ pivoting
     def _pivot(self, r: int, j: int) -> None:
-        T = self.T
-        p = T[r, j]
-        rowr = T[r, :] / p
-        col = T[:, j].copy()
-        T = T - np.outer(col, rowr)
-        T[r, :] = rowr
-        T[:, j] = -col / p
-        T[r, j] = 1 / p
-        self.T = T
+        self.T = pivot(self.T, r, j)
         self.basic[r], self.nonbasic[j] = self.nonbasic[j], self.basic[r]
         self.pivots += 1
         if self.F is not None:
