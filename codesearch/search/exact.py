@@ -54,6 +54,10 @@ OPTIONS = frozenset({"size", "reduce", "leaf_size", "max_fixed", "use_bounds"})
 
 _DEFAULT_LEAF = 96
 _DEFAULT_MAX_FIXED = 4
+#: A space (or zero-word node) with at most this many candidates, and no more than the leaf
+#: size, is searched as one clique: quicker than splitting it. Independent of ``leaf_size``,
+#: since a large leaf size must not turn a real search into an unreduced one.
+_WHOLE_SPACE = 96
 
 
 def load_kernels() -> float:
@@ -305,14 +309,15 @@ def run(
     settings["even_weight_only"] = even
     root = graph.root(q, n, d, even=even)
     skipped_bound: int | None = None
-    if not reduce or root.candidates.shape[0] <= s.leaf_size:
+    whole = min(s.leaf_size, _WHOLE_SPACE)
+    if not reduce or root.candidates.shape[0] <= whole:
         # No reductions, or a space so small that one clique search of all of it is quicker
         # than splitting it by orbits (and equally exhaustive).
         s.max_fixed = 0
         s.walk(root)
     else:
         zero_node = graph.orbit_split(root, q, d)[0]  # one orbit: the zero word
-        if zero_node.candidates.shape[0] <= s.leaf_size:
+        if zero_node.candidates.shape[0] <= whole:
             children = [zero_node]  # small enough to be one leaf: no split by weight
         else:
             children = graph.orbit_split(zero_node, q, d, first_weight=d)
