@@ -386,8 +386,6 @@ def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
     Columns: the variables the float solution uses; rows: as many constraints of least slack.
     When the float basis is the optimal one this returns the exact LP optimum.
     """
-    from math import lcm
-
     x = np.asarray(res.x)
     top = float(np.max(x)) if x.size else 0.0
     if not top > 0:
@@ -396,16 +394,7 @@ def _basis_solve(ex: "_Exact", res) -> tuple[int, int, list[int], int] | None:
     order = np.argsort(np.asarray(res.ineqlin.residual), kind="stable")
     if len(S) > len(order):
         return None
-    T = [int(r) for r in order[: len(S)]]
-    M = [[ex.cols[c][r] for c in S] for r in T]
-    sol = _solve_exact(M, [-1] * len(T))
-    if sol is None or any(v < 0 for v in sol):
-        return None
-    L = lcm(*(v.denominator for v in sol))
-    m = [0] * len(ex.cols)
-    for c, v in zip(S, sol):
-        m[c] = v.numerator * (L // v.denominator)
-    return ex.certify(m)
+    return _vertex(ex, S, [int(r) for r in order[: len(S)]])
 
 
 def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list[int] | None:
@@ -470,19 +459,7 @@ def _decimal_dual_simplex(ex: "_Exact", *, digits: int, max_pivots: int) -> list
             return None
     S = [idx for (kind, idx) in basic if kind == "u"]
     tight = [idx for (kind, idx) in nonbasic if kind == "s"]
-    if len(S) != len(tight) or not S:
-        return None
-    M = [[ex.cols[c][r] for c in S] for r in tight]
-    sol = _solve_exact(M, [-1] * len(tight))
-    if sol is None or any(v < 0 for v in sol):
-        return None
-    from math import lcm
-
-    L = lcm(*(v.denominator for v in sol))
-    out = [0] * N
-    for c, v in zip(S, sol):
-        out[c] = v.numerator * (L // v.denominator)
-    return out
+    return _vertex_vector(ex, S, tight)
 
 
 def _scaled_float(value: int, E: int) -> float:
@@ -737,8 +714,10 @@ def _finish(ex: "_Exact", tab, q: int, n: int):
     return best
 
 
-def _vertex(ex: "_Exact", S: list[int], T: list[int]):
-    """The exact vertex of basis (columns S, tight rows T), checked exactly (or None)."""
+def _vertex_vector(ex: "_Exact", S: list[int], T: list[int]) -> list[int] | None:
+    """Integer dual vector proportional to the vertex of basis (columns S, tight rows T):
+    the exact solution of the square system, scaled by its common denominator (or None when
+    the system is singular or the vertex has a negative entry)."""
     from math import lcm
 
     if len(S) != len(T) or not S:
@@ -751,7 +730,13 @@ def _vertex(ex: "_Exact", S: list[int], T: list[int]):
     out = [0] * len(ex.cols)
     for c, v in zip(S, sol):
         out[c] = v.numerator * (L // v.denominator)
-    return ex.certify(out)
+    return out
+
+
+def _vertex(ex: "_Exact", S: list[int], T: list[int]):
+    """The exact vertex of basis (columns S, tight rows T), checked exactly (or None)."""
+    out = _vertex_vector(ex, S, T)
+    return ex.certify(out) if out is not None else None
 
 
 def _chain_result(q: int, n: int, d: int, even: bool, use_extra: bool, *, start: bool):
