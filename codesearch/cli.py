@@ -49,7 +49,7 @@ def _add_check(sub: argparse._SubParsersAction) -> None:
         help="verify a code file, generator matrix or bound certificate",
         description="Verify a code file (length, alphabet, minimum distance, distance "
         "distribution, linearity), a generator matrix (--generator) or a bound certificate "
-        "(recognised by its content). Python: codesearch.verify.check_file(path).",
+        "(recognised by its content). Python: codesearch.verify.check_code(codesearch.codefile.read_code(path).code, d).",
     )
     p.add_argument("file", help="code file, generator matrix, or certificate (JSON)")
     p.add_argument("--q", type=int, help="alphabet size (default: header, else largest symbol + 1)")
@@ -72,7 +72,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         report = verify.check_generator(rows, q, args.d,
                                         "information-sets" if args.min_only else "auto")
         return _print_code_report(args, report, None)
-    cert = verify.load_certificate(args.file)
+    cert = codefile.read_certificate(args.file)
     if cert is not None:
         valid, bound, reason = verify.check_certificate(cert)
         if args.json:

@@ -18,13 +18,10 @@ Code constructions (lower bounds)
     u|u+v        A_q(2n, d) >= A_q(n, ceil(d/2)) A_q(n, d), over Z_q;
     direct-sum   A_q(n1+n2, d) >= A_q(n1, d) A_q(n2, d).
 
-Upper-bound relations (rule names as stored)
-    times-q-shorter  A_q(n,d) <= q A_q(n-1,d);
-    longer           A_q(n,d) <= A_q(n+1,d);
-    smaller-d        A_q(n,d) <= A_q(n,d-1);
-    punctured        A_q(n,d) <= A_q(n-1,d-1)   (puncturing is injective when d >= 2);
-    parity-odd       binary, d odd: A(n,d) <= A(n+1,d+1)  (with ``punctured`` this gives
-                     A(n,2t-1) = A(n+1,2t)).
+Upper-bound relations
+    the rules of :mod:`codesearch.verify.relations` (``times-q-shorter``, ``longer``,
+    ``smaller-d``, ``punctured``, ``parity-odd``; with ``punctured``, ``parity-odd`` gives
+    A(n,2t-1) = A(n+1,2t)). The checker owns the rules; this module only applies them.
 
 References
 ----------
@@ -42,11 +39,9 @@ import numpy as np
 
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult
+from codesearch.verify.relations import RELATION_RULES, relation_cells, relation_value
 
 __all__ = [
-    "BOUND_RULES",
-    "relation_cells",
-    "relation_value",
     "shorten",
     "puncture",
     "parity_extend",
@@ -60,43 +55,9 @@ __all__ = [
 #: Largest derived code that is materialised (larger ones would dominate verification time).
 MAX_DERIVED_WORDS = 4096
 
-BOUND_RULES = ("times-q-shorter", "longer", "smaller-d", "punctured", "parity-odd")
 
-
-# ------------------------------------------------------------------- upper-bound relations
 def _cell(q: int, n: int, d: int) -> Params | None:
     return Params(q, n, d) if n >= 1 and 1 <= d <= n else None
-
-
-def relation_cells(rule: str, p: Params) -> list[Params] | None:
-    """The cells whose upper bounds ``rule`` uses to bound cell ``p`` (None: rule not applicable)."""
-    q, n, d = p.q, p.n, p.d
-    if rule == "times-q-shorter":
-        c = _cell(q, n - 1, d)
-    elif rule == "longer":
-        c = _cell(q, n + 1, d)
-    elif rule == "smaller-d":
-        c = _cell(q, n, d - 1) if d >= 2 else None
-    elif rule == "punctured":
-        c = _cell(q, n - 1, d - 1) if d >= 2 else None
-    elif rule == "parity-odd":
-        c = _cell(q, n + 1, d + 1) if q == 2 and d % 2 == 1 else None
-    else:
-        return None
-    return None if c is None else [c]
-
-
-def relation_value(rule: str, p: Params, cited: list[tuple[Params, int]]) -> int | None:
-    """Upper bound on cell ``p`` that ``rule`` gives from the cited ``(cell, bound)`` pairs.
-
-    Returns None when the rule does not apply or the cited cells are not the ones it needs.
-    Pure integer arithmetic: this is what the store re-checks.
-    """
-    cells = relation_cells(rule, p)
-    if cells is None or [c for c, _ in cited] != cells:
-        return None
-    value = int(cited[0][1])
-    return p.q * value if rule == "times-q-shorter" else value
 
 
 # --------------------------------------------------------------------- code constructions
@@ -284,7 +245,7 @@ def propagate(
                     progress({"event": "derived", "kind": "code", "cell": p,
                               "rule": cand.rule, "value": code.size})
         for p in table:
-            for rule in BOUND_RULES:
+            for rule in RELATION_RULES:
                 srcs = relation_cells(rule, p)
                 if srcs is None:
                     continue

@@ -43,7 +43,7 @@ def _explicit_k(q: int, n: int, k: int, x: int) -> int:
 @pytest.mark.parametrize("q,n", [(2, 1), (2, 9), (3, 7), (5, 6), (16, 5), (2, 30)])
 def test_krawtchouk_tables_match_definition(q, n):
     T = krawtchouk_table(q, n)
-    G = verify._kraw_columns(q, n)
+    G = verify.lp._kraw_columns(q, n)
     for k in range(n + 1):
         for x in range(n + 1):
             assert T[k][x] == _explicit_k(q, n, k, x) == G[x][k]
