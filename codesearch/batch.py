@@ -117,7 +117,7 @@ def run_cell(task: CellTask) -> dict[str, Any]:
     the driver rebuilds results from it and stores them. Never raises for a failing bound
     or search: the failure is reported in ``errors``.
     """
-    from codesearch.search import METHODS, search
+    from codesearch.search import run_method
 
     p = task.params
     start = time.perf_counter()
@@ -151,12 +151,10 @@ def run_cell(task: CellTask) -> dict[str, Any]:
     for i, spec in enumerate(task.methods):
         if upper is not None and lower >= upper:
             break  # settled: no search can improve the cell
-        if spec.name not in METHODS:
-            METHODS[spec.name] = spec
         remaining = task.budget - (time.perf_counter() - start)
         share = max(remaining / (len(task.methods) - i), 0.05)
         try:
-            res = search(p, spec.name, time_limit=share, seed=task.seed)
+            res = run_method(spec, p, time_limit=share, seed=task.seed)
         except Exception as exc:
             out["errors"].append([spec.name, f"{type(exc).__name__}: {exc}".splitlines()[0]])
             # A method refusing the cell (bad input for it) will refuse again: mark it done.

@@ -59,7 +59,6 @@ __all__ = [
     "PublishedRow",
     "pack_code",
     "unpack_code",
-    "open_store",
 ]
 
 #: Schema version written to ``PRAGMA user_version``.
@@ -217,11 +216,6 @@ class PublishedRow:
     lower: int | None
     upper: int | None
     source: str
-
-
-def open_store(path: str | os.PathLike[str] | None = None, *, create: bool = True) -> "Store":
-    """Open (and by default create) the store at ``path`` (default :data:`DEFAULT_STORE`)."""
-    return Store(path if path is not None else DEFAULT_STORE, create=create)
 
 
 class Store:

@@ -116,7 +116,7 @@ def test_fixed_point_properties(tmp_path_factory, seeds, bounded):
         for n, d in seeds:
             if d <= n:
                 p = Params(2, n, d)
-                s.add_code(table_stub_lex.run(p).code, p, method="stub-lex")
+                s.add_code(table_stub_lex.lexicode(p), p, method="stub-lex")
         for n, d in bounded:
             if d <= n:
                 s.add_bound(BoundResult(Params(2, n, d), _hamming_bound(n, d), "hamming"))

@@ -168,16 +168,13 @@ def test_rich_progress_renders():
 
 
 @pytest.mark.slow  # waits for the connection timeout
-def test_unreachable_scheduler_is_input_error(tmp_path, capsys):
+def test_unreachable_scheduler_is_input_error(tmp_path, capsys, stub_methods):
     import socket
 
     sock = socket.socket()
     sock.bind(("127.0.0.1", 0))
     port = sock.getsockname()[1]
     sock.close()  # nothing listens on this port now
-    import table_stub_lex
-
-    table_stub_lex.register()
     code = main(["table", "--n", "3..4", "--d", "3", "--methods", "stub-lex", "--quiet",
                  "--no-propagate", "--store", str(tmp_path / "s.sqlite"),
                  "--scheduler", f"tcp://127.0.0.1:{port}"])

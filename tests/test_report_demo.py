@@ -6,11 +6,9 @@ from __future__ import annotations
 from codesearch import demo
 from codesearch.codefile import read_code
 from codesearch.verify import min_distance
-import table_stub_lex
 
 
-def test_demo_end_to_end(tmp_path, monkeypatch, capsys):
-    table_stub_lex.register()
+def test_demo_end_to_end(tmp_path, monkeypatch, capsys, stub_methods):
     monkeypatch.setitem(demo.SCENARIO, "n", range(7, 9))
     monkeypatch.setitem(demo.SCENARIO, "d", range(3, 5))
     monkeypatch.setitem(demo.SCENARIO, "budget", 0.5)
