@@ -55,6 +55,7 @@ __all__ = [
     "read_generator",
     "read_json",
     "read_certificate",
+    "write_certificate",
     "check_fits_in_memory",
 ]
 
@@ -384,6 +385,12 @@ def write_code(
     if as_json is None:
         as_json = str(path).endswith(".json")
     text = format_code_json(code, d, meta) if as_json else format_code_text(code, d, meta)
+    _write_atomic(path, text)
+
+
+def _write_atomic(path: str, text: str) -> None:
+    """Write ``text`` to ``path`` through a temporary file and a rename: a reader never sees
+    half a file, and a failed write leaves the old file as it was."""
     directory = os.path.dirname(os.path.abspath(path))
     try:
         fd, tmp = tempfile.mkstemp(prefix=".codesearch-", dir=directory)
@@ -397,6 +404,11 @@ def write_code(
         if os.path.exists(tmp):
             os.unlink(tmp)
         raise
+
+
+def write_certificate(path: str, certificate: Mapping[str, Any]) -> None:
+    """Write a bound certificate as indented JSON (atomically, like :func:`write_code`)."""
+    _write_atomic(path, json.dumps(dict(certificate), indent=1) + "\n")
 
 
 def read_generator(path: str, q: int | None = None) -> tuple[np.ndarray, int, np.ndarray]:

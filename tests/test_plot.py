@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from codesearch.cli import main
-from codesearch.plot import asymptotic_curves, entropy, save_rate_distance
+from codesearch.report.plot import asymptotic_curves, entropy, save_rate_distance
 
 
 @pytest.mark.parametrize("q", [2, 3, 4, 8])

@@ -150,13 +150,13 @@ def test_html_inline_codewords_verify(store_path):
     assert code.size == 16 and min_distance(code) == 3
 
 
-def test_rich_progress_renders():
+def test_table_progress_renders():
     from rich.console import Console
 
-    from codesearch.batch import RichProgress
+    from codesearch.report.live import TableProgress
 
     console = Console(file=io.StringIO(), force_terminal=False, width=100)
-    with RichProgress(console) as prog:
+    with TableProgress(console) as prog:
         prog({"event": "start", "cells": 3})
         prog({"event": "submit", "cell": Params(2, 7, 3), "lower": 12, "upper": 16})
         prog({"event": "skip", "cell": None})

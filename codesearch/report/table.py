@@ -1,5 +1,7 @@
 """Reports of the stored table: Markdown, CSV, LaTeX, HTML, JSON, export and plot.
 
+Part of the presentation layer (:mod:`codesearch.report`).
+
 Everything here reads the results store only; nothing runs a search or a bound. Per cell the
 report gives the best code size (lower), the best certified upper bound (upper), the gap, where
 each came from (method, time, certificate kind), and the comparison with imported published
@@ -355,10 +357,10 @@ def export_code(store_path: str, params: Params, out: str) -> int:
 
 def plot_store(store_path: str, out: str, *, q: int = 2) -> int:
     """Draw the stored cells of alphabet ``q`` on the rate-distance picture
-    (:func:`codesearch.plot.save_rate_distance`): at d/n, a bar from the rate of the best
+    (:func:`codesearch.report.plot.save_rate_distance`): at d/n, a bar from the rate of the best
     stored code to the rate of the best proven upper bound. Returns the number of cells drawn.
     """
-    from codesearch.plot import save_rate_distance
+    from codesearch.report.plot import save_rate_distance
     from codesearch.store import Store
 
     with Store(store_path, create=False) as st:
