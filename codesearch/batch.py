@@ -259,10 +259,9 @@ class _LocalExecutor:
 class _DaskExecutor:
     def __init__(self, address: str, per_worker: int = 2) -> None:
         self.per_worker = per_worker
-        try:
-            from distributed import Client
-        except ImportError as exc:  # pragma: no cover - distributed is a dependency
-            raise InputError(f"--scheduler needs the 'distributed' package ({exc})") from None
+        from codesearch._optional import require
+
+        Client = require("distributed", "a Dask cluster (--scheduler)").Client
         try:
             self.client = Client(address, timeout="15s", set_as_default=False)
         except (OSError, TimeoutError, ValueError) as exc:

@@ -146,6 +146,8 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
     cells = grid(args.q, args.n, args.d, max_n=bounds.MAX_N)
     if args.certificate is not None and len(cells) != 1:
         raise InputError("--certificate needs a single cell (N and D, not ranges)")
+    if args.sdp:
+        _require_sdp_solver()
     options = dict(lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp)
     if args.json:
         for p in cells:
@@ -161,6 +163,12 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
             raise InputError(f"no certified LP bound for {cells[0]}")
         write_certificate(args.certificate, best.certificate)
     return 0
+
+
+def _require_sdp_solver() -> None:
+    from codesearch._optional import require
+
+    require("clarabel", "the semidefinite bounds (--sdp)")
 
 
 # ----------------------------------------------------------------------------------- find
@@ -269,6 +277,8 @@ def _cmd_table(args: argparse.Namespace) -> int:
     from codesearch.report.text import table_summary
 
     cells = grid(args.q, args.n, args.d)
+    if args.sdp:
+        _require_sdp_solver()
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
