@@ -21,7 +21,7 @@ import io
 import json
 import math
 from dataclasses import asdict, dataclass
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 from codesearch.errors import InputError
 from codesearch.model import Params
@@ -143,19 +143,32 @@ def render_md(rows: Sequence[CellRow]) -> str:
         out.append("| n \\ d | " + " | ".join(str(d) for d in ds) + " |")
         out.append("|---:|" + "---:|" * len(ds))
         for n in ns:
-            line = []
-            for d in ds:
-                r = cells.get((n, d))
-                if r is None:
-                    line.append("")
-                elif r.lower is None and r.upper is None:
-                    line.append(f"[{_pub_text(r)}]")
-                else:
-                    line.append(("**" + r.text + "**" if r.exact else r.text) + r.mark)
+            line = _entries(cells, n, ds, lambda r: ("**" + r.text + "**" if r.exact
+                                                     else r.text) + r.mark)
             out.append(f"| {n} | " + " | ".join(line) + " |")
         out.append("")
     out.append(_legend())
     return "\n".join(out) + "\n"
+
+
+def _entries(cells: dict[tuple[int, int], CellRow], n: int, ds: Sequence[int],
+             proven: Callable[[CellRow], str]) -> list[str]:
+    """The entries of row n: blank, ``[published]`` only, or ``proven(row)``."""
+    out = []
+    for d in ds:
+        r = cells.get((n, d))
+        if r is None:
+            out.append("")
+        elif r.lower is None and r.upper is None:
+            out.append(f"[{_pub_text(r)}]")
+        else:
+            out.append(proven(r))
+    return out
+
+
+def _tex_entry(r: CellRow) -> str:
+    t = r"\textbf{%s}" % r.text if r.exact else r.text.replace("-", "--")
+    return t + (f"$^{{{r.mark}}}$" if r.mark else "")
 
 
 def _pub_text(r: CellRow) -> str:
@@ -207,16 +220,7 @@ def render_tex(rows: Sequence[CellRow]) -> str:
         out.append(r"\begin{tabular}{r|" + "r" * len(ds) + "}")
         out.append(r"$n \backslash d$ & " + " & ".join(str(d) for d in ds) + r" \\ \hline")
         for n in ns:
-            line = []
-            for d in ds:
-                r = cells.get((n, d))
-                if r is None:
-                    line.append("")
-                elif r.lower is None and r.upper is None:
-                    line.append(f"[{_pub_text(r)}]")
-                else:
-                    t = r"\textbf{%s}" % r.text if r.exact else r.text.replace("-", "--")
-                    line.append(t + (f"$^{{{r.mark}}}$" if r.mark else ""))
+            line = _entries(cells, n, ds, _tex_entry)
             out.append(f"{n} & " + " & ".join(line) + r" \\")
         out.append(r"\end{tabular}")
         out.append(r"\caption{Bounds on $%s$ for $q=%d$: bold entries are exact, $a$--$b$ gives "
