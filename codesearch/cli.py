@@ -143,7 +143,7 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
     from codesearch.model import grid
     from codesearch.report import text
 
-    cells = grid(args.q, args.n, args.d, max_n=bounds.MAX_N)
+    cells = grid(args.q, args.n, args.d, max_n=bounds.MAX_N, limit="bounds limit")
     if args.certificate is not None and len(cells) != 1:
         raise InputError("--certificate needs a single cell (N and D, not ranges)")
     if args.sdp:

@@ -20,7 +20,7 @@ MAX_Q = 36
 
 #: Byte -> symbol value for ``0-9a-z``; 255 (outside every alphabet) for any other byte.
 _SYMBOL_VALUE = np.full(256, 255, dtype=np.uint8)
-_SYMBOL_VALUE[np.frombuffer(b"0123456789abcdefghijklmnopqrstuvwxyz", dtype=np.uint8)] = np.arange(36)
+_SYMBOL_VALUE[np.frombuffer(b"0123456789abcdefghijklmnopqrstuvwxyz", np.uint8)] = np.arange(36)
 
 
 @dataclass(frozen=True, order=True)
@@ -67,21 +67,21 @@ def _largest(values: Iterable[int]) -> int | None:
     return max(values) if values else None
 
 
-def grid(q: int, ns: Iterable[int], ds: Iterable[int], *,
-         max_n: int | None = None) -> list[Params]:
+def grid(q: int, ns: Iterable[int], ds: Iterable[int], *, max_n: int | None = None,
+         limit: str = "limit") -> list[Params]:
     """The cells of a table: every valid ``Params(q, n, d)`` for n in ``ns``, d in ``ds``
     (n-major order); pairs with d outside ``1..n`` are left out.
 
     Raises
     ------
     ParameterError
-        For an invalid q, a length beyond ``max_n``, or a grid with no valid cell (a single
-        cell names its own problem).
+        For an invalid q, a length beyond ``max_n`` (the message calls it ``limit``), or a
+        grid with no valid cell (a single cell names its own problem).
     """
     Params(q, 1, 1)  # validates q once, with the usual one-line error
     top = _largest(ns)
     if max_n is not None and top is not None and top > max_n:
-        raise ParameterError(f"length n={top} is beyond the limit {max_n}")
+        raise ParameterError(f"length n={top} is beyond the {limit} {max_n}")
     if isinstance(ds, range) and len(ds) > 1 and top is not None:
         # Distances beyond the longest length can never form a cell.
         ds = range(ds.start, max(ds.start + 1, min(ds.stop, top + 1)))

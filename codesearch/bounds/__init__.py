@@ -170,7 +170,8 @@ def finite_points(q: int, ns: Iterable[int], *, lp: bool = True
                   ) -> list[tuple[int, int, int, int]]:
     """``(n, d, gv, upper)`` for every cell of the given lengths (the finite points of the
     rate-distance picture, :mod:`codesearch.report.plot`)."""
-    grid(q, ns, [1], max_n=MAX_N)  # q and the longest length first: a typo fails at once
+    # q and the longest length are checked first: a typo such as 1..10**9 fails at once
+    grid(q, ns, [1], max_n=MAX_N, limit="bounds limit")
     return [(p.n, p.d, gv_lower_bound(p), upper_bound(p, lp=lp).value)
             for n in ns for p in grid(q, [n], range(1, n + 1))]
 

@@ -24,7 +24,14 @@ from codesearch._version import __version__
 from codesearch.errors import ParameterError
 from codesearch.model import Params
 from codesearch.results import BoundResult, SearchResult
-from codesearch.search.base import SEEDINGS, Context, Outcome, positive_int, resolve_seed, status_of
+from codesearch.search.base import (
+    SEEDINGS,
+    Context,
+    Outcome,
+    positive_int,
+    resolve_seed,
+    status_of,
+)
 
 __all__ = ["MethodSpec", "METHODS", "search", "run_method", "Context", "Outcome"]
 

@@ -1,7 +1,8 @@
 """Words as integer indices, and Hamming balls as reusable patterns.
 
 Shared plumbing of the searchers that work on word indices (:mod:`codesearch.search.greedy`,
-:mod:`codesearch.search.lexicode`, :mod:`codesearch.search.local`, :mod:`codesearch.search.sat`). A word ``(x_0, ..., x_{n-1})`` over ``0..q-1`` has index
+:mod:`codesearch.search.lexicode`, :mod:`codesearch.search.local`,
+:mod:`codesearch.search.sat`). A word ``(x_0, ..., x_{n-1})`` over ``0..q-1`` has index
 ``sum_j x_j q**(n-1-j)``, so index order is lexicographic order. A Hamming ball of radius r is
 described once, relative to its centre: XOR masks for q = 2, otherwise a CSR list of
 (coordinate, added symbol) changes. The kernels in :mod:`codesearch._kernels` apply them.

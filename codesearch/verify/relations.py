@@ -35,7 +35,8 @@ def _cell(q: int, n: int, d: int) -> Params | None:
 
 
 def relation_cells(rule: str, p: Params) -> list[Params] | None:
-    """The cells whose upper bounds ``rule`` uses to bound cell ``p`` (None: rule not applicable)."""
+    """The cells whose upper bounds ``rule`` uses to bound cell ``p`` (None: the rule does not
+    apply)."""
     q, n, d = p.q, p.n, p.d
     if rule == "times-q-shorter":
         c = _cell(q, n - 1, d)
