@@ -149,6 +149,7 @@ def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = N
                   target=target, progress=progress,
                   **({} if bound is _UNSET else {"bound": bound}))
     out: Outcome = module.run(ctx, **options)
+    seconds = time.perf_counter() - ctx.start  # the search's own time, before the re-check
     if not isinstance(out, Outcome):
         raise TypeError(f"method {spec.name!r} returned {type(out).__name__}, not an Outcome")
     if out.code is not None:
@@ -160,5 +161,4 @@ def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = N
         settings.setdefault("size", target)
     settings["version"] = __version__
     return SearchResult(params, status_of(out.code, upper, target), out.code, upper, spec.name,
-                        time.perf_counter() - ctx.start, int(out.nodes), ctx.seed, settings,
-                        target)
+                        seconds, int(out.nodes), ctx.seed, settings, target)
