@@ -46,7 +46,7 @@ def _cold() -> None:
     from codesearch.bounds import delsarte
 
     delsarte.clear_caches()
-    verify._kraw_columns.cache_clear()
+    verify.lp._kraw_columns.cache_clear()
 
 
 def _float_lp_value(n: int, d: int, plus: bool) -> float | None:

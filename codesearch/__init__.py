@@ -6,7 +6,13 @@ Importing this package is cheap: numba kernels compile on first use and solvers 
 from __future__ import annotations
 
 from codesearch._version import __version__
-from codesearch.errors import CodesearchError, InputError, ParameterError, VerificationError
+from codesearch.errors import (
+    CodesearchError,
+    InputError,
+    MissingDependency,
+    ParameterError,
+    VerificationError,
+)
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult, SearchResult, Status
 
@@ -16,6 +22,7 @@ __all__ = [
     "Code",
     "CodesearchError",
     "InputError",
+    "MissingDependency",
     "ParameterError",
     "Params",
     "SearchResult",

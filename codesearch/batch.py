@@ -10,8 +10,11 @@ at the same or a larger budget is skipped, cells whose lower and upper bounds me
 and after each finished cell the driver propagates the new entries across the table
 (:mod:`codesearch.propagate`). Rerunning the same command resumes where a run stopped.
 
+The worker runs :func:`run_cell` and hands back a :class:`CellOutcome` holding the typed
+results themselves (:class:`~codesearch.results.BoundResult`,
+:class:`~codesearch.results.SearchResult`); the driver (:func:`run_table`) stores them.
 Library functions never print: live figures go to an optional ``progress`` callback
-(:class:`RichProgress` renders them with rich for the command line).
+(:class:`codesearch.report.live.TableProgress` renders them for the command line).
 
 References
 ----------
@@ -21,30 +24,27 @@ Dask ``distributed`` documentation, "Futures" and "Setup" (https://distributed.d
 from __future__ import annotations
 
 import concurrent.futures as cf
+import dataclasses
 import multiprocessing
 import os
 import signal
 import time
 from dataclasses import dataclass, field
-from fractions import Fraction
-from types import MappingProxyType
-from typing import Any, Callable, Iterable, Mapping, Sequence
-
-import numpy as np
+from typing import Any, Callable, Iterable, Sequence
 
 from codesearch import verify
 from codesearch.errors import InputError, ParameterError, VerificationError
-from codesearch.model import Code, Params
+from codesearch.model import Params, grid
 from codesearch.results import BoundResult, SearchResult, Status
 
 __all__ = [
     "CellTask",
+    "CellOutcome",
     "TableSummary",
     "table_cells",
     "run_cell",
     "run_table",
     "default_methods",
-    "RichProgress",
 ]
 
 Progress = Callable[[dict[str, Any]], None]
@@ -54,9 +54,9 @@ BOUNDS_TASK = "bounds"
 
 
 def table_cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
-    """The cells ``(q, n, d)`` of a rectangular range, keeping only ``d <= n``."""
-    ds = list(ds)
-    return [Params(q, n, d) for n in ns for d in ds if 1 <= d <= n]
+    """The cells ``(q, n, d)`` of a rectangular range, keeping only ``d <= n``
+    (:func:`codesearch.model.grid`)."""
+    return grid(q, ns, ds)
 
 
 def default_methods() -> list[str]:
@@ -74,30 +74,13 @@ def cell_seed(seed: int, p: Params) -> int:
     return (seed * 1_000_003 + p.q * 10_007 + p.n * 101 + p.d) % 2**31
 
 
-# ------------------------------------------------------------------------ transport forms
-def _plain(obj: Any) -> Any:
-    """Deep copy into picklable, JSON-ready builtins (mapping proxies become dicts)."""
-    if isinstance(obj, (Mapping, MappingProxyType)):
-        return {str(k): _plain(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [_plain(v) for v in obj]
-    if isinstance(obj, np.integer):
-        return int(obj)
-    if isinstance(obj, np.floating):
-        return float(obj)
-    if isinstance(obj, np.ndarray):
-        return _plain(obj.tolist())
-    if isinstance(obj, Fraction):
-        return f"{obj.numerator}/{obj.denominator}"
-    return obj
-
-
+# ---------------------------------------------------------------------------- the worker
 @dataclass(frozen=True)
 class CellTask:
     """Everything a worker needs to run one cell (picklable).
 
     ``methods`` carries the registry entries resolved by the driver, so that a method
-    registered at run time in the driver resolves to the same module in the workers.
+    registered at run time in the driver runs in the workers without touching their registry.
     """
 
     params: Params
@@ -110,105 +93,114 @@ class CellTask:
     sdp: bool = False
 
 
-def run_cell(task: CellTask) -> dict[str, Any]:
+@dataclass(frozen=True)
+class CellOutcome:
+    """What a worker hands back for one cell: the results themselves, ready to store.
+
+    Attributes
+    ----------
+    params : Params
+        The cell.
+    bounds : tuple of BoundResult, or None
+        Every bound of the bounds stage; None when the stage did not run (or failed).
+    bounds_seconds : float
+        Time of the bounds stage.
+    searches : tuple of SearchResult
+        One per search that ran (settings stamped with the cell budget and the time limit).
+    refused : tuple of (method, seconds)
+        Searches that refused the cell (bad input for them): marked done, never retried.
+    errors : tuple of (stage, message)
+        Failures, reported; the stage is retried by the next run.
+    seconds : float
+        Wall time of the whole cell.
+    """
+
+    params: Params
+    bounds: tuple[BoundResult, ...] | None
+    bounds_seconds: float
+    searches: tuple[SearchResult, ...]
+    refused: tuple[tuple[str, float], ...]
+    errors: tuple[tuple[str, str], ...]
+    seconds: float
+
+
+def _one_line(exc: BaseException) -> str:
+    return f"{type(exc).__name__}: {exc}".splitlines()[0]
+
+
+def _bounds_stage(task: CellTask, errors: list[tuple[str, str]]
+                  ) -> tuple[tuple[BoundResult, ...] | None, float]:
+    from codesearch.bounds import all_bounds
+
+    t0 = time.perf_counter()
+    try:
+        found = all_bounds(task.params, sdp=task.sdp)
+    except Exception as exc:  # a failing bound must not lose the cell's searches
+        errors.append((BOUNDS_TASK, _one_line(exc)))
+        return None, time.perf_counter() - t0
+    return tuple(found.values()), time.perf_counter() - t0
+
+
+def run_cell(task: CellTask) -> CellOutcome:
     """Run one cell in a worker: bounds first, then each search with its share of the budget.
 
-    Returns a plain dict (picklable) with ``bounds`` and ``searches`` lists and ``errors``;
-    the driver rebuilds results from it and stores them. Never raises for a failing bound
-    or search: the failure is reported in ``errors``.
+    Never raises for a failing bound or search: the failure is reported in ``errors``.
     """
-    from codesearch.search import METHODS, search
+    from codesearch.search import run_method
 
     p = task.params
     start = time.perf_counter()
-    out: dict[str, Any] = {"params": [p.q, p.n, p.d], "bounds": None, "searches": [],
-                           "errors": [], "seed": task.seed}
+    errors: list[tuple[str, str]] = []
+    found, bounds_seconds = _bounds_stage(task, errors) if task.run_bounds else (None, 0.0)
+    usable = sorted((b for b in found or () if b.usable), key=lambda b: b.value)
+    known = {"bound": usable[0]} if usable else {}  # else each method asks when it needs it
     upper = task.known_upper
-    if task.run_bounds:
-        t0 = time.perf_counter()
-        try:
-            from codesearch.bounds import all_bounds
-
-            found = all_bounds(p, sdp=True) if task.sdp else all_bounds(p)
-        except (ImportError, AttributeError, NotImplementedError):
-            found = None  # the bounds front end is not available in this installation
-        except Exception as exc:  # a failing bound must not lose the cell's searches
-            out["errors"].append([BOUNDS_TASK, f"{type(exc).__name__}: {exc}"])
-            found = None
-        if found is not None:
-            secs = time.perf_counter() - t0
-            out["bounds"] = []
-            for b in found.values():
-                out["bounds"].append({
-                    "value": int(b.value), "method": b.method,
-                    "certificate": None if b.certificate is None else _plain(b.certificate),
-                    "certified": bool(b.certified), "scope": b.scope, "note": b.note,
-                    "seconds": secs,
-                })
-                if b.usable and (upper is None or b.value < upper):
-                    upper = int(b.value)
+    if usable and (upper is None or usable[0].value < upper):
+        upper = usable[0].value
     lower = task.known_lower
+    searches: list[SearchResult] = []
+    refused: list[tuple[str, float]] = []
     for i, spec in enumerate(task.methods):
         if upper is not None and lower >= upper:
             break  # settled: no search can improve the cell
-        if spec.name not in METHODS:
-            METHODS[spec.name] = spec
         remaining = task.budget - (time.perf_counter() - start)
         share = max(remaining / (len(task.methods) - i), 0.05)
         try:
-            res = search(p, spec.name, time_limit=share, seed=task.seed)
+            res = run_method(spec, p, time_limit=share, seed=task.seed, **known)
         except Exception as exc:
-            out["errors"].append([spec.name, f"{type(exc).__name__}: {exc}".splitlines()[0]])
+            errors.append((spec.name, _one_line(exc)))
             # A method refusing the cell (bad input for it) will refuse again: mark it done.
             # Anything else (a missing module, a bug) is retried by the next run.
             if isinstance(exc, InputError):
-                out["searches"].append({"method": spec.name, "failed": True,
-                                        "seconds": time.perf_counter() - start})
+                refused.append((spec.name, time.perf_counter() - start))
             continue
-        out["searches"].append({
-            "method": res.method, "status": res.status.value,
-            "words": None if res.code is None else np.asarray(res.code.words),
-            "q": p.q, "upper": res.upper, "seconds": float(res.seconds),
-            "nodes": int(res.nodes), "seed": res.seed, "settings": _plain(res.settings),
-            "exhaustive": bool(spec.exhaustive), "time_limit": share,
-        })
-        if res.code is not None:
-            lower = max(lower, res.code.size)
+        settings = {**res.settings, "cell_budget": task.budget, "nodes": res.nodes}
+        searches.append(dataclasses.replace(
+            res, settings=settings, seed=task.seed if res.seed is None else res.seed))
+        lower = max(lower, res.size)
         if spec.exhaustive and res.upper is not None and res.status in (
                 Status.OPTIMAL, Status.INFEASIBLE):
             upper = res.upper if upper is None else min(upper, res.upper)
-    out["seconds"] = time.perf_counter() - start
-    return out
+    return CellOutcome(p, found, bounds_seconds, tuple(searches), tuple(refused),
+                       tuple(errors), time.perf_counter() - start)
 
 
-def _store_outcome(store: Any, task: CellTask, out: Mapping[str, Any]) -> None:
+def _store_outcome(store: Any, task: CellTask, out: CellOutcome) -> None:
     """Write one finished cell in one transaction (codes verified, certificates re-checked)."""
     p = task.params
+    exhaustive = {spec.name: spec.exhaustive for spec in task.methods}
     with store.transaction():
-        if out["bounds"] is not None:
-            for b in out["bounds"]:
-                store.add_bound(
-                    BoundResult(p, b["value"], b["method"], certificate=b["certificate"],
-                                certified=b["certified"], scope=b["scope"], note=b["note"]),
-                    seconds=b["seconds"],
-                )
-            store.mark_run(p, BOUNDS_TASK, budget=0.0, seconds=out["seconds"], status="done")
-        for s in out["searches"]:
-            if s.get("failed"):
-                store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
-                               status="error", seed=task.seed)
-                continue
-            code = None if s["words"] is None else Code(s["words"], s["q"])
-            settings = dict(s["settings"])
-            settings.setdefault("time_limit", s["time_limit"])
-            settings.setdefault("cell_budget", task.budget)
-            settings.setdefault("nodes", s["nodes"])
-            seed = s["seed"] if s["seed"] is not None else task.seed
-            res = SearchResult(p, Status(s["status"]), code, s["upper"], s["method"],
-                               s["seconds"], s["nodes"], seed, settings)
-            store.add_search_result(res, exhaustive=s["exhaustive"])
-            store.mark_run(p, s["method"], budget=task.budget, seconds=s["seconds"],
-                           status=s["status"], seed=task.seed)
+        if out.bounds is not None:
+            for b in out.bounds:
+                store.add_bound(b, seconds=out.bounds_seconds)
+            store.mark_run(p, BOUNDS_TASK, budget=0.0, seconds=out.seconds, status="done")
+        for method, seconds in out.refused:
+            store.mark_run(p, method, budget=task.budget, seconds=seconds, status="error",
+                           seed=task.seed)
+        for res in out.searches:
+            store.add_search_result(res, exhaustive=exhaustive[res.method])
+            store.mark_run(p, res.method, budget=task.budget, seconds=res.seconds,
+                           status=res.status.value, seed=task.seed)
 
 
 # ------------------------------------------------------------------------------ executors
@@ -267,10 +259,9 @@ class _LocalExecutor:
 class _DaskExecutor:
     def __init__(self, address: str, per_worker: int = 2) -> None:
         self.per_worker = per_worker
-        try:
-            from distributed import Client
-        except ImportError as exc:  # pragma: no cover - distributed is a dependency
-            raise InputError(f"--scheduler needs the 'distributed' package ({exc})") from None
+        from codesearch._optional import require
+
+        Client = require("distributed", "a Dask cluster (--scheduler)").Client
         try:
             self.client = Client(address, timeout="15s", set_as_default=False)
         except (OSError, TimeoutError, ValueError) as exc:
@@ -346,6 +337,142 @@ def _resolve_methods(methods: Sequence[str] | None) -> tuple[Any, ...]:
     return tuple(METHODS[m] for m in names)
 
 
+@dataclass(frozen=True)
+class _Plan:
+    """What every cell of one table run gets."""
+
+    budget: float
+    specs: tuple[Any, ...]
+    bounds: bool
+    sdp: bool
+    seed: int
+    propagate: bool
+
+    def task(self, st: Any, p: Params) -> CellTask | None:
+        """The work left on cell ``p`` (None when nothing is left)."""
+        s = st.summary(p)
+        if s.exact:
+            return None
+        run_bounds = self.bounds and st.run_budget(p, BOUNDS_TASK) is None
+        todo = tuple(spec for spec in self.specs
+                     if (st.run_budget(p, spec.name) or 0.0) < self.budget)
+        if not run_bounds and not todo:
+            return None
+        return CellTask(p, float(self.budget), todo, run_bounds, cell_seed(self.seed, p),
+                        s.lower, s.upper, self.sdp)
+
+
+class _Driver:
+    """The loop of :func:`run_table`: keep the executor full, store what comes back, derive
+    between cells, tell ``emit`` what happens."""
+
+    def __init__(self, st: Any, cells: list[Params], plan: _Plan,
+                 new_executor: Callable[[], Any], emit: Progress) -> None:
+        self.st, self.cells, self.plan, self.emit = st, cells, plan, emit
+        self.new_executor = new_executor
+        self.executor: Any = None
+        self.summary = TableSummary(cells=len(cells))
+        self.pending = list(cells)
+        self.running: dict[Any, CellTask] = {}
+        self.crashes: dict[Params, int] = {}
+
+    def run(self) -> None:
+        self.derive()
+        self.emit({"event": "start", "cells": len(self.cells),
+                   "methods": [s.name for s in self.plan.specs], "budget": self.plan.budget})
+        while self.pending or self.running:
+            self.fill()
+            if not self.running:
+                break
+            for fut in self.executor.wait(set(self.running), timeout=0.5):
+                if fut in self.running:  # a crash may have requeued the rest already
+                    self.collect(fut)
+
+    def fill(self) -> None:
+        """Submit cells while the executor has room (skipping cells with nothing left)."""
+        while self.pending and len(self.running) < self.capacity():
+            task = self.plan.task(self.st, self.pending.pop(0))
+            if task is None:
+                self.summary.skipped += 1
+                self.emit({"event": "skip", "cell": None})
+                continue
+            if self.executor is None:
+                # Started on the first task only: a resumed run with nothing left to do never
+                # pays for worker start-up. The driver's checker is loaded first, so that a
+                # Ctrl-C during the run never lands inside numba's first import.
+                verify.prepare()
+                self.executor = self.new_executor()
+            self.running[self.executor.submit(task)] = task
+            self.emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
+                       "upper": task.known_upper})
+
+    def capacity(self) -> int:
+        return 1 if self.executor is None else self.executor.capacity()
+
+    def collect(self, fut: Any) -> None:
+        task = self.running.pop(fut)
+        try:
+            out = self.executor.result(fut)
+        except Exception as exc:
+            if self.executor.broken(exc):
+                self.requeue_after_crash(task)
+            else:
+                self.fail(task.params, _one_line(exc))
+            return
+        try:
+            _store_outcome(self.st, task, out)
+        except VerificationError as exc:
+            # A producer's bug: the cell's transaction rolled back, nothing of it is stored;
+            # the run goes on and reports the cell as failed.
+            self.fail(task.params, f"verification failed, nothing stored: {exc}")
+            return
+        self.summary.errors += [f"{task.params} {stage}: {msg}" for stage, msg in out.errors]
+        self.summary.ran += 1
+        self.derive()
+        s = self.st.summary(task.params)
+        self.emit({"event": "done", "cell": task.params, "lower": s.lower, "upper": s.upper,
+                   "seconds": out.seconds})
+
+    def requeue_after_crash(self, task: CellTask) -> None:
+        """A worker died (e.g. out of memory): the executor rebuilt its pool, so every cell in
+        flight is requeued; a cell is given up after its second crash."""
+        lost = list(self.running.values()) + [task]
+        self.running.clear()
+        for t in lost:
+            self.crashes[t.params] = self.crashes.get(t.params, 0) + 1
+            if self.crashes[t.params] >= 2:
+                self.summary.failed += 1
+                self.summary.errors.append(f"{t.params}: worker process died")
+            else:
+                self.pending.insert(0, t.params)
+            self.emit({"event": "error", "cell": t.params, "error": "worker died"})
+
+    def fail(self, p: Params, message: str) -> None:
+        msg = f"{p}: {message}"
+        self.summary.failed += 1
+        self.summary.errors.append(msg.splitlines()[0])
+        self.emit({"event": "error", "cell": p, "error": msg})
+
+    def derive(self) -> None:
+        """Propagate between the cells of each alphabet (:mod:`codesearch.propagate`)."""
+        from codesearch.propagate import propagate
+
+        if not self.plan.propagate:
+            return
+        by_q: dict[int, list[Params]] = {}
+        for p in self.cells:
+            by_q.setdefault(p.q, []).append(p)
+        for group in by_q.values():
+            out = propagate(self.st, group, progress=self.emit)
+            self.summary.derived_codes += out.codes
+            self.summary.derived_bounds += out.bounds
+
+    def close(self, cancel: bool = False) -> None:
+        if self.executor is not None:
+            self.executor.close(cancel=cancel)
+            self.executor = None
+
+
 def run_table(
     store: Any,
     cells: Sequence[Params],
@@ -390,8 +517,8 @@ def run_table(
         settled by propagation before it starts) and 2 on a Dask cluster (hides the round
         trip to remote workers).
     progress : callable, optional
-        Receives event dicts (``start``, ``submit``, ``done``, ``derived``, ``error``,
-        ``finish``).
+        Receives event dicts (``start``, ``submit``, ``skip``, ``done``, ``derived``,
+        ``error``, ``finish``).
 
     Returns
     -------
@@ -410,211 +537,28 @@ def run_table(
         raise ParameterError(f"workers must be at least 1, got {workers}")
     if per_worker is not None and per_worker < 1:
         raise ParameterError(f"per_worker must be at least 1, got {per_worker}")
-    specs = _resolve_methods(methods)
-    bounds = bounds and _bounds_available()
+    plan = _Plan(float(budget), _resolve_methods(methods), bounds, sdp, seed, propagate)
+
+    def new_executor() -> Any:
+        if scheduler:
+            return _DaskExecutor(scheduler, per_worker or 2)
+        return _LocalExecutor(workers or os.cpu_count() or 1, per_worker or 1)
+
     own = not hasattr(store, "transaction")
     st = Store(store) if own else store
     emit = progress or (lambda ev: None)
-    cells = sorted(set(cells), key=lambda p: (p.q, p.n, p.d))
-    summary = TableSummary(cells=len(cells))
+    driver = _Driver(st, sorted(set(cells)), plan, new_executor, emit)
     t_start = time.perf_counter()
-    executor: Any = None
     try:
-        if propagate:
-            _propagate(st, cells, summary, emit)
-        pending = list(cells)
-        emit({"event": "start", "cells": len(cells), "methods": [s.name for s in specs],
-              "budget": budget})
-        slots = 1
-        running: dict[Any, CellTask] = {}
-        crashes: dict[Params, int] = {}
-        while pending or running:
-            if executor is not None:
-                slots = executor.capacity()
-            while pending and len(running) < slots:
-                task = _make_task(st, pending.pop(0), budget, specs, bounds, seed, sdp)
-                if task is None:
-                    summary.skipped += 1
-                    emit({"event": "skip", "cell": None})
-                    continue
-                if executor is None:
-                    # Started on the first task only: a resumed run with nothing left to do
-                    # never pays for worker start-up. The driver's checker is loaded first, so
-                    # that a Ctrl-C during the run never lands inside numba's first import.
-                    verify.prepare()
-                    executor = (
-                        _DaskExecutor(scheduler, per_worker or 2) if scheduler
-                        else _LocalExecutor(workers or os.cpu_count() or 1, per_worker or 1))
-                    slots = executor.capacity()
-                running[executor.submit(task)] = task
-                emit({"event": "submit", "cell": task.params, "lower": task.known_lower,
-                      "upper": task.known_upper})
-            if not running:
-                break
-            for fut in executor.wait(set(running), timeout=0.5):
-                task = running.pop(fut)
-                try:
-                    out = executor.result(fut)
-                except Exception as exc:
-                    if executor.broken(exc):
-                        # A worker died (e.g. out of memory): rebuild the pool and requeue
-                        # the cells in flight, giving up on a cell after its second crash.
-                        lost = list(running.values()) + [task]
-                        running.clear()
-                        for t in lost:
-                            crashes[t.params] = crashes.get(t.params, 0) + 1
-                            if crashes[t.params] >= 2:
-                                summary.failed += 1
-                                summary.errors.append(f"{t.params}: worker process died")
-                            else:
-                                pending.insert(0, t.params)
-                            emit({"event": "error", "cell": t.params, "error": "worker died"})
-                        break
-                    summary.failed += 1
-                    msg = f"{task.params}: {type(exc).__name__}: {exc}".splitlines()[0]
-                    summary.errors.append(msg)
-                    emit({"event": "error", "cell": task.params, "error": msg})
-                    continue
-                try:
-                    _store_outcome(st, task, out)
-                except VerificationError as exc:
-                    # A producer's bug: the cell's transaction rolled back, nothing of it is
-                    # stored; the run goes on and reports the cell as failed.
-                    summary.failed += 1
-                    msg = f"{task.params}: verification failed, nothing stored: {exc}"
-                    summary.errors.append(msg.splitlines()[0])
-                    emit({"event": "error", "cell": task.params, "error": msg})
-                    continue
-                for method, msg in out["errors"]:
-                    summary.errors.append(f"{task.params} {method}: {msg}")
-                summary.ran += 1
-                if propagate:
-                    _propagate(st, cells, summary, emit)
-                s = st.summary(task.params)
-                emit({"event": "done", "cell": task.params, "lower": s.lower, "upper": s.upper,
-                      "seconds": out["seconds"]})
+        driver.run()
     except KeyboardInterrupt:
-        summary.interrupted = True
-        if executor is not None:
-            executor.close(cancel=True)
-            executor = None
+        driver.summary.interrupted = True
+        driver.close(cancel=True)
         raise
     finally:
-        if executor is not None:
-            executor.close()
-        summary.seconds = time.perf_counter() - t_start
+        driver.close()
+        driver.summary.seconds = time.perf_counter() - t_start
         if own:
             st.close()
-    emit({"event": "finish", "summary": summary.to_json()})
-    return summary
-
-
-def _bounds_available() -> bool:
-    """True when the bounds front end is installed (it may land after this module)."""
-    try:
-        from codesearch.bounds import all_bounds  # noqa: F401
-    except ImportError:
-        return False
-    return True
-
-
-def _make_task(st: Any, p: Params, budget: float, specs: tuple[Any, ...], bounds: bool,
-               seed: int, sdp: bool = False) -> CellTask | None:
-    """The work left on cell ``p`` (None when nothing is left)."""
-    s = st.summary(p)
-    if s.exact:
-        return None
-    run_bounds = bounds and st.run_budget(p, BOUNDS_TASK) is None
-    todo = tuple(spec for spec in specs
-                 if (st.run_budget(p, spec.name) or 0.0) < budget)
-    if not run_bounds and not todo:
-        return None
-    return CellTask(p, float(budget), todo, run_bounds, cell_seed(seed, p), s.lower, s.upper,
-                    sdp)
-
-
-def _propagate(st: Any, cells: Sequence[Params], summary: TableSummary, emit: Progress) -> None:
-    from codesearch.propagate import propagate
-
-    by_q: dict[int, list[Params]] = {}
-    for p in cells:
-        by_q.setdefault(p.q, []).append(p)
-    for group in by_q.values():
-        out = propagate(st, group, progress=emit)
-        summary.derived_codes += out.codes
-        summary.derived_bounds += out.bounds
-
-
-# ------------------------------------------------------------------------ live display
-class RichProgress:
-    """A progress callback that draws a live rich panel (cells done / running / left, the
-    best lower and upper of the running cells, elapsed and estimated time).
-
-    Use as a context manager around :func:`run_table`; it writes to the given console only.
-    """
-
-    def __init__(self, console: Any = None) -> None:
-        from rich.console import Console
-
-        self.console = console or Console(stderr=True)
-        self.total = 0
-        self.done = 0
-        self.skipped = 0
-        self.running: dict[Params, tuple[int, int | None]] = {}
-        self.derived = 0
-        self.errors = 0
-        self.durations: list[float] = []
-        self.t0 = time.perf_counter()
-        self.live: Any = None
-
-    def __enter__(self) -> "RichProgress":
-        from rich.live import Live
-
-        self.live = Live(self._render(), console=self.console, refresh_per_second=4,
-                         transient=False, get_renderable=self._render)
-        self.live.__enter__()
-        return self
-
-    def __exit__(self, *exc: object) -> None:
-        if self.live is not None:
-            self.live.__exit__(*exc)
-
-    def __call__(self, ev: dict[str, Any]) -> None:
-        kind = ev.get("event")
-        if kind == "start":
-            self.total = ev["cells"]
-        elif kind == "skip":
-            self.skipped += 1
-        elif kind == "submit":
-            self.running[ev["cell"]] = (ev["lower"], ev["upper"])
-        elif kind == "done":
-            self.running.pop(ev["cell"], None)
-            self.done += 1
-            self.durations.append(ev["seconds"])
-        elif kind == "derived":
-            self.derived += 1
-        elif kind == "error":
-            self.running.pop(ev.get("cell"), None)
-            self.errors += 1
-
-    def _render(self) -> Any:
-        from rich.table import Table
-
-        elapsed = time.perf_counter() - self.t0
-        left = max(self.total - self.done - self.skipped - len(self.running), 0)
-        if self.durations:
-            per = sum(self.durations) / len(self.durations)
-            width = max(len(self.running), 1)
-            eta = f"{per * (left + len(self.running)) / width:.0f}s"
-        else:
-            eta = "?"
-        t = Table(title=f"table: {self.done} done, {self.skipped} skipped, "
-                        f"{len(self.running)} running, {left} left | derived {self.derived} | "
-                        f"errors {self.errors} | elapsed {elapsed:.0f}s, ETA {eta}",
-                  title_justify="left")
-        t.add_column("running cell")
-        t.add_column("lower", justify="right")
-        t.add_column("upper", justify="right")
-        for p, (lo, up) in sorted(self.running.items()):
-            t.add_row(str(p), str(lo), "?" if up is None else str(up))
-        return t
+    emit({"event": "finish", "summary": driver.summary.to_json()})
+    return driver.summary

@@ -49,7 +49,7 @@ def _add_check(sub: argparse._SubParsersAction) -> None:
         help="verify a code file, generator matrix or bound certificate",
         description="Verify a code file (length, alphabet, minimum distance, distance "
         "distribution, linearity), a generator matrix (--generator) or a bound certificate "
-        "(recognised by its content). Python: codesearch.verify.check_file(path).",
+        "(recognised by its content). Python: codesearch.verify.check_code(codesearch.codefile.read_code(path).code, d).",
     )
     p.add_argument("file", help="code file, generator matrix, or certificate (JSON)")
     p.add_argument("--q", type=int, help="alphabet size (default: header, else largest symbol + 1)")
@@ -72,7 +72,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         report = verify.check_generator(rows, q, args.d,
                                         "information-sets" if args.min_only else "auto")
         return _print_code_report(args, report, None)
-    cert = verify.load_certificate(args.file)
+    cert = codefile.read_certificate(args.file)
     if cert is not None:
         valid, bound, reason = verify.check_certificate(cert)
         if args.json:
@@ -89,6 +89,8 @@ def _cmd_check(args: argparse.Namespace) -> int:
 
 
 def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> int:
+    from codesearch.report import text
+
     where = None
     if report.offending is not None and parsed is not None:
         i, j, dist = report.offending
@@ -100,35 +102,7 @@ def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> in
             obj["offending_distance"] = where[2]
         _print_json(obj)
     else:
-        if report.distance_distribution is None:
-            dist = "not computed (minimum distance by information sets)"
-        else:
-            dist = ", ".join(f"{i}:{c}" for i, c in enumerate(report.distance_distribution)
-                             if c)
-        rows = [
-            ("file", args.file),
-            ("length n", report.n),
-            ("alphabet q", report.q),
-            ("size M", report.size),
-            ("min distance", "-" if report.min_distance is None else report.min_distance),
-            ("distance distribution", dist or "-"),
-            ("duplicate pairs", report.duplicates),
-        ]
-        if report.linear is None:
-            rows.append(("linear", "not tested (q is not prime)"))
-        elif report.linear:
-            rows.append(("linear", f"yes, dimension {report.dimension}"))
-            wd = ("not computed" if report.weight_distribution is None else
-                  ", ".join(f"{i}:{c}" for i, c in enumerate(report.weight_distribution) if c))
-            rows.append(("weight distribution", wd))
-        else:
-            rows.append(("linear", "no"))
-        if report.claimed_d is not None:
-            verdict = "holds" if report.valid else "FAILS"
-            rows.append((f"claim d >= {report.claimed_d}", verdict))
-        width = max(len(k) for k, _ in rows)
-        for key, value in rows:
-            print(f"{key:<{width}}  {value}")
+        print(text.code_report(report, args.file))
     if not report.valid:
         if where is not None:
             print(f"{args.file}:{where[1]}: codeword is at distance {where[2]} from line "
@@ -165,11 +139,36 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
 
 
 def _cmd_bounds(args: argparse.Namespace) -> int:
-    from codesearch.bounds import report
+    from codesearch import bounds
+    from codesearch.model import grid
+    from codesearch.report import text
 
-    return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
-                                     lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
-                                     certificate=args.certificate)
+    cells = grid(args.q, args.n, args.d, max_n=bounds.MAX_N, limit="bounds limit")
+    if args.certificate is not None and len(cells) != 1:
+        raise InputError("--certificate needs a single cell (N and D, not ranges)")
+    if args.sdp:
+        _require_sdp_solver()
+    options = dict(lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp)
+    if args.json:
+        for p in cells:
+            _print_json(bounds.cell_summary(p, **options))
+    else:
+        print(text.bounds_table([bounds.cell_summary(p, **options) for p in cells],
+                                lp=options["lp"], sdp=args.sdp))
+    if args.certificate is not None:
+        from codesearch.codefile import write_certificate
+
+        best = bounds.best_lp_certificate(cells[0])
+        if best is None:
+            raise InputError(f"no certified LP bound for {cells[0]}")
+        write_certificate(args.certificate, best.certificate)
+    return 0
+
+
+def _require_sdp_solver() -> None:
+    from codesearch._optional import require
+
+    require("clarabel", "the semidefinite bounds (--sdp)")
 
 
 # ----------------------------------------------------------------------------------- find
@@ -215,8 +214,9 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
 
 def _cmd_find(args: argparse.Namespace) -> int:
     from codesearch.model import Params
+    from codesearch.report.live import live_progress
+    from codesearch.report.text import find_summary
     from codesearch.search import search
-    from codesearch.search.progress import live_progress
 
     params = Params(args.q, args.n, args.d)
     with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
@@ -234,10 +234,7 @@ def _cmd_find(args: argparse.Namespace) -> int:
     if args.json:
         _print_json(summary)
     else:
-        verdict = "proved optimal" if result.optimal else (
-            f"{result.status.value}; upper bound {result.upper}")
-        print(f"{params}: code of size {result.size} ({verdict}) "
-              f"by {result.method} in {result.seconds:.2f} s, {result.nodes} nodes")
+        print(find_summary(result))
     return 0
 
 
@@ -275,12 +272,13 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
 
 def _cmd_table(args: argparse.Namespace) -> int:
     from codesearch import batch
-    from codesearch.model import Params
+    from codesearch.model import grid
+    from codesearch.report.live import TableProgress
+    from codesearch.report.text import table_summary
 
-    Params(args.q, 1, 1)  # validates q with a one-line error
-    cells = batch.table_cells(args.q, args.n, args.d)
-    if not cells:
-        raise InputError("the range holds no cell with d <= n")
+    cells = grid(args.q, args.n, args.d)
+    if args.sdp:
+        _require_sdp_solver()
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
@@ -288,14 +286,12 @@ def _cmd_table(args: argparse.Namespace) -> int:
     if args.quiet or args.json:
         summary = batch.run_table(args.store, cells, **kwargs)
     else:
-        with batch.RichProgress() as display:
+        with TableProgress() as display:
             summary = batch.run_table(args.store, cells, progress=display, **kwargs)
     if args.json:
         _print_json(summary.to_json())
     else:
-        print(f"{summary.ran} cells run, {summary.skipped} skipped, {summary.failed} failed, "
-              f"{summary.derived_codes} codes and {summary.derived_bounds} bounds derived in "
-              f"{summary.seconds:.1f} s; store {args.store}")
+        print(table_summary(summary, args.store))
         for err in summary.errors[:10]:
             print(f"  {err}", file=sys.stderr)
     return 0
@@ -379,7 +375,7 @@ def _add_plot(sub: argparse._SubParsersAction) -> None:
         description="Asymptotic bounds on the rate against relative distance (Singleton, "
         "Hamming, Plotkin, Elias-Bassalygo, first LP bound, Gilbert-Varshamov) and, with "
         "--n, the finite cells of those lengths (bar from GV to the best upper bound). "
-        "Python: codesearch.plot.save_rate_distance(path, q, points).",
+        "Python: codesearch.report.plot.save_rate_distance(path, q, points).",
     )
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     p.add_argument("--n", type=_int_range, help="also draw the cells of lengths N or A..B")
@@ -398,10 +394,13 @@ def _cmd_plot(args: argparse.Namespace) -> int:
         count = table_report.plot_store(args.store, args.out, q=args.q)
         print(f"{args.out} ({count} stored cells)")
         return 0
-    from codesearch.bounds import report
+    from codesearch.bounds import finite_points
+    from codesearch.model import Params
+    from codesearch.report.plot import save_rate_distance
 
-    path = report.run_plot_command(args.q, args.n, out=args.out, lp=not args.no_lp)
-    print(path)
+    Params(args.q, 1, 1)  # validates q with the usual one-line error
+    points = finite_points(args.q, args.n, lp=not args.no_lp) if args.n is not None else None
+    print(save_rate_distance(args.out, args.q, points))
     return 0
 
 

@@ -20,6 +20,9 @@ file with no header is accepted: q is then the largest symbol + 1 unless given.
 JSON form: one object ``{"format": "codesearch-code/1", "q", "n", "size", "d", "meta": {...},
 "words": ["0101...", ...]}``.
 
+Bound certificates are JSON files too: :func:`read_certificate` recognises one by its content
+and returns the object for :func:`codesearch.verify.check_certificate`.
+
 Errors are :class:`~codesearch.errors.InputError` with one line ``FILE:LINE: reason``.
 """
 
@@ -35,6 +38,7 @@ from typing import Any, Mapping
 
 import numpy as np
 
+from codesearch import verify
 from codesearch._version import __version__
 from codesearch.errors import InputError
 from codesearch.model import MAX_Q, Code
@@ -49,6 +53,9 @@ __all__ = [
     "format_code_json",
     "write_code",
     "read_generator",
+    "read_json",
+    "read_certificate",
+    "write_certificate",
     "check_fits_in_memory",
 ]
 
@@ -369,8 +376,6 @@ def write_code(
     stamp : bool
         Add ``created`` and ``software`` entries when absent.
     """
-    from codesearch import verify
-
     if d is not None:
         verify.assert_min_distance(code, d)
     meta = dict(meta or {})
@@ -380,6 +385,12 @@ def write_code(
     if as_json is None:
         as_json = str(path).endswith(".json")
     text = format_code_json(code, d, meta) if as_json else format_code_text(code, d, meta)
+    _write_atomic(path, text)
+
+
+def _write_atomic(path: str, text: str) -> None:
+    """Write ``text`` to ``path`` through a temporary file and a rename: a reader never sees
+    half a file, and a failed write leaves the old file as it was."""
     directory = os.path.dirname(os.path.abspath(path))
     try:
         fd, tmp = tempfile.mkstemp(prefix=".codesearch-", dir=directory)
@@ -395,6 +406,11 @@ def write_code(
         raise
 
 
+def write_certificate(path: str, certificate: Mapping[str, Any]) -> None:
+    """Write a bound certificate as indented JSON (atomically, like :func:`write_code`)."""
+    _write_atomic(path, json.dumps(dict(certificate), indent=1) + "\n")
+
+
 def read_generator(path: str, q: int | None = None) -> tuple[np.ndarray, int, np.ndarray]:
     """Read a generator matrix (same syntax as a code file: one row per line).
 
@@ -405,3 +421,24 @@ def read_generator(path: str, q: int | None = None) -> tuple[np.ndarray, int, np
     if q < 2 or any(q % p == 0 for p in range(2, int(q**0.5) + 1)):
         raise InputError(f"{path}:1: generator matrices need a prime q (GF(q)), got q={q}")
     return np.array(parsed.code.words), q, parsed.lines
+
+
+def read_json(path: str) -> Any:
+    """Read a JSON file with one-line errors."""
+    text = _decode(_read_bytes(path), path)
+    try:
+        return json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise InputError(f"{path}:{exc.lineno}: invalid JSON: {exc.msg}") from None
+
+
+def read_certificate(path: str) -> dict[str, Any] | None:
+    """The JSON object in ``path`` if it looks like a certificate (has ``kind``), else None.
+
+    Lets ``codesearch check FILE`` recognise a certificate by content, not by name. Only the
+    first bytes are read unless the file starts like JSON.
+    """
+    if not _read_head(path).lstrip().startswith(b"{"):
+        return None
+    obj = read_json(path)
+    return obj if isinstance(obj, dict) and "kind" in obj else None

@@ -7,7 +7,8 @@ bound that the independent checker rejects) and is never caught silently.
 
 from __future__ import annotations
 
-__all__ = ["CodesearchError", "InputError", "ParameterError", "VerificationError"]
+__all__ = ["CodesearchError", "InputError", "ParameterError", "MissingDependency",
+           "VerificationError"]
 
 
 class CodesearchError(Exception):
@@ -23,6 +24,11 @@ class InputError(CodesearchError):
 
 class ParameterError(InputError, ValueError):
     """Parameters (q, n, d, sizes, options) outside what the tool can handle."""
+
+
+class MissingDependency(InputError, ImportError):
+    """An optional package a command needs is not installed (the message names the extra
+    that installs it)."""
 
 
 class VerificationError(CodesearchError, AssertionError):

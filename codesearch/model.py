@@ -7,15 +7,20 @@ A *code* is an ``(M, n)`` array of symbols ``0..q-1`` (dtype ``uint8``) together
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Iterable
 
 import numpy as np
 
 from codesearch.errors import ParameterError
 
-__all__ = ["MAX_Q", "Params", "Code"]
+__all__ = ["MAX_Q", "Params", "Code", "grid"]
 
 #: Largest alphabet the code file format can write (symbols 0-9 then a-z).
 MAX_Q = 36
+
+#: Byte -> symbol value for ``0-9a-z``; 255 (outside every alphabet) for any other byte.
+_SYMBOL_VALUE = np.full(256, 255, dtype=np.uint8)
+_SYMBOL_VALUE[np.frombuffer(b"0123456789abcdefghijklmnopqrstuvwxyz", np.uint8)] = np.arange(36)
 
 
 @dataclass(frozen=True, order=True)
@@ -52,6 +57,41 @@ class Params:
     def space_size(self) -> int:
         """Number of words in the ambient Hamming space, ``q**n``."""
         return self.q**self.n
+
+
+def _largest(values: Iterable[int]) -> int | None:
+    """Largest value, O(1) for a range (a typo like 1..10**9 must fail fast)."""
+    if isinstance(values, range):
+        return max(values[0], values[-1]) if len(values) else None
+    values = list(values)
+    return max(values) if values else None
+
+
+def grid(q: int, ns: Iterable[int], ds: Iterable[int], *, max_n: int | None = None,
+         limit: str = "limit") -> list[Params]:
+    """The cells of a table: every valid ``Params(q, n, d)`` for n in ``ns``, d in ``ds``
+    (n-major order); pairs with d outside ``1..n`` are left out.
+
+    Raises
+    ------
+    ParameterError
+        For an invalid q, a length beyond ``max_n`` (the message calls it ``limit``), or a
+        grid with no valid cell (a single cell names its own problem).
+    """
+    Params(q, 1, 1)  # validates q once, with the usual one-line error
+    top = _largest(ns)
+    if max_n is not None and top is not None and top > max_n:
+        raise ParameterError(f"length n={top} is beyond the {limit} {max_n}")
+    if isinstance(ds, range) and len(ds) > 1 and top is not None:
+        # Distances beyond the longest length can never form a cell.
+        ds = range(ds.start, max(ds.start + 1, min(ds.stop, top + 1)))
+    ns, ds = list(ns), list(ds)
+    if len(ns) == 1 and len(ds) == 1:
+        return [Params(q, ns[0], ds[0])]
+    cells = [Params(q, n, d) for n in ns for d in ds if n >= 1 and 1 <= d <= n]
+    if not cells:
+        raise ParameterError("the range holds no cell with 1 <= d <= n")
+    return cells
 
 
 @dataclass(frozen=True, eq=False)
@@ -121,11 +161,17 @@ class Code:
         order = np.lexsort(self.words.T[::-1])
         return Code(self.words[order], self.q)
 
+    def __reduce__(self) -> tuple:
+        # rebuilt through the constructor, so the copy is validated and read-only too
+        return (Code, (self.words, self.q))
+
     @classmethod
     def from_strings(cls, words: list[str], q: int) -> "Code":
-        """Build a code from words written as strings of symbols 0-9a-z."""
-        rows = [[int(ch, 36) for ch in w] for w in words]
-        return cls(np.array(rows, dtype=np.uint8).reshape(len(rows), -1), q)
+        """Build a code from words written as strings of symbols 0-9a-z (all of one length)."""
+        if len({len(w) for w in words}) > 1:
+            raise ParameterError("codewords must all have the same length")
+        data = np.frombuffer("".join(words).lower().encode("ascii"), dtype=np.uint8)
+        return cls(_SYMBOL_VALUE[data].reshape(len(words), -1), q)
 
     def to_strings(self) -> list[str]:
         """Each codeword as a string of symbols 0-9a-z."""

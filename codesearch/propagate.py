@@ -18,13 +18,10 @@ Code constructions (lower bounds)
     u|u+v        A_q(2n, d) >= A_q(n, ceil(d/2)) A_q(n, d), over Z_q;
     direct-sum   A_q(n1+n2, d) >= A_q(n1, d) A_q(n2, d).
 
-Upper-bound relations (rule names as stored)
-    times-q-shorter  A_q(n,d) <= q A_q(n-1,d);
-    longer           A_q(n,d) <= A_q(n+1,d);
-    smaller-d        A_q(n,d) <= A_q(n,d-1);
-    punctured        A_q(n,d) <= A_q(n-1,d-1)   (puncturing is injective when d >= 2);
-    parity-odd       binary, d odd: A(n,d) <= A(n+1,d+1)  (with ``punctured`` this gives
-                     A(n,2t-1) = A(n+1,2t)).
+Upper-bound relations
+    the rules of :mod:`codesearch.verify.relations` (``times-q-shorter``, ``longer``,
+    ``smaller-d``, ``punctured``, ``parity-odd``; with ``punctured``, ``parity-odd`` gives
+    A(n,2t-1) = A(n+1,2t)). The checker owns the rules; this module only applies them.
 
 References
 ----------
@@ -42,11 +39,9 @@ import numpy as np
 
 from codesearch.model import Code, Params
 from codesearch.results import BoundResult
+from codesearch.verify.relations import RELATION_RULES, relation_cells, relation_value
 
 __all__ = [
-    "BOUND_RULES",
-    "relation_cells",
-    "relation_value",
     "shorten",
     "puncture",
     "parity_extend",
@@ -60,43 +55,9 @@ __all__ = [
 #: Largest derived code that is materialised (larger ones would dominate verification time).
 MAX_DERIVED_WORDS = 4096
 
-BOUND_RULES = ("times-q-shorter", "longer", "smaller-d", "punctured", "parity-odd")
 
-
-# ------------------------------------------------------------------- upper-bound relations
 def _cell(q: int, n: int, d: int) -> Params | None:
     return Params(q, n, d) if n >= 1 and 1 <= d <= n else None
-
-
-def relation_cells(rule: str, p: Params) -> list[Params] | None:
-    """The cells whose upper bounds ``rule`` uses to bound cell ``p`` (None: rule not applicable)."""
-    q, n, d = p.q, p.n, p.d
-    if rule == "times-q-shorter":
-        c = _cell(q, n - 1, d)
-    elif rule == "longer":
-        c = _cell(q, n + 1, d)
-    elif rule == "smaller-d":
-        c = _cell(q, n, d - 1) if d >= 2 else None
-    elif rule == "punctured":
-        c = _cell(q, n - 1, d - 1) if d >= 2 else None
-    elif rule == "parity-odd":
-        c = _cell(q, n + 1, d + 1) if q == 2 and d % 2 == 1 else None
-    else:
-        return None
-    return None if c is None else [c]
-
-
-def relation_value(rule: str, p: Params, cited: list[tuple[Params, int]]) -> int | None:
-    """Upper bound on cell ``p`` that ``rule`` gives from the cited ``(cell, bound)`` pairs.
-
-    Returns None when the rule does not apply or the cited cells are not the ones it needs.
-    Pure integer arithmetic: this is what the store re-checks.
-    """
-    cells = relation_cells(rule, p)
-    if cells is None or [c for c, _ in cited] != cells:
-        return None
-    value = int(cited[0][1])
-    return p.q * value if rule == "times-q-shorter" else value
 
 
 # --------------------------------------------------------------------- code constructions
@@ -237,79 +198,102 @@ def propagate(
     table = sorted(set(cells))
     if not table:
         return PropagationSummary(0, 0, 0)
-    lower_cache: dict[Params, int] = {}
-    upper_cache: dict[Params, tuple[int, int] | None] = {}
-
-    def lower(p: Params) -> int:
-        if p not in lower_cache:
-            lower_cache[p] = store.summary(p).lower
-        return lower_cache[p]
-
-    def upper(p: Params) -> tuple[int, int] | None:
-        if p not in upper_cache:
-            upper_cache[p] = store.best_upper_row(p)
-        return upper_cache[p]
-
-    n_codes = n_bounds = rounds = 0
+    view = _StoreView(store, progress)
+    rounds = 0
     changed = True
     while changed:
-        changed = False
         rounds += 1
-        for p in table:
-            for cand in _code_candidates(p, lower):
-                if cand.size <= lower(p) or cand.size > max_words:
-                    continue
-                ub = upper(p)
-                if ub is not None and lower(p) >= ub[1]:
-                    break  # the cell is already settled
-                sources = []
-                ids = []
-                for s in cand.sources:
-                    summ = store.summary(s)
-                    sources.append(store.get_code(summ.code_id)[1])
-                    ids.append(summ.code_id)
-                code = cand.build(sources)
-                if code.size <= lower(p):
-                    continue
-                store.add_code(
-                    code, p, method=f"derived:{cand.rule}", status="feasible",
-                    settings={"rule": cand.rule},
-                    provenance={"rule": cand.rule, "from": ids,
-                                "cells": [[s.q, s.n, s.d] for s in cand.sources]},
-                )
-                lower_cache[p] = code.size
-                n_codes += 1
-                changed = True
-                if progress is not None:
-                    progress({"event": "derived", "kind": "code", "cell": p,
-                              "rule": cand.rule, "value": code.size})
-        for p in table:
-            for rule in BOUND_RULES:
-                srcs = relation_cells(rule, p)
-                if srcs is None:
-                    continue
-                rows = [upper(s) for s in srcs]
-                if any(r is None for r in rows):
-                    continue
-                cited = [(s, r[1]) for s, r in zip(srcs, rows)]
-                value = relation_value(rule, p, cited)
-                cur = upper(p)
-                if value is None or (cur is not None and value >= cur[1]):
-                    continue
-                cert = {
-                    "kind": "cell-relation",
-                    "rule": rule,
-                    "cites": [{"q": s.q, "n": s.n, "d": s.d, "bound_id": r[0], "value": r[1]}
-                              for s, r in zip(srcs, rows)],
-                }
-                bid = store.add_bound(
-                    BoundResult(p, value, f"relation:{rule}", certificate=cert,
-                                note=f"{rule} from " + ", ".join(str(s) for s in srcs)),
-                )
-                upper_cache[p] = (bid, value)
-                n_bounds += 1
-                changed = True
-                if progress is not None:
-                    progress({"event": "derived", "kind": "bound", "cell": p,
-                              "rule": rule, "value": value})
-    return PropagationSummary(n_codes, n_bounds, rounds)
+        new_codes = sum(_derive_codes(view, p, max_words) for p in table)
+        new_bounds = sum(_derive_bounds(view, p) for p in table)
+        changed = bool(new_codes or new_bounds)
+    return PropagationSummary(view.codes, view.bounds, rounds)
+
+
+class _StoreView:
+    """The store's best values per cell, cached during one propagation (this module is the
+    only writer meanwhile, and it updates the cache with what it writes)."""
+
+    def __init__(self, store: Any, progress: Callable[[dict[str, Any]], None] | None) -> None:
+        self.store = store
+        self.progress = progress
+        self._lower: dict[Params, int] = {}
+        self._upper: dict[Params, tuple[int, int] | None] = {}
+        self.codes = self.bounds = 0
+
+    def lower(self, p: Params) -> int:
+        if p not in self._lower:
+            self._lower[p] = self.store.summary(p).lower
+        return self._lower[p]
+
+    def upper(self, p: Params) -> tuple[int, int] | None:
+        """``(bound row id, value)`` of the cell's best stored bound, or None."""
+        if p not in self._upper:
+            self._upper[p] = self.store.best_upper_row(p)
+        return self._upper[p]
+
+    def add_code(self, p: Params, code: Code, cand: _Candidate, ids: list[int]) -> None:
+        self.store.add_code(
+            code, p, method=f"derived:{cand.rule}", status="feasible",
+            settings={"rule": cand.rule},
+            provenance={"rule": cand.rule, "from": ids,
+                        "cells": [[s.q, s.n, s.d] for s in cand.sources]},
+        )
+        self._lower[p] = code.size
+        self.codes += 1
+        self._told(p, "code", cand.rule, code.size)
+
+    def add_bound(self, p: Params, rule: str, value: int, cert: dict[str, Any],
+                  srcs: list[Params]) -> None:
+        bid = self.store.add_bound(
+            BoundResult(p, value, f"relation:{rule}", certificate=cert,
+                        note=f"{rule} from " + ", ".join(str(s) for s in srcs)),
+        )
+        self._upper[p] = (bid, value)
+        self.bounds += 1
+        self._told(p, "bound", rule, value)
+
+    def _told(self, p: Params, kind: str, rule: str, value: int) -> None:
+        if self.progress is not None:
+            self.progress({"event": "derived", "kind": kind, "cell": p, "rule": rule,
+                           "value": value})
+
+
+def _derive_codes(view: _StoreView, p: Params, max_words: int) -> int:
+    """Build and store every code construction that beats the cell's best code; the count."""
+    added = 0
+    for cand in _code_candidates(p, view.lower):
+        if cand.size <= view.lower(p) or cand.size > max_words:
+            continue
+        ub = view.upper(p)
+        if ub is not None and view.lower(p) >= ub[1]:
+            break  # the cell is already settled
+        ids = [view.store.summary(s).code_id for s in cand.sources]
+        code = cand.build([view.store.get_code(i)[1] for i in ids])
+        if code.size <= view.lower(p):
+            continue
+        view.add_code(p, code, cand, ids)
+        added += 1
+    return added
+
+
+def _derive_bounds(view: _StoreView, p: Params) -> int:
+    """Store every relation that improves the cell's best bound, citing its sources; the
+    count."""
+    added = 0
+    for rule in RELATION_RULES:
+        srcs = relation_cells(rule, p)
+        if srcs is None:
+            continue
+        rows = [view.upper(s) for s in srcs]
+        if any(r is None for r in rows):
+            continue
+        value = relation_value(rule, p, [(s, r[1]) for s, r in zip(srcs, rows)])
+        cur = view.upper(p)
+        if value is None or (cur is not None and value >= cur[1]):
+            continue
+        cert = {"kind": "cell-relation", "rule": rule,
+                "cites": [{"q": s.q, "n": s.n, "d": s.d, "bound_id": r[0], "value": r[1]}
+                          for s, r in zip(srcs, rows)]}
+        view.add_bound(p, rule, value, cert, srcs)
+        added += 1
+    return added

@@ -2,19 +2,27 @@
 
 Every searcher returns a :class:`SearchResult` with the same fields whatever the method;
 every bound returns a :class:`BoundResult`. Method-specific parameters go in ``settings``
-(a flat mapping recorded for reproducibility), never in extra top-level keys.
+(a JSON-ready mapping recorded for reproducibility), never in extra top-level keys.
+
+Both serialise themselves: ``to_dict()`` gives a JSON-ready dict holding everything (the code
+as one string of symbols per word, rationals as ``"p/q"``) and ``from_dict()`` rebuilds an
+equal object, so results travel whole between processes (pickling goes through the same
+fields) and can be written as JSON.
 """
 
 from __future__ import annotations
 
 import enum
 from dataclasses import dataclass, field
+from fractions import Fraction
 from types import MappingProxyType
 from typing import Any, Mapping
 
+import numpy as np
+
 from codesearch.model import Code, Params
 
-__all__ = ["Status", "SearchResult", "BoundResult"]
+__all__ = ["Status", "SearchResult", "BoundResult", "plain"]
 
 
 class Status(enum.Enum):
@@ -38,8 +46,41 @@ class Status(enum.Enum):
     UNKNOWN = "unknown"
 
 
+def plain(obj: Any) -> Any:
+    """A JSON-ready deep copy: mappings become dicts with string keys, tuples and arrays
+    lists, numpy scalars Python numbers, Fractions ``"p/q"`` strings."""
+    if isinstance(obj, Mapping):
+        return {str(k): plain(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [plain(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return plain(obj.tolist())
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.floating):
+        return float(obj)
+    if isinstance(obj, np.bool_):
+        return bool(obj)
+    if isinstance(obj, Fraction):
+        return f"{obj.numerator}/{obj.denominator}"
+    return obj
+
+
 def _frozen(mapping: Mapping[str, Any] | None) -> Mapping[str, Any]:
-    return MappingProxyType(dict(mapping or {}))
+    return MappingProxyType(plain(mapping or {}))
+
+
+def _code_to_dict(code: Code | None) -> dict[str, Any] | None:
+    return None if code is None else {"q": code.q, "words": code.to_strings()}
+
+
+def _code_from_dict(obj: Mapping[str, Any] | None, n: int) -> Code | None:
+    if obj is None:
+        return None
+    words = list(obj["words"])
+    if not words:
+        return Code(np.zeros((0, n), dtype=np.uint8), int(obj["q"]))
+    return Code.from_strings(words, int(obj["q"]))
 
 
 @dataclass(frozen=True)
@@ -67,7 +108,7 @@ class SearchResult:
         Random seed used, when the method is randomised.
     settings : Mapping
         Every parameter that influenced the run (time limit, options, reductions used,
-        versions), enough to reproduce it.
+        versions), enough to reproduce it; held read-only in JSON-ready form.
     target : int or None
         When the search asked "does a code of size ``target`` exist?": that size.
     """
@@ -127,6 +168,30 @@ class SearchResult:
             out["exists"] = self.exists
         return out
 
+    def to_dict(self) -> dict[str, Any]:
+        """Everything, JSON-ready; :meth:`from_dict` rebuilds an equal result."""
+        return {
+            "q": self.params.q, "n": self.params.n, "d": self.params.d,
+            "status": self.status.value, "code": _code_to_dict(self.code),
+            "upper": self.upper, "method": self.method, "seconds": self.seconds,
+            "nodes": int(self.nodes), "seed": self.seed, "settings": plain(self.settings),
+            "target": self.target,
+        }
+
+    @classmethod
+    def from_dict(cls, obj: Mapping[str, Any]) -> "SearchResult":
+        """The result written by :meth:`to_dict`."""
+        params = Params(obj["q"], obj["n"], obj["d"])
+        return cls(params, Status(obj["status"]), _code_from_dict(obj["code"], params.n),
+                   obj["upper"], obj["method"], obj["seconds"], obj["nodes"], obj["seed"],
+                   obj["settings"], obj["target"])
+
+    def __reduce__(self) -> tuple:
+        # the settings proxy cannot be pickled: rebuild from the fields
+        return (SearchResult, (self.params, self.status, self.code, self.upper, self.method,
+                               self.seconds, self.nodes, self.seed, dict(self.settings),
+                               self.target))
+
 
 @dataclass(frozen=True)
 class BoundResult:
@@ -171,3 +236,18 @@ class BoundResult:
     def usable(self) -> bool:
         """True when the value may enter a table as an upper bound for all codes."""
         return self.certified and self.scope == "all"
+
+    def to_dict(self) -> dict[str, Any]:
+        """Everything, JSON-ready; :meth:`from_dict` rebuilds an equal bound."""
+        return {
+            "q": self.params.q, "n": self.params.n, "d": self.params.d,
+            "value": self.value, "method": self.method,
+            "certificate": None if self.certificate is None else plain(self.certificate),
+            "certified": self.certified, "scope": self.scope, "note": self.note,
+        }
+
+    @classmethod
+    def from_dict(cls, obj: Mapping[str, Any]) -> "BoundResult":
+        """The bound written by :meth:`to_dict`."""
+        return cls(Params(obj["q"], obj["n"], obj["d"]), obj["value"], obj["method"],
+                   obj["certificate"], obj["certified"], obj["scope"], obj["note"])

@@ -59,7 +59,6 @@ __all__ = [
     "PublishedRow",
     "pack_code",
     "unpack_code",
-    "open_store",
 ]
 
 #: Schema version written to ``PRAGMA user_version``.
@@ -217,11 +216,6 @@ class PublishedRow:
     lower: int | None
     upper: int | None
     source: str
-
-
-def open_store(path: str | os.PathLike[str] | None = None, *, create: bool = True) -> "Store":
-    """Open (and by default create) the store at ``path`` (default :data:`DEFAULT_STORE`)."""
-    return Store(path if path is not None else DEFAULT_STORE, create=create)
 
 
 class Store:
@@ -499,29 +493,20 @@ class Store:
 
         try:
             valid, proved, _reason = verify.check_certificate(cert)
-        except NotImplementedError:
-            return False
-        except Exception:  # a malformed certificate is an uncertified bound, not a crash
+        except InputError:  # a malformed certificate is an uncertified bound, not a crash
             return False
         return bool(valid) and proved is not None and int(proved) <= int(value)
 
     def _check_relation(self, p: Params, value: int, cert: Mapping[str, Any]) -> None:
-        """Re-check a bound derived from other cells' stored bounds (see :mod:`propagate`)."""
-        from codesearch.propagate import relation_value
+        """Re-check a bound derived from other cells' stored bounds (:mod:`verify.relations`)."""
+        from codesearch import verify
 
-        cited = []
-        for ref in cert.get("cites", []):
+        def lookup(bound_id: int) -> tuple[int, int, int, int, bool] | None:
             row = self._conn.execute(
-                "SELECT q,n,d,value,certified FROM bounds WHERE id=?", (int(ref["bound_id"]),)
-            ).fetchone()
-            if row is None or not row[4]:
-                raise VerificationError(f"relation for {p} cites a missing or uncertified bound")
-            if (row[0], row[1], row[2]) != (ref["q"], ref["n"], ref["d"]) or row[3] != ref["value"]:
-                raise VerificationError(f"relation for {p} cites bound {ref['bound_id']} wrongly")
-            cited.append((Params(row[0], row[1], row[2]), int(row[3])))
-        implied = relation_value(str(cert.get("rule")), p, cited)
-        if implied is None or implied > int(value):
-            raise VerificationError(f"relation {cert.get('rule')!r} does not give {value} for {p}")
+                "SELECT q,n,d,value,certified FROM bounds WHERE id=?", (bound_id,)).fetchone()
+            return None if row is None else (row[0], row[1], row[2], row[3], bool(row[4]))
+
+        verify.check_cell_relation(p, value, cert, lookup)
 
     # -------------------------------------------------------------------- search results
     def add_search_result(self, result: SearchResult, *, exhaustive: bool) -> tuple[int | None, int | None]:

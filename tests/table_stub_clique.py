@@ -7,22 +7,22 @@ an optimal code (networkx ``max_weight_clique`` is exhaustive). Only for tiny ce
 from __future__ import annotations
 
 import itertools
-import time
 
 import networkx as nx
 import numpy as np
 
 from codesearch.errors import ParameterError
 from codesearch.model import Code
-from codesearch.results import SearchResult, Status
+from codesearch.search.base import Context, Outcome
 
 OPTIONS = frozenset()
+SEEDING = "none"
 
 
-def run(params, *, time_limit=None, seed=None, progress=None):
+def run(ctx: Context) -> Outcome:
+    params = ctx.params
     if params.space_size > 64:
         raise ParameterError(f"stub-clique handles at most 64 words, {params} has more")
-    start = time.perf_counter()
     words = list(itertools.product(range(params.q), repeat=params.n))
     g = nx.Graph()
     g.add_nodes_from(range(len(words)))
@@ -31,5 +31,4 @@ def run(params, *, time_limit=None, seed=None, progress=None):
             g.add_edge(i, j)
     clique, size = nx.max_weight_clique(g, weight=None)
     code = Code(np.array([words[i] for i in clique], dtype=np.uint8), params.q)
-    return SearchResult(params, Status.OPTIMAL, code, int(size), "stub-clique",
-                        time.perf_counter() - start, seed=seed)
+    return Outcome(code, int(size))

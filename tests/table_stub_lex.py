@@ -3,7 +3,8 @@
 The lexicode of length n and distance d takes, in lexicographic order, every word at
 distance >= d from all words taken so far; binary lexicodes with d = 3 are the Hamming codes
 when n = 2^r - 1 (Conway and Sloane, "Lexicographic codes", IEEE Trans. IT 32 (1986)).
-Registered in the search registry at run time by :func:`register`.
+Tests register it with the ``stub_methods`` fixture (tests/conftest.py); a driver started in a
+subprocess calls :func:`register`.
 """
 
 from __future__ import annotations
@@ -13,32 +14,42 @@ import time
 
 import numpy as np
 
-from codesearch.model import Code
-from codesearch.results import SearchResult, Status
+from codesearch.model import Code, Params
+from codesearch.search.base import Context, Outcome
 
 OPTIONS = frozenset()
+SEEDING = "none"
 
 
-def run(params, *, time_limit=None, seed=None, progress=None):
-    start = time.perf_counter()
+def lexicode(params: Params) -> Code:
     words = np.array(list(itertools.product(range(params.q), repeat=params.n)), dtype=np.uint8)
     chosen = []
     for w in words:
         if all(int((w != c).sum()) >= params.d for c in chosen):
             chosen.append(w)
+    return Code(np.array(chosen, dtype=np.uint8).reshape(len(chosen), params.n), params.q)
+
+
+def run(ctx: Context) -> Outcome:
+    code = lexicode(ctx.params)
     # Give kill tests something to interrupt: a short pause inside the budget.
-    if time_limit is not None:
-        time.sleep(min(0.25, time_limit / 2))
-    code = Code(np.array(chosen, dtype=np.uint8).reshape(len(chosen), params.n), params.q)
-    return SearchResult(params, Status.FEASIBLE, code, None, "stub-lex",
-                        time.perf_counter() - start, seed=seed, settings={"order": "lex"})
+    if ctx.time_limit is not None:
+        time.sleep(min(0.25, ctx.time_limit / 2))
+    return Outcome(code, settings={"order": "lex"})
 
 
-def register():
-    """Add the stub methods to the search registry (idempotent)."""
-    from codesearch.search import METHODS, MethodSpec
+def specs() -> dict:
+    """The registry entries of the test-only methods."""
+    from codesearch.search import MethodSpec
 
-    METHODS.setdefault("stub-lex", MethodSpec("stub-lex", "table_stub_lex", False,
-                                              "test-only greedy lexicode"))
-    METHODS.setdefault("stub-clique", MethodSpec("stub-clique", "table_stub_clique", True,
-                                                 "test-only exact clique via networkx"))
+    return {"stub-lex": MethodSpec("stub-lex", "table_stub_lex", False,
+                                   "test-only greedy lexicode"),
+            "stub-clique": MethodSpec("stub-clique", "table_stub_clique", True,
+                                      "test-only exact clique via networkx")}
+
+
+def register() -> None:
+    """Add the test-only methods to the registry of this process (a driver subprocess)."""
+    from codesearch.search import METHODS
+
+    METHODS.update(specs())

@@ -11,8 +11,8 @@ import pytest
 from codesearch import bounds, verify
 from codesearch.errors import VerificationError
 from codesearch.model import Params
-from codesearch.results import BoundResult, SearchResult, Status
-from codesearch.search import METHODS, MethodSpec, auto, search
+from codesearch.results import BoundResult, Status
+from codesearch.search import METHODS, MethodSpec, Outcome, auto, search
 
 import known_codes as kc
 
@@ -20,7 +20,8 @@ HAMMING = Params(2, 7, 3)
 
 
 def _no_bounds(monkeypatch):
-    monkeypatch.delattr(bounds, "upper_bound", raising=False)
+    # no usable bound: the front end finds only an uncertified value
+    monkeypatch.setattr(bounds, "upper_bound", _fake_bound(10**6, certified=False))
 
 
 def _only(monkeypatch, names):
@@ -80,6 +81,7 @@ def test_bound_below_a_verified_code_is_a_bug(monkeypatch):
 def _register_fake(monkeypatch, name, exhaustive, run):
     module = types.ModuleType(f"fake_{name}")
     module.OPTIONS = frozenset({"size"})
+    module.SEEDING = "none"
     module.run = run
     monkeypatch.setitem(sys.modules, module.__name__, module)
     monkeypatch.setitem(METHODS, name, MethodSpec(name, module.__name__, exhaustive, "fake"))
@@ -90,9 +92,9 @@ def test_exhaustive_step_proof_is_used(monkeypatch):
     _only(monkeypatch, {"auto"})
     calls = []
 
-    def exact_run(params, *, time_limit, seed, progress, **options):
+    def exact_run(ctx, **options):
         calls.append(options)
-        return SearchResult(params, Status.OPTIMAL, kc.hamming_7_4(), 16, "exact", 0.01)
+        return Outcome(kc.hamming_7_4(), 16)
 
     _register_fake(monkeypatch, "exact", True, exact_run)
     res = search(HAMMING, "auto", time_limit=10)
@@ -105,13 +107,13 @@ def test_heuristic_upper_is_ignored_and_sat_gets_the_next_size(monkeypatch):
     _only(monkeypatch, {"auto"})
     asked = []
 
-    def local_run(params, *, time_limit, seed, progress, **options):
-        # a heuristic that (wrongly) fills 'upper': auto must not trust it
-        return SearchResult(params, Status.FEASIBLE, kc.hamming_7_4(), 16, "local", 0.01)
+    def local_run(ctx, **options):
+        # a heuristic that (wrongly) fills 'upper': it must not be trusted
+        return Outcome(kc.hamming_7_4(), 16)
 
-    def sat_run(params, *, time_limit, seed, progress, size=None):
-        asked.append(size)
-        return SearchResult(params, Status.INFEASIBLE, None, size - 1, "sat", 0.01, target=size)
+    def sat_run(ctx):
+        asked.append(ctx.target)
+        return Outcome(None, ctx.target - 1)
 
     _register_fake(monkeypatch, "local", False, local_run)
     _register_fake(monkeypatch, "sat", True, sat_run)

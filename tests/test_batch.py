@@ -11,14 +11,12 @@ from codesearch.batch import run_table, table_cells
 from codesearch.errors import ParameterError
 from codesearch.model import Params
 from codesearch.store import Store
-import table_stub_lex
-
 TESTS = str(pathlib.Path(__file__).parent)
 
 
 @pytest.fixture(autouse=True)
-def _stubs():
-    table_stub_lex.register()
+def _stubs(stub_methods):
+    pass
 
 
 def test_table_cells():
@@ -108,8 +106,8 @@ def test_cell_bounds_stage_in_process(tmp_path, monkeypatch):
     p = Params(2, 7, 3)
     task = CellTask(p, 1.0, (METHODS["stub-lex"],), True, 5)
     out = run_cell(task)
-    assert [b["method"] for b in out["bounds"]] == ["hamming", "weird", "griesmer"]
-    assert out["searches"][0]["status"] == "feasible" and not out["errors"]
+    assert [b.method for b in out.bounds] == ["hamming", "weird", "griesmer"]
+    assert out.searches[0].status.value == "feasible" and not out.errors
     with Store(tmp_path / "s.sqlite") as s:
         _store_outcome(s, task, out)
         summ = s.summary(p)
@@ -122,20 +120,18 @@ def test_cell_bounds_stage_in_process(tmp_path, monkeypatch):
 def test_bad_outcome_rolls_back_the_whole_cell(tmp_path):
     import numpy as np
 
-    from codesearch.batch import CellTask, _store_outcome
+    from codesearch.batch import CellOutcome, CellTask, _store_outcome
     from codesearch.errors import VerificationError
+    from codesearch.model import Code
+    from codesearch.results import BoundResult, SearchResult, Status
     from codesearch.search import METHODS
 
     p = Params(2, 5, 3)
     task = CellTask(p, 1.0, (METHODS["stub-lex"],), True, 0)
     # A Hamming-bound value (2^5 / 6 -> 5; common practice) and a "code" of two equal words.
-    out = {"seconds": 0.1, "errors": [],
-           "bounds": [{"value": 5, "method": "hamming", "certificate": None, "certified": True,
-                       "scope": "all", "note": "", "seconds": 0.0}],
-           "searches": [{"method": "stub-lex", "status": "feasible",
-                         "words": np.zeros((2, 5), np.uint8), "q": 2, "upper": None,
-                         "seconds": 0.1, "nodes": 0, "seed": 0, "settings": {},
-                         "exhaustive": False, "time_limit": 1.0}]}
+    bad = SearchResult(p, Status.FEASIBLE, Code(np.zeros((2, 5), np.uint8), 2), None,
+                       "stub-lex", 0.1, seed=0)
+    out = CellOutcome(p, (BoundResult(p, 5, "hamming"),), 0.0, (bad,), (), (), 0.1)
     with Store(tmp_path / "s.sqlite") as s:
         with pytest.raises(VerificationError):
             _store_outcome(s, task, out)

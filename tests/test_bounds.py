@@ -43,7 +43,7 @@ def _explicit_k(q: int, n: int, k: int, x: int) -> int:
 @pytest.mark.parametrize("q,n", [(2, 1), (2, 9), (3, 7), (5, 6), (16, 5), (2, 30)])
 def test_krawtchouk_tables_match_definition(q, n):
     T = krawtchouk_table(q, n)
-    G = verify._kraw_columns(q, n)
+    G = verify.lp._kraw_columns(q, n)
     for k in range(n + 1):
         for x in range(n + 1):
             assert T[k][x] == _explicit_k(q, n, k, x) == G[x][k]
@@ -390,7 +390,7 @@ def test_public_api_and_lazy_imports():
             "compute_bound", "best_lp_certificate"} <= set(b.__all__)
     # Importing the front end must not load scipy, highspy or matplotlib (common practice for
     # a fast CLI; the project rule is that imports stay cheap).
-    code = ("import sys, codesearch.bounds, codesearch.plot; "
+    code = ("import sys, codesearch.bounds, codesearch.report.plot; "
             "print(any(m in sys.modules for m in ('scipy', 'highspy', 'matplotlib')))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"

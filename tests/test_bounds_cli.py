@@ -7,7 +7,7 @@ from fractions import Fraction
 
 import pytest
 
-from codesearch import verify
+from codesearch import codefile, verify
 from codesearch.bounds import best_lp_certificate
 from codesearch.cli import main
 from codesearch.errors import InputError
@@ -68,7 +68,7 @@ def test_certificate_file_round_trip(tmp_path, capsys):
     cert = json.loads(path.read_text())
     assert cert["kind"] == "delsarte-lp" and cert["even"] is True
     assert len(cert["y"]) == 17
-    loaded = verify.load_certificate(str(path))
+    loaded = codefile.read_certificate(str(path))
     assert verify.check_certificate(loaded)[0]
     ok, bound, _ = verify.check_certificate(cert)
     assert ok and bound == 341
@@ -133,11 +133,11 @@ def test_malformed_certificates_raise_input_error(mutate):
 def test_load_certificate_recognises_content(tmp_path):
     code_file = tmp_path / "code.txt"
     code_file.write_text("000\n111\n")
-    assert verify.load_certificate(str(code_file)) is None
+    assert codefile.read_certificate(str(code_file)) is None
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
     with pytest.raises(InputError):
-        verify.load_certificate(str(bad))
+        codefile.read_certificate(str(bad))
 
 
 def test_check_command_on_certificates(tmp_path, capsys):

@@ -243,7 +243,7 @@ def test_importing_search_modules_loads_no_numba():
     import sys
 
     code = ("import sys, codesearch, codesearch.search.clique, codesearch.search.graph, "
-            "codesearch.search.exact, codesearch.search.progress; "
+            "codesearch.search.exact, codesearch.report.live; "
             "assert 'numba' not in sys.modules, 'numba imported'")
     subprocess.run([sys.executable, "-c", code], check=True)
 

@@ -207,7 +207,7 @@ def test_known_bounds_agree_with_the_search():
 
 
 def test_progress_callback_and_live_display():
-    from codesearch.search.progress import live_progress
+    from codesearch.report.live import live_progress
 
     seen = []
     res = search(Params(2, 8, 3), "exact", progress=seen.append)

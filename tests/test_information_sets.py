@@ -41,7 +41,7 @@ def test_row_sum_kernels_equal_twin(gen, w):
 @given(generators())
 def test_min_distance_equals_enumeration(gen):
     q, rows = gen
-    basis = verify._row_basis(rows, q)
+    basis = verify.linear._row_basis(rows, q)
     if basis.shape[0] == 0:
         return
     weights = ref.linear_weight_distribution(basis, q)
@@ -57,7 +57,7 @@ def test_min_distance_equals_enumeration(gen):
     (3, kc.ternary_golay().words),
 ])
 def test_forms_are_disjoint_and_span_the_code(q, rows):
-    basis = verify._row_basis(rows, q)
+    basis = verify.linear._row_basis(rows, q)
     k = basis.shape[0]
     forms = verify.information_set_forms(basis, q)
     assert forms[0][1] == k

@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+import pathlib
+
 import numpy as np
 import pytest
 
 from codesearch.cli import main
-from codesearch.plot import asymptotic_curves, entropy, save_rate_distance
+from codesearch.report.plot import asymptotic_curves, entropy, save_rate_distance
 
 
 @pytest.mark.parametrize("q", [2, 3, 4, 8])
@@ -67,8 +69,8 @@ def test_entropy_values():
 def test_save_png_and_svg(tmp_path):
     png = save_rate_distance(str(tmp_path / "a.png"), 2, [(10, 3, 64, 72), (10, 5, 8, 12)])
     svg = save_rate_distance(str(tmp_path / "a.svg"), 3)
-    assert open(png, "rb").read(8) == b"\x89PNG\r\n\x1a\n"
-    assert "<svg" in open(svg).read(2000)
+    assert pathlib.Path(png).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert "<svg" in pathlib.Path(svg).read_text()[:2000]
 
 
 def test_plot_command(tmp_path, capsys):

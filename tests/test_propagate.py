@@ -9,11 +9,12 @@ from hypothesis import given, settings, strategies as st
 from codesearch.errors import VerificationError
 from codesearch.model import Code, Params
 from codesearch.propagate import (
-    direct_sum, pad, parity_extend, propagate, puncture, relation_value, shorten, u_u_plus_v,
+    direct_sum, pad, parity_extend, propagate, puncture, shorten, u_u_plus_v,
 )
 from codesearch.results import BoundResult
 from codesearch.store import Store
 from codesearch.verify import min_distance
+from codesearch.verify.relations import relation_value
 from table_helpers import even_weight_code, hamming_code, repetition_code
 
 
@@ -115,7 +116,7 @@ def test_fixed_point_properties(tmp_path_factory, seeds, bounded):
         for n, d in seeds:
             if d <= n:
                 p = Params(2, n, d)
-                s.add_code(table_stub_lex.run(p).code, p, method="stub-lex")
+                s.add_code(table_stub_lex.lexicode(p), p, method="stub-lex")
         for n, d in bounded:
             if d <= n:
                 s.add_bound(BoundResult(Params(2, n, d), _hamming_bound(n, d), "hamming"))

@@ -150,13 +150,13 @@ def test_html_inline_codewords_verify(store_path):
     assert code.size == 16 and min_distance(code) == 3
 
 
-def test_rich_progress_renders():
+def test_table_progress_renders():
     from rich.console import Console
 
-    from codesearch.batch import RichProgress
+    from codesearch.report.live import TableProgress
 
     console = Console(file=io.StringIO(), force_terminal=False, width=100)
-    with RichProgress(console) as prog:
+    with TableProgress(console) as prog:
         prog({"event": "start", "cells": 3})
         prog({"event": "submit", "cell": Params(2, 7, 3), "lower": 12, "upper": 16})
         prog({"event": "skip", "cell": None})
@@ -168,16 +168,13 @@ def test_rich_progress_renders():
 
 
 @pytest.mark.slow  # waits for the connection timeout
-def test_unreachable_scheduler_is_input_error(tmp_path, capsys):
+def test_unreachable_scheduler_is_input_error(tmp_path, capsys, stub_methods):
     import socket
 
     sock = socket.socket()
     sock.bind(("127.0.0.1", 0))
     port = sock.getsockname()[1]
     sock.close()  # nothing listens on this port now
-    import table_stub_lex
-
-    table_stub_lex.register()
     code = main(["table", "--n", "3..4", "--d", "3", "--methods", "stub-lex", "--quiet",
                  "--no-propagate", "--store", str(tmp_path / "s.sqlite"),
                  "--scheduler", f"tcp://127.0.0.1:{port}"])

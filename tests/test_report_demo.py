@@ -6,11 +6,13 @@ from __future__ import annotations
 from codesearch import demo
 from codesearch.codefile import read_code
 from codesearch.verify import min_distance
-import table_stub_lex
 
 
-def test_demo_end_to_end(tmp_path, monkeypatch, capsys):
-    table_stub_lex.register()
+def test_demo_end_to_end(tmp_path, monkeypatch, capsys, stub_methods):
+    # `pip install -e . && codesearch demo` installs no extra: the demo must not need one
+    from test_optional import _hide
+
+    _hide(monkeypatch, "matplotlib", "distributed", "clarabel", "scs")
     monkeypatch.setitem(demo.SCENARIO, "n", range(7, 9))
     monkeypatch.setitem(demo.SCENARIO, "d", range(3, 5))
     monkeypatch.setitem(demo.SCENARIO, "budget", 0.5)

@@ -34,7 +34,8 @@ from codesearch.bounds.terwilliger import (
 )
 from codesearch.errors import InputError, ParameterError
 from codesearch.model import Code, Params
-from codesearch.verify import _tp_psd, check_certificate, min_distance
+from codesearch.verify import check_certificate, min_distance
+from codesearch.verify.three_point import _tp_psd
 
 import known_codes
 

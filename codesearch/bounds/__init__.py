@@ -15,15 +15,15 @@ the LP).
 from __future__ import annotations
 
 import importlib
-from typing import Callable
+from typing import Callable, Iterable
 
 from codesearch.errors import ParameterError
-from codesearch.model import Params
+from codesearch.model import Params, grid
 from codesearch.results import BoundResult
 
 __all__ = ["BOUNDS", "MAX_N", "bound_names", "compute_bound", "upper_bound", "all_bounds",
            "gv_lower_bound", "least_usable",
-           "cell_summary", "best_lp_certificate"]
+           "cell_summary", "best_lp_certificate", "finite_points"]
 
 #: Canonical bound name -> (module, function). Order is the tie-break for the winning bound:
 #: simpler theorems first, so a cell names the plainest argument that reaches its value.
@@ -164,6 +164,16 @@ def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
         "linear": {k: b.value for k, b in found.items() if b.scope == "linear" and b.certified},
         "uncertified": sorted(k for k, b in found.items() if not b.certified),
     }
+
+
+def finite_points(q: int, ns: Iterable[int], *, lp: bool = True
+                  ) -> list[tuple[int, int, int, int]]:
+    """``(n, d, gv, upper)`` for every cell of the given lengths (the finite points of the
+    rate-distance picture, :mod:`codesearch.report.plot`)."""
+    # q and the longest length are checked first: a typo such as 1..10**9 fails at once
+    grid(q, ns, [1], max_n=MAX_N, limit="bounds limit")
+    return [(p.n, p.d, gv_lower_bound(p), upper_bound(p, lp=lp).value)
+            for n in ns for p in grid(q, [n], range(1, n + 1))]
 
 
 def best_lp_certificate(params: Params) -> BoundResult | None:

@@ -1,31 +1,39 @@
 """One front end for every code search: :func:`search`.
 
 Methods live behind a registry (:data:`METHODS`), one module each, loaded lazily so that
-importing :mod:`codesearch` never compiles numba kernels or loads SAT solvers. Each method
-module defines
+importing :mod:`codesearch` never compiles numba kernels or loads SAT solvers. A method module
+declares ``OPTIONS`` and ``SEEDING`` and defines ``run(ctx, **options) -> Outcome``
+(:mod:`codesearch.search.base` describes the contract).
 
-``OPTIONS``
-    a frozenset of the keyword options it accepts (unknown options raise), and
-``run(params, *, time_limit, seed, progress, **options) -> SearchResult``
-    which returns its best code (unverified is fine: the front end verifies).
-
-The front end validates, dispatches, re-checks the witness with :mod:`codesearch.verify`
-and enforces the status rules (only exhaustive methods may claim OPTIMAL or INFEASIBLE).
+The front end validates the cell, the time limit, the options (unknown ones raise) and the
+target size; resolves the seed; hands the method a :class:`~codesearch.search.base.Context`
+with the clock and the cell's known upper bound (computed at most once, on demand); re-checks
+the returned code with :mod:`codesearch.verify`; applies the status rule (only exhaustive
+methods may prove bounds, so only they may claim OPTIMAL or INFEASIBLE); and stamps time,
+version and settings on the :class:`~codesearch.results.SearchResult`.
 """
 
 from __future__ import annotations
 
-import dataclasses
 import importlib
 import time
 from dataclasses import dataclass
-from typing import Any, Callable
+from typing import Any, Callable, Mapping
 
-from codesearch.errors import ParameterError, VerificationError
+from codesearch._version import __version__
+from codesearch.errors import ParameterError
 from codesearch.model import Params
-from codesearch.results import SearchResult, Status
+from codesearch.results import BoundResult, SearchResult
+from codesearch.search.base import (
+    SEEDINGS,
+    Context,
+    Outcome,
+    positive_int,
+    resolve_seed,
+    status_of,
+)
 
-__all__ = ["MethodSpec", "METHODS", "search", "method_names"]
+__all__ = ["MethodSpec", "METHODS", "search", "run_method", "Context", "Outcome"]
 
 
 @dataclass(frozen=True)
@@ -63,13 +71,11 @@ METHODS: dict[str, MethodSpec] = dict(
 )
 
 
-def method_names() -> list[str]:
-    """Canonical names of the registered methods, in registry order."""
-    return list(METHODS)
-
-
 def _load(spec: MethodSpec) -> Any:
-    return importlib.import_module(spec.module)
+    module = importlib.import_module(spec.module)
+    if getattr(module, "SEEDING", "none") not in SEEDINGS:
+        raise ParameterError(f"method {spec.name!r} declares an unknown SEEDING")
+    return module
 
 
 def search(
@@ -103,33 +109,56 @@ def search(
     SearchResult
         With its code re-verified to have minimum distance at least ``params.d``.
     """
+    spec = METHODS.get(method)
+    if spec is None:
+        raise ParameterError(f"unknown search method {method!r}; choose from {', '.join(METHODS)}")
+    return run_method(spec, params, time_limit=time_limit, seed=seed, progress=progress,
+                      options=options)
+
+
+_UNSET: Any = object()
+
+
+def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = None,
+               seed: int | None = None, progress: Callable[[dict[str, Any]], None] | None = None,
+               options: Mapping[str, Any] | None = None,
+               bound: BoundResult | None = _UNSET) -> SearchResult:
+    """:func:`search` for a registry entry given whole (a table run ships the entries it
+    resolved to its workers; the portfolio shares its known bound with its steps).
+
+    ``bound`` is the cell's least usable upper bound when the caller has it already (None:
+    no usable bound is known); left out, it is computed when the method first asks.
+    """
     from codesearch import verify
 
     if not isinstance(params, Params):
         raise ParameterError(f"params must be a Params, got {type(params).__name__}")
-    spec = METHODS.get(method)
-    if spec is None:
-        raise ParameterError(f"unknown search method {method!r}; choose from {', '.join(METHODS)}")
     if time_limit is not None and not time_limit > 0:
         raise ParameterError(f"time limit must be positive, got {time_limit}")
     module = _load(spec)
+    options = dict(options or {})
     unknown = set(options) - set(module.OPTIONS)
     if unknown:
         raise ParameterError(
-            f"method {method!r} does not take option(s) {', '.join(sorted(unknown))}"
+            f"method {spec.name!r} does not take option(s) {', '.join(sorted(unknown))}"
         )
-    start = time.perf_counter()
-    result: SearchResult = module.run(
-        params, time_limit=time_limit, seed=seed, progress=progress, **options
-    )
-    if result.code is not None:
-        verify.assert_code(result.code, params)
-    if not spec.exhaustive and result.status in (Status.OPTIMAL, Status.INFEASIBLE):
-        raise VerificationError(f"heuristic method {method!r} claimed {result.status.value}")
-    if result.status is Status.OPTIMAL and (result.code is None or result.upper != result.size):
-        raise VerificationError(f"method {method!r} claimed optimality without a matching code")
-    if result.method != method:
-        result = dataclasses.replace(result, method=method)
-    if result.seconds <= 0:
-        result = dataclasses.replace(result, seconds=time.perf_counter() - start)
-    return result
+    size = options.pop("size", None)
+    target = None if size is None else positive_int(size, "size")
+    seeding = getattr(module, "SEEDING", "none")
+    ctx = Context(params, time_limit=time_limit, seed=resolve_seed(seed, seeding),
+                  target=target, progress=progress,
+                  **({} if bound is _UNSET else {"bound": bound}))
+    out: Outcome = module.run(ctx, **options)
+    seconds = time.perf_counter() - ctx.start  # the search's own time, before the re-check
+    if not isinstance(out, Outcome):
+        raise TypeError(f"method {spec.name!r} returned {type(out).__name__}, not an Outcome")
+    if out.code is not None:
+        verify.assert_code(out.code, params)
+    upper = None if out.upper is None or not spec.exhaustive else int(out.upper)
+    settings = dict(out.settings)
+    settings.setdefault("time_limit", time_limit)
+    if "size" in module.OPTIONS:
+        settings.setdefault("size", target)
+    settings["version"] = __version__
+    return SearchResult(params, status_of(out.code, upper, target), out.code, upper, spec.name,
+                        seconds, int(out.nodes), ctx.seed, settings, target)

@@ -1,7 +1,8 @@
 """Words as integer indices, and Hamming balls as reusable patterns.
 
-Shared plumbing of the heuristic searchers (:mod:`codesearch.search.greedy`,
-:mod:`codesearch.search.local`). A word ``(x_0, ..., x_{n-1})`` over ``0..q-1`` has index
+Shared plumbing of the searchers that work on word indices (:mod:`codesearch.search.greedy`,
+:mod:`codesearch.search.lexicode`, :mod:`codesearch.search.local`,
+:mod:`codesearch.search.sat`). A word ``(x_0, ..., x_{n-1})`` over ``0..q-1`` has index
 ``sum_j x_j q**(n-1-j)``, so index order is lexicographic order. A Hamming ball of radius r is
 described once, relative to its centre: XOR masks for q = 2, otherwise a CSR list of
 (coordinate, added symbol) changes. The kernels in :mod:`codesearch._kernels` apply them.
@@ -15,6 +16,7 @@ from math import comb
 import numpy as np
 
 from codesearch.errors import ParameterError
+from codesearch.model import Code, Params
 
 __all__ = [
     "MAX_INDEX_SPACE",
@@ -23,7 +25,8 @@ __all__ = [
     "ball_patterns",
     "powers",
     "indices_to_words",
-    "words_to_indices",
+    "code_of_indices",
+    "xorshift_state",
 ]
 
 #: Word indices must fit an int64 with room for arithmetic on them.
@@ -81,8 +84,15 @@ def indices_to_words(idx: np.ndarray, q: int, n: int) -> np.ndarray:
     return out
 
 
-def words_to_indices(words: np.ndarray, q: int) -> np.ndarray:
-    """Inverse of :func:`indices_to_words`."""
-    words = np.asarray(words, dtype=np.int64)
-    n = words.shape[1]
-    return words @ powers(q, n)
+def code_of_indices(idx: np.ndarray | None, params: Params) -> Code | None:
+    """The code whose words have the given indices (sorted), or None for no index."""
+    if idx is None or np.asarray(idx).size == 0:
+        return None
+    return Code(indices_to_words(np.sort(idx), params.q, params.n), params.q)
+
+
+def xorshift_state(seed: int, stream: int) -> np.ndarray:
+    """xorshift64* state of the heuristic kernels, derived from (seed, stream) through numpy's
+    SeedSequence (never 0)."""
+    word = np.random.SeedSequence([seed, stream]).generate_state(1, dtype=np.uint64)
+    return np.array([word[0] | np.uint64(1)], dtype=np.uint64)

@@ -14,10 +14,11 @@ The portfolio runs, in order, while time remains and the best code is below the 
 4. the exact search when the space is small enough to finish;
 5. SAT for the one step above the best code found (a "no" proves ``A_q(n,d) <= best``).
 
-Every step goes through :func:`codesearch.search.search`, so every code is re-verified, and a
-step whose method is not registered, not installed, or rejects the cell is skipped and logged.
-The result is OPTIMAL only when the best code's size equals a proven upper bound: a usable
-bound from :mod:`codesearch.bounds`, or the ``upper`` of an exhaustive method. The methods that
+Every step goes through the search front end, so every code is re-verified, and a step whose
+method is not registered, not installed, or rejects the cell (or an option) is skipped and
+logged. The cell's known bound is computed once and shared with the steps. The result is
+OPTIMAL only when the best code's size equals a proven upper bound: a usable bound from
+:mod:`codesearch.bounds`, or the ``upper`` of an exhaustive method. The methods that
 produced the code and the bound are recorded as ``settings["lower_method"]`` and
 ``settings["upper_method"]``.
 
@@ -30,17 +31,17 @@ References
 from __future__ import annotations
 
 import time
-from typing import Any, Callable, Sequence
+from typing import Any, Sequence
 
-from codesearch._version import __version__
 from codesearch.errors import ParameterError, VerificationError
-from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
+from codesearch.model import Code
+from codesearch.search.base import Context, Outcome
 
-__all__ = ["OPTIONS", "run", "natural_groups", "DEFAULT_BUDGET"]
+__all__ = ["OPTIONS", "SEEDING", "run", "natural_groups", "DEFAULT_BUDGET"]
 
 #: Options accepted by :func:`run`.
 OPTIONS = frozenset({"group", "exact_max_words"})
+SEEDING = "fixed"
 
 #: Budget in seconds when no time limit is given (the portfolio needs one to share out).
 DEFAULT_BUDGET = 60.0
@@ -95,35 +96,77 @@ def _primitive_root(p: int) -> int:
     return next(a for a in range(2, p) if all(pow(a, (p - 1) // f, p) != 1 for f in factors))
 
 
-def _bound(params: Params) -> tuple[int | None, str | None, str]:
-    """Best usable upper bound from the bounds front end, if it exists yet."""
-    try:
-        from codesearch import bounds
-        result = bounds.upper_bound(params)
-    except (ImportError, AttributeError, NotImplementedError) as exc:
-        return None, None, f"bounds: unavailable ({type(exc).__name__})"
-    if result is None or not getattr(result, "usable", False):
-        return None, None, "bounds: no usable bound"
-    return int(result.value), f"bound:{result.method}", f"bounds: {result.value} ({result.method})"
+class _Portfolio:
+    """The best code and the best proven bound so far, and the log of the steps."""
+
+    def __init__(self, ctx: Context, budget: float) -> None:
+        self.ctx = ctx
+        self.budget = budget
+        self.deadline = ctx.start + budget
+        self.best: Code | None = None
+        self.lower_method: str | None = None
+        self.upper: int | None = ctx.known_upper
+        bound = ctx.bound
+        self.upper_method = None if bound is None else f"bound:{bound.method}"
+        self.log = [f"bounds: {bound.value} ({bound.method})" if bound is not None
+                    else "bounds: no usable bound"]
+        self.nodes = 0
+
+    @property
+    def size(self) -> int:
+        return 0 if self.best is None else self.best.size
+
+    def done(self) -> bool:
+        return (self.upper is not None and self.best is not None and self.size >= self.upper) \
+            or time.perf_counter() >= self.deadline
+
+    def step(self, name: str, method: str, share: float, **options: Any) -> None:
+        """Run one method for at most ``share`` of the budget and keep what it proved."""
+        from codesearch.search import METHODS, run_method
+
+        if self.done():
+            return
+        spec = METHODS.get(method)
+        if spec is None:
+            self.log.append(f"{name}: skipped (method not registered)")
+            return
+        limit = max(0.05, min(self.deadline - time.perf_counter(), share * self.budget))
+        try:
+            res = run_method(spec, self.ctx.params, time_limit=limit, seed=self.ctx.seed,
+                             progress=self.ctx.progress, options=options, bound=self.ctx.bound)
+        except ImportError as exc:
+            self.log.append(f"{name}: skipped ({type(exc).__name__})")
+            return
+        except (ParameterError, NotImplementedError, MemoryError) as exc:
+            self.log.append(f"{name}: skipped ({str(exc).splitlines()[0] if str(exc) else exc!r})")
+            return
+        self.nodes += int(res.nodes)
+        if res.code is not None and res.size > self.size:
+            self.best, self.lower_method = res.code, name
+        # the front end keeps an upper bound only from exhaustive methods
+        if res.upper is not None and (self.upper is None or res.upper < self.upper):
+            self.upper, self.upper_method = int(res.upper), name
+        self.log.append(f"{name}: size {res.size}, {res.status.value}, upper {res.upper}, "
+                        f"{res.seconds:.2f}s")
+        if self.upper is not None and self.upper < self.size:
+            raise VerificationError(
+                f"upper bound {self.upper} ({self.upper_method}) is below a verified code of "
+                f"size {self.size} ({self.lower_method})")
+        self.ctx.report(step=name, best=self.size, incumbent=self.size, upper=self.upper,
+                        nodes=self.nodes)
 
 
-def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
-        progress: Callable[[dict[str, Any]], None] | None = None,
-        group: Sequence[str] | str | None = None,
-        exact_max_words: int = DEFAULT_EXACT_MAX_WORDS) -> SearchResult:
+def run(ctx: Context, *, group: Sequence[str] | str | None = None,
+        exact_max_words: int = DEFAULT_EXACT_MAX_WORDS) -> Outcome:
     """Run the portfolio on one cell.
 
     Parameters
     ----------
-    params : Params
-        The cell.
-    time_limit : float, optional
-        Total budget in seconds (default :data:`DEFAULT_BUDGET`).
-    seed : int, optional
-        Seed passed to every randomised step (default 0; recorded).
-    progress : callable, optional
-        Passed to every step's search, and called after every step with ``{"step", "best",
-        "incumbent", "upper", "nodes", "elapsed"}`` (portfolio totals).
+    ctx : Context
+        The cell; its time limit is the total budget (default :data:`DEFAULT_BUDGET`), its
+        seed goes to every randomised step, its progress callback to every step's search and
+        after every step ``{"step", "best", "incumbent", "upper", "nodes", "elapsed"}``
+        (portfolio totals).
     group : sequence of str or str, optional
         Group specs for the orbit step (a string is split on ``;``, so the same
         ``--group`` option serves ``orbit`` and ``auto``); default :func:`natural_groups`.
@@ -132,109 +175,41 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
 
     Returns
     -------
-    SearchResult
-        OPTIMAL when the best code meets a proven upper bound, else FEASIBLE (UNKNOWN when no
-        step produced a code). ``upper`` is the best proven bound or None.
+    Outcome
+        The best code and the best proven upper bound (None when none is known).
 
     Raises
     ------
     VerificationError
         If a proven upper bound is below the size of a verified code (a bug somewhere).
     """
-    from codesearch.search import METHODS, search
-
-    start = time.perf_counter()
-    budget = DEFAULT_BUDGET if time_limit is None else float(time_limit)
-    deadline = start + budget
-    seed = 0 if seed is None else int(seed)
+    params = ctx.params
+    budget = DEFAULT_BUDGET if ctx.time_limit is None else float(ctx.time_limit)
     if group is None:
         group_list = natural_groups(params.q, params.n)
     elif isinstance(group, str):
         group_list = [g.strip() for g in group.split(";") if g.strip()]
     else:
         group_list = [str(g) for g in group]
-
-    log: list[str] = []
-    best: Code | None = None
-    lower_method: str | None = None
-    upper, upper_method, note = _bound(params)
-    log.append(note)
-    nodes = 0
-
-    def done() -> bool:
-        return (best is not None and upper is not None and best.size >= upper) or \
-            time.perf_counter() >= deadline
-
-    def step(name: str, method: str, share: float, **options: Any) -> None:
-        nonlocal best, lower_method, upper, upper_method, nodes
-        if done():
-            return
-        spec = METHODS.get(method)
-        if spec is None:
-            log.append(f"{name}: skipped (method not registered)")
-            return
-        remaining = deadline - time.perf_counter()
-        limit = max(0.05, min(remaining, share * budget))
-        try:
-            module = __import__(spec.module, fromlist=["OPTIONS"])
-            accepted = set(getattr(module, "OPTIONS", ()))
-            res = search(params, method, time_limit=limit, seed=seed, progress=progress,
-                         **{k: v for k, v in options.items() if k in accepted})
-        except ImportError as exc:
-            log.append(f"{name}: skipped ({type(exc).__name__})")
-            return
-        except (ParameterError, NotImplementedError, MemoryError) as exc:
-            log.append(f"{name}: skipped ({str(exc).splitlines()[0] if str(exc) else exc!r})")
-            return
-        nodes += int(res.nodes)
-        if res.code is not None and (best is None or res.size > best.size):
-            best, lower_method = res.code, name
-        if spec.exhaustive and res.upper is not None and (upper is None or res.upper < upper):
-            upper, upper_method = int(res.upper), name
-        log.append(f"{name}: size {res.size}, {res.status.value}, upper {res.upper}, "
-                   f"{res.seconds:.2f}s")
-        if best is not None and upper is not None and upper < best.size:
-            raise VerificationError(
-                f"upper bound {upper} ({upper_method}) is below a verified code of size "
-                f"{best.size} ({lower_method})")
-        if progress is not None:
-            size = 0 if best is None else best.size
-            progress({"step": name, "best": size, "incumbent": size, "upper": upper,
-                      "nodes": nodes, "elapsed": time.perf_counter() - start})
-
-    step("lexicode", "lexicode", 0.05)
-    step("greedy", "greedy", 0.05)
+    pf = _Portfolio(ctx, budget)
+    pf.step("lexicode", "lexicode", 0.05)
+    pf.step("greedy", "greedy", 0.05)
     # Orbit searches before the local search: on structured cells they are the cheap winners.
     if params.space_size <= _ORBIT_MAX_WORDS:
         share = 0.4 / max(1, len(group_list))
         for spec_text in group_list:
             # An orbit search stops early once it meets the best proven bound.
-            step(f"orbit[{spec_text}]", "orbit", share, group=spec_text, size=upper)
-    step("local", "local", 0.10)
+            pf.step(f"orbit[{spec_text}]", "orbit", share, group=spec_text, size=pf.upper)
+    pf.step("local", "local", 0.10)
     if params.space_size <= exact_max_words:
-        step("exact", "exact", 0.25)
-    if best is not None and not done():
-        step("sat", "sat", 1.0, size=best.size + 1)
-
-    optimal = best is not None and upper is not None and best.size == upper
-    settings = {
-        "lower_method": lower_method,
-        "upper_method": upper_method,
+        pf.step("exact", "exact", 0.25)
+    if pf.best is not None and not pf.done():
+        pf.step("sat", "sat", 1.0, size=pf.size + 1)
+    return Outcome(pf.best, pf.upper, pf.nodes, {
+        "lower_method": pf.lower_method,
+        "upper_method": pf.upper_method,
         "budget": budget,
         "groups": ";".join(group_list),
         "exact_max_words": exact_max_words,
-        "steps": tuple(log),
-        "version": __version__,
-    }
-    return SearchResult(
-        params=params,
-        status=Status.OPTIMAL if optimal else (Status.FEASIBLE if best is not None
-                                               else Status.UNKNOWN),
-        code=best,
-        upper=upper,
-        method="auto",
-        seconds=time.perf_counter() - start,
-        nodes=nodes,
-        seed=seed,
-        settings=settings,
-    )
+        "steps": tuple(pf.log),
+    })

@@ -43,14 +43,14 @@ from typing import Any, Callable
 
 import numpy as np
 
-from codesearch._version import __version__
 from codesearch.errors import ParameterError
 from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
+from codesearch.search.base import Context, Outcome
 
-__all__ = ["OPTIONS", "run", "known_upper", "load_kernels"]
+__all__ = ["OPTIONS", "SEEDING", "run", "load_kernels"]
 
 OPTIONS = frozenset({"size", "reduce", "leaf_size", "max_fixed", "use_bounds"})
+SEEDING = "none"
 
 _DEFAULT_LEAF = 96
 _DEFAULT_MAX_FIXED = 4
@@ -74,25 +74,6 @@ def load_kernels() -> float:
     start = time.perf_counter()
     search(Params(2, 5, 3), "exact", use_bounds=False)
     return time.perf_counter() - start
-
-
-def known_upper(params: Params) -> int | None:
-    """A usable upper bound on ``A_q(n,d)`` from :mod:`codesearch.bounds`, if that exists.
-
-    The bounds module is written in parallel; any failure to import or evaluate it simply
-    means "no bound known" (the search then proves everything itself).
-    """
-    try:
-        from codesearch.bounds import upper_bound  # type: ignore[attr-defined]
-    except ImportError:
-        return None
-    try:
-        res = upper_bound(params)
-    except Exception:  # noqa: BLE001 - an unfinished bounds module must not break searches
-        return None
-    if getattr(res, "usable", False):
-        return int(res.value)
-    return None
 
 
 class _Search:
@@ -222,34 +203,17 @@ def _node_bound(sub: Any, params: Params) -> int:
     return k + int(classes)
 
 
-def run(
-    params: Params,
-    *,
-    time_limit: float | None = None,
-    seed: int | None = None,
-    progress: Callable[[dict[str, Any]], None] | None = None,
-    size: int | None = None,
-    reduce: bool = True,
-    leaf_size: int = _DEFAULT_LEAF,
-    max_fixed: int = _DEFAULT_MAX_FIXED,
-    use_bounds: bool = True,
-) -> SearchResult:
+def run(ctx: Context, *, reduce: bool = True, leaf_size: int = _DEFAULT_LEAF,
+        max_fixed: int = _DEFAULT_MAX_FIXED, use_bounds: bool = True) -> Outcome:
     """Exact search of one cell (see the module docstring).
 
     Parameters
     ----------
-    params : Params
-        The cell.
-    time_limit : float, optional
-        Wall-clock budget; on expiry the best code and the bound proved so far are returned.
-    seed : int, optional
-        Unused (the search is deterministic); recorded.
-    progress : callable, optional
-        Receives ``{"nodes", "incumbent", "leaves", "elapsed"}`` now and then.
-    size : int, optional
-        Decide whether a code of this size exists instead of maximising: stop at the first
-        such code (FEASIBLE) or prove none exists (INFEASIBLE, ``upper = size - 1``). The
-        result records it as ``target``.
+    ctx : Context
+        The cell and clock. On the time limit the best code and the bound proved so far are
+        returned. With a target size (option ``size``), decide whether a code of that size
+        exists instead of maximising: stop at the first such code or prove none exists
+        (``upper = size - 1``).
     reduce : bool
         Apply the symmetry reductions (default). ``False`` runs the plain clique search on
         all ``q^n`` words (for tests and comparisons).
@@ -257,26 +221,13 @@ def run(
         Split a node by orbits while it has more than ``leaf_size`` candidates and fewer than
         ``max_fixed`` fixed words.
     use_bounds : bool
-        Consult :mod:`codesearch.bounds` (default): stop when the incumbent meets a usable
-        upper bound of the cell, and use its bound on ``A_q(n,d+1)`` first. ``False`` makes
-        the search prove everything by itself (benchmarks, independent cross-checks).
-
-    Returns
-    -------
-    SearchResult
-        OPTIMAL with ``upper == size`` when proved; INFEASIBLE for a refuted target;
-        otherwise FEASIBLE (or UNKNOWN) with the proved ``upper``.
+        Use the cell's known upper bound (default): stop when the incumbent meets it, and use
+        the bound on ``A_q(n,d+1)`` first. ``False`` makes the search prove everything by
+        itself (benchmarks, independent cross-checks).
     """
     from codesearch.search import graph
 
-    start = time.perf_counter()
-    deadline = None if time_limit is None else start + float(time_limit)
-    q, n, d = params.q, params.n, params.d
-    target = size
-    if target is not None:
-        if isinstance(target, bool) or not isinstance(target, (int, np.integer)) or target < 1:
-            raise ParameterError(f"size must be a positive integer, got {target!r}")
-        target = int(target)
+    q, n = ctx.params.q, ctx.params.n
     if int(leaf_size) < 1 or int(max_fixed) < 1:
         raise ParameterError("leaf_size and max_fixed must be positive")
     if q**n > graph.MAX_SPACE:
@@ -288,74 +239,74 @@ def run(
             f"the unreduced search takes all q^n = {q}^{n} words as one graph; limit is "
             f"{graph.MAX_LEAF} (use the reductions)"
         )
-    ext = known_upper(params) if use_bounds else None
+    return _solve(ctx, bool(reduce), int(leaf_size), int(max_fixed), bool(use_bounds))
+
+
+def _solve(ctx: Context, reduce: bool, leaf_size: int, max_fixed: int,
+           use_bounds: bool) -> Outcome:
+    """The search behind :func:`run` (options checked)."""
+    from codesearch.search import graph
+
+    params, target = ctx.params, ctx.target
+    ext = ctx.known_upper if use_bounds else None
+    settings: dict[str, Any] = {"reduce": reduce, "leaf_size": leaf_size,
+                                "max_fixed": max_fixed, "numba": _numba_version(),
+                                "known_upper": ext, "use_bounds": use_bounds}
     if target is not None and ext is not None and ext < target:
         # A usable bound already refutes the requested size: nothing to search.
-        return SearchResult(params, Status.INFEASIBLE, None, int(ext), "exact",
-                            time.perf_counter() - start, 0, seed,
-                            {"target": target, "known_upper": ext, "version": __version__},
-                            target)
+        return Outcome(None, ext, 0, settings)
     stop_at = target if target is not None else ext
     best0 = (target - 1) if target is not None else 0
-    s = _Search(params, deadline, start, progress, stop_at, best0, int(leaf_size),
-                int(max_fixed))
+    s = _Search(params, ctx.deadline, ctx.start, ctx.progress, stop_at, best0, leaf_size,
+                max_fixed)
     s.known_upper = ext
-    settings: dict[str, Any] = {"reduce": bool(reduce), "leaf_size": int(leaf_size),
-                                "max_fixed": int(max_fixed), "time_limit": time_limit,
-                                "target": target, "version": __version__,
-                                "numba": _numba_version(),
-                                "known_upper": ext, "use_bounds": bool(use_bounds)}
-    even = bool(reduce) and graph.even_weight_suffices(q, d)
+    even = reduce and graph.even_weight_suffices(params.q, params.d)
     settings["even_weight_only"] = even
-    root = graph.root(q, n, d, even=even)
-    skipped_bound: int | None = None
-    whole = min(s.leaf_size, _WHOLE_SPACE)
-    if not reduce or root.candidates.shape[0] <= whole:
-        # No reductions, or a space so small that one clique search of all of it is quicker
-        # than splitting it by orbits (and equally exhaustive).
-        s.max_fixed = 0
-        s.walk(root)
-    else:
-        zero_node = graph.orbit_split(root, q, d)[0]  # one orbit: the zero word
-        if zero_node.candidates.shape[0] <= whole:
-            children = [zero_node]  # small enough to be one leaf: no split by weight
-        else:
-            children = graph.orbit_split(zero_node, q, d, first_weight=d)
-        if zero_node.fixed.shape[0] > s.best:
-            s.best, s.code = 1, zero_node.fixed.copy()
-            s.stopped = s.goal_met()
-        for idx, child in enumerate(children):
-            s.walk(child)
-            if idx == 0 and not s.stopped and len(children) > 1:
-                # Weight-d child done: is the rest needed? Only if the incumbent does not
-                # exceed an upper bound on A_q(n,d+1) (distance_d_pair_suffices).
-                u_next = _upper_next(params, s, settings)
-                if u_next is not None and s.best >= u_next:
-                    skipped_bound = u_next
-                    settings["skipped_by_pair_argument"] = True
-                    break
+    skipped_bound = _walk_from_root(s, ctx, graph.root(params.q, params.n, params.d, even=even),
+                                    reduce, settings)
     s.report(force=True)
-
-    code = None if s.code is None else Code(s.code, q)
-    size = 0 if code is None else code.size
     if s.stopped:
         upper = max(s.best, s.pending_upper)
     else:
         upper = s.best if skipped_bound is None else max(s.best, skipped_bound)
     if ext is not None:
         upper = min(upper, ext)
-    if target is not None:
-        if size >= target:
-            status = Status.FEASIBLE if upper != size else Status.OPTIMAL
-        elif upper < target:
-            status = Status.INFEASIBLE
-        else:
-            status = Status.UNKNOWN
+    code = None if s.code is None else Code(s.code, params.q)
+    return Outcome(code, int(upper), int(s.nodes), settings)
+
+
+def _walk_from_root(s: _Search, ctx: Context, root: Any, reduce: bool,
+                    settings: dict[str, Any]) -> int | None:
+    """Search the tree below the root; returns the bound on ``A_q(n,d+1)`` that made the
+    other second-word weights unnecessary, if it did."""
+    from codesearch.search import graph
+
+    q, d = ctx.params.q, ctx.params.d
+    whole = min(s.leaf_size, _WHOLE_SPACE)
+    if not reduce or root.candidates.shape[0] <= whole:
+        # No reductions, or a space so small that one clique search of all of it is quicker
+        # than splitting it by orbits (and equally exhaustive).
+        s.max_fixed = 0
+        s.walk(root)
+        return None
+    zero_node = graph.orbit_split(root, q, d)[0]  # one orbit: the zero word
+    if zero_node.candidates.shape[0] <= whole:
+        children = [zero_node]  # small enough to be one leaf: no split by weight
     else:
-        status = Status.OPTIMAL if (code is not None and upper == size) else (
-            Status.FEASIBLE if code is not None else Status.UNKNOWN)
-    return SearchResult(params, status, code, int(upper), "exact",
-                        time.perf_counter() - start, int(s.nodes), seed, settings, target)
+        children = graph.orbit_split(zero_node, q, d, first_weight=d)
+    if zero_node.fixed.shape[0] > s.best:
+        s.best, s.code = 1, zero_node.fixed.copy()
+        s.stopped = s.goal_met()
+    for idx, child in enumerate(children):
+        s.walk(child)
+        if idx == 0 and not s.stopped and len(children) > 1:
+            # Weight-d child done: is the rest needed? Only if the incumbent does not
+            # exceed an upper bound on A_q(n,d+1) (distance_d_pair_suffices).
+            u_next = _upper_next(ctx, s, settings)
+            if u_next is not None and s.best >= u_next:
+                settings["skipped_by_pair_argument"] = True
+                return u_next
+    return None
 
 
 def _numba_version() -> str:
@@ -364,21 +315,22 @@ def _numba_version() -> str:
     return str(numba.__version__)
 
 
-def _upper_next(params: Params, s: _Search, settings: dict[str, Any]) -> int | None:
-    """An upper bound on ``A_q(n, d+1)``: 1 past the length, else the bounds module, else a
-    recursive exact search on ``(n, d+1)`` within the remaining time (its proved ``upper``)."""
-    q, n, d = params.q, params.n, params.d
+def _upper_next(ctx: Context, s: _Search, settings: dict[str, Any]) -> int | None:
+    """An upper bound on ``A_q(n, d+1)``: 1 past the length, else the known bound of that
+    cell, else a recursive exact search on ``(n, d+1)`` within the remaining time (its proved
+    ``upper``)."""
+    q, n, d = ctx.params.q, ctx.params.n, ctx.params.d
     if d + 1 > n:
         return 1
-    nxt = Params(q, n, d + 1)
-    ext = known_upper(nxt) if settings["use_bounds"] else None
+    sub = ctx.for_cell(Params(q, n, d + 1))
+    use_bounds = settings["use_bounds"]
+    ext = sub.known_upper if use_bounds else None
     if ext is not None and s.best >= ext:
         settings["upper_next"] = {"value": ext, "source": "bounds"}
         return ext
-    left = s.time_left()
-    res = run(nxt, time_limit=left, use_bounds=settings["use_bounds"])
+    res = _solve(sub, True, _DEFAULT_LEAF, _DEFAULT_MAX_FIXED, use_bounds)
     s.nodes += res.nodes
     value = res.upper if ext is None else min(ext, res.upper)
     settings["upper_next"] = {"value": value, "source": "exact",
-                              "optimal": res.status is Status.OPTIMAL}
+                              "optimal": res.code is not None and res.upper == res.code.size}
     return value

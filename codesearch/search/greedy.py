@@ -29,21 +29,21 @@ F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, Nor
 
 from __future__ import annotations
 
-import secrets
 import time
 from typing import Any, Callable
 
 import numpy as np
 
 from codesearch.errors import ParameterError
-from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
+from codesearch.model import Params
 from codesearch.search import _wordspace as ws
+from codesearch.search.base import Context, Outcome, positive_int
 
-__all__ = ["OPTIONS", "ORDERS", "run", "greedy_indices"]
+__all__ = ["OPTIONS", "SEEDING", "ORDERS", "run", "greedy_indices"]
 
 #: Options of the ``greedy`` method.
 OPTIONS = frozenset({"order", "restarts", "size"})
+SEEDING = "random"
 
 #: Scan orders: name -> kernel order code.
 ORDERS = {"lex": 0, "gray": 1, "random": 2}
@@ -63,28 +63,6 @@ _SAMPLE_DRAWS = 4096
 MAX_BALL = 2**23
 #: Scan positions per kernel call, between time-limit checks.
 _CHUNK = 1 << 20
-
-
-def _resolve_seed(seed: int | None) -> int:
-    if seed is None:
-        return secrets.randbits(63)
-    if not isinstance(seed, (int, np.integer)) or seed < 0:
-        raise ParameterError(f"seed must be a non-negative integer, got {seed!r}")
-    return int(seed)
-
-
-def _rng_state(seed: int, stream: int) -> np.ndarray:
-    """xorshift64* state derived from (seed, stream) through numpy's SeedSequence (never 0)."""
-    word = np.random.SeedSequence([seed, stream]).generate_state(1, dtype=np.uint64)
-    return np.array([word[0] | np.uint64(1)], dtype=np.uint64)
-
-
-def _check_size(size: Any) -> int | None:
-    if size is None:
-        return None
-    if isinstance(size, bool) or not isinstance(size, (int, np.integer)) or size < 1:
-        raise ParameterError(f"size must be a positive integer, got {size!r}")
-    return int(size)
 
 
 def greedy_indices(
@@ -132,7 +110,7 @@ def greedy_indices(
     kind = ORDERS[order]
     if order == "random" and space > MAX_PERM_SPACE:
         # pairwise checks cost O(M^2): stop at MAX_SAMPLED words (the code is still valid)
-        rng = _rng_state(seed, stream)
+        rng = ws.xorshift_state(seed, stream)
         out = np.empty(min(cap, MAX_SAMPLED), dtype=np.int64)
         fail_state = np.zeros(1, dtype=np.int64)
         count = 0
@@ -181,81 +159,38 @@ def greedy_indices(
     return out[:count].copy(), t >= space, t
 
 
-def _make_code(idx: np.ndarray, params: Params) -> Code:
-    return Code(ws.indices_to_words(np.sort(idx), params.q, params.n), params.q)
-
-
-def run(
-    params: Params,
-    *,
-    time_limit: float | None = None,
-    seed: int | None = None,
-    progress: Callable[[dict[str, Any]], None] | None = None,
-    order: str = "random",
-    restarts: int | None = None,
-    size: int | None = None,
-) -> SearchResult:
+def run(ctx: Context, *, order: str = "random", restarts: int | None = None) -> Outcome:
     """Greedy packing in a scan order, restarted for random orders; keeps the largest code.
 
     Parameters
     ----------
+    ctx : Context
+        The cell, clock, seed and target (option ``size``: stop at a code of that size).
     order : {"random", "lex", "gray"}
         Scan order (lex and gray are deterministic: one pass).
     restarts : int, optional
-        Number of random-order passes (default: until ``time_limit``, or 10 without one).
-    size : int, optional
-        Stop as soon as a code of this size is found (recorded as the target).
-
-    Returns
-    -------
-    SearchResult
-        Status FEASIBLE (UNKNOWN if time ran out before any word was kept).
+        Number of random-order passes (default: until the time limit, or 10 without one).
     """
-    start = time.perf_counter()
-    target = _check_size(size)
-    seed_used = _resolve_seed(seed)
-    deadline = None if time_limit is None else start + time_limit
     if order not in ORDERS:
         raise ParameterError(f"unknown greedy order {order!r}; choose from {', '.join(ORDERS)}")
-    if restarts is not None and (not isinstance(restarts, (int, np.integer)) or restarts < 1):
-        raise ParameterError(f"restarts must be a positive integer, got {restarts!r}")
-    passes = 1 if order != "random" else (restarts or (None if time_limit else 10))
+    if restarts is not None:
+        positive_int(restarts, "restarts")
+    passes = 1 if order != "random" else (restarts or (None if ctx.time_limit else 10))
     best = np.empty(0, dtype=np.int64)
     scanned_total = 0
     done = 0
     sizes = []
     while passes is None or done < passes:
-        idx, complete, scanned = greedy_indices(params, order, seed=seed_used, stream=done,
-                                                deadline=deadline, progress=None)
+        idx, complete, scanned = greedy_indices(ctx.params, order, seed=ctx.seed, stream=done,
+                                                deadline=ctx.deadline, progress=None)
         done += 1
         scanned_total += scanned
         sizes.append(int(idx.size))
         if idx.size > best.size:
             best = idx
-            if progress is not None:
-                progress({"incumbent": int(best.size), "nodes": scanned_total,
-                          "elapsed": time.perf_counter() - start})
-        if target is not None and best.size >= target:
+            ctx.report(incumbent=int(best.size), nodes=scanned_total)
+        if (ctx.target is not None and best.size >= ctx.target) or ctx.expired():
             break
-        if deadline is not None and time.perf_counter() > deadline:
-            break
-    code = _make_code(best, params) if best.size else None
-    return SearchResult(
-        params=params,
-        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
-        code=code,
-        upper=None,
-        method="greedy",
-        seconds=time.perf_counter() - start,
-        nodes=scanned_total,
-        seed=seed_used if order == "random" else None,
-        settings={"order": order, "passes": done, "restarts": restarts, "time_limit": time_limit,
-                  "pass_sizes": sizes[:100], "size": target, "version": _version()},
-        target=target,
-    )
-
-
-def _version() -> str:
-    from codesearch._version import __version__
-
-    return __version__
+    return Outcome(ws.code_of_indices(best, ctx.params), nodes=scanned_total,
+                   settings={"order": order, "passes": done, "restarts": restarts,
+                             "pass_sizes": sizes[:100]})

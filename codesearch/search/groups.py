@@ -145,11 +145,6 @@ class Group:
     spec: str
     generators: tuple[Generator, ...]
 
-    @property
-    def has_translations(self) -> bool:
-        """True when some generator is a translation."""
-        return any(g.kind == "translate" for g in self.generators)
-
 
 # ------------------------------------------------------------------------------ parsing
 def _blocks(text: str | None, n: int, factor: str) -> list[list[int]]:

@@ -16,46 +16,19 @@ V. Levenshtein, "A class of systematic codes", Soviet Math. Dokl. 1 (1960) 368-3
 
 from __future__ import annotations
 
-import time
-from typing import Any, Callable
-
-from codesearch.model import Params
-from codesearch.results import SearchResult, Status
+from codesearch.search import _wordspace as ws
 from codesearch.search import greedy
+from codesearch.search.base import Context, Outcome
 
-__all__ = ["OPTIONS", "run"]
+__all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size"})
+SEEDING = "none"
 
 
-def run(
-    params: Params,
-    *,
-    time_limit: float | None = None,
-    seed: int | None = None,
-    progress: Callable[[dict[str, Any]], None] | None = None,
-    size: int | None = None,
-) -> SearchResult:
-    """The lexicode of the cell (a prefix of it if ``time_limit`` cuts the scan short).
-
-    ``seed`` is ignored (the lexicode is deterministic) and recorded as None.
-    """
-    start = time.perf_counter()
-    target = greedy._check_size(size)
-    deadline = None if time_limit is None else start + time_limit
-    idx, complete, scanned = greedy.greedy_indices(params, "lex", deadline=deadline,
-                                                   progress=progress)
-    code = greedy._make_code(idx, params) if idx.size else None
-    return SearchResult(
-        params=params,
-        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
-        code=code,
-        upper=None,
-        method="lexicode",
-        seconds=time.perf_counter() - start,
-        nodes=scanned,
-        seed=None,
-        settings={"order": "lex", "complete": complete, "time_limit": time_limit,
-                  "size": target, "version": greedy._version()},
-        target=target,
-    )
+def run(ctx: Context) -> Outcome:
+    """The lexicode of the cell (a prefix of it if the time limit cuts the scan short)."""
+    idx, complete, scanned = greedy.greedy_indices(ctx.params, "lex", deadline=ctx.deadline,
+                                                   progress=ctx.progress)
+    return Outcome(ws.code_of_indices(idx, ctx.params), nodes=scanned,
+                   settings={"order": "lex", "complete": complete})

@@ -37,20 +37,20 @@ F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, Nor
 
 from __future__ import annotations
 
-import time
-from typing import Any, Callable
+from dataclasses import dataclass
 
 import numpy as np
 
 from codesearch.errors import ParameterError
 from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
 from codesearch.search import _wordspace as ws
 from codesearch.search import greedy
+from codesearch.search.base import Context, Outcome, positive_int
 
-__all__ = ["OPTIONS", "run"]
+__all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
+SEEDING = "random"
 
 #: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
 MAX_COUNT_SPACE = 2**24
@@ -73,69 +73,39 @@ def _extend_parity(words: np.ndarray) -> np.ndarray:
     return np.concatenate([words, parity[:, None]], axis=1)
 
 
-def run(
-    params: Params,
-    *,
-    time_limit: float | None = None,
-    seed: int | None = None,
-    progress: Callable[[dict[str, Any]], None] | None = None,
-    size: int | None = None,
-    steps: int | None = None,
-    tenure: int = 10,
-    parity: bool = True,
-) -> SearchResult:
-    """Tabu search raising the code size while it succeeds.
+@dataclass
+class _State:
+    """The kernels' working arrays for one cell (see :func:`_setup`)."""
 
-    Parameters
-    ----------
-    size : int, optional
-        Stop once a code of this size is found (the target).
-    steps : int, optional
-        Moves allowed at one size without success before giving up (default 2 000 000 with no
-        time limit, unlimited with one). A step budget with no time limit makes a run exactly
-        reproducible from its seed.
-    tenure : int
-        Length of the tabu list of recently removed words.
-    parity : bool
-        For binary cells with even d, search the punctured cell and extend by parity.
+    cell: Params
+    mode: int  # 1: ball counts, 2: pairwise scoring
+    cap: int
+    ball: int
+    n_cand: int
+    pw: np.ndarray
+    masks: np.ndarray
+    pat_ptr: np.ndarray
+    pat_pos: np.ndarray
+    pat_add: np.ndarray
+    counts: np.ndarray
+    words: np.ndarray
+    conf: np.ndarray
+    tabu: np.ndarray
+    rng: np.ndarray
 
-    Returns
-    -------
-    SearchResult
-        FEASIBLE with the largest conflict-free code met.
-    """
-    from codesearch import _kernels as K
+    def kernel_args(self) -> tuple:
+        return (self.pw, self.masks, self.pat_ptr, self.pat_pos, self.pat_add, self.counts)
 
-    start = time.perf_counter()
-    target = greedy._check_size(size)
-    seed_used = greedy._resolve_seed(seed)
-    if steps is not None and (not isinstance(steps, (int, np.integer)) or steps < 1):
-        raise ParameterError(f"steps must be a positive integer, got {steps!r}")
-    if not isinstance(tenure, (int, np.integer)) or not 0 <= tenure <= 10_000:
-        raise ParameterError(f"tenure must be an integer in 0..10000, got {tenure!r}")
-    if steps is None and time_limit is None:
-        steps = 2_000_000
-    deadline = None if time_limit is None else start + time_limit
-    cell, extended = _work_cell(params, bool(parity))
+
+def _setup(cell: Params, init: np.ndarray, tenure: int, seed: int) -> _State:
+    """Choose the scoring and allocate the arrays, with the initial code as words ``0..M-1``."""
     q, n, d = cell.q, cell.n, cell.d
     space = q**n
-    pw = ws.powers(q, n)
     radius = d - 1
     ball = ws.ball_size(q, n, radius)
     # sphere packing: no code exceeds space / |ball(floor((d-1)/2))|; beyond 2^20 words a
     # local search is hopeless anyway, and the cap bounds the memory of the word arrays
     cap = min(space // ws.ball_size(q, n, radius // 2), MAX_WORDS)
-
-    # initial code: one random greedy pass (stream 0 of the seed). The lexicode is kept aside
-    # as a floor: it is often larger than what the search reaches (A(15,5)), but as a start
-    # it is a rigid local optimum (measured: from the lexicode A(12,4) stays at 128, from a
-    # random greedy code it reaches 144 in a second)
-    init, _, _ = greedy.greedy_indices(cell, "random", seed=seed_used, stream=0,
-                                       deadline=deadline)
-    floor = np.empty(0, dtype=np.int64)
-    if space <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
-        floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=deadline)
-    best = init.copy()
     M = int(init.size)
     n_cand = n * (q - 1) + _N_RANDOM
     # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
@@ -146,7 +116,6 @@ def run(
         cap = min(cap, 65534)  # counts are uint16 and never exceed the code size
     empty = np.empty(0, dtype=np.int64)
     masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
-    counts = np.zeros(space if mode == 1 else 0, dtype=np.uint16)
     if mode == 1:
         if q == 2:
             masks = ws.ball_masks(n, radius)
@@ -154,71 +123,107 @@ def run(
             pat_ptr, pat_pos, pat_add = ws.ball_patterns(q, n, radius)
     words = np.zeros(cap + 1, dtype=np.int64)
     words[:M] = init
-    conf = np.zeros(cap + 1, dtype=np.int32)
     tabu = np.full(tenure + 1, -1, dtype=np.int64)
     tabu[0] = 0
-    rng = greedy._rng_state(seed_used, 1)
-    if mode == 1:
-        total = K.heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos,
-                                  pat_add, counts)
+    return _State(cell, mode, cap, ball, n_cand, ws.powers(q, n), masks, pat_ptr, pat_pos,
+                  pat_add, np.zeros(space if mode == 1 else 0, dtype=np.uint16), words,
+                  np.zeros(cap + 1, dtype=np.int32), tabu, ws.xorshift_state(seed, 1))
+
+
+def _repair(st: _State, M: int, total: int, steps: int | None, ctx: Context
+            ) -> tuple[int, int, bool]:
+    """Tabu moves at size M until no conflict is left, the step budget or the deadline.
+
+    Returns ``(conflicts left, moves made, stopped by the deadline)``.
+    """
+    from codesearch import _kernels as K
+
+    q, n, d = st.cell.q, st.cell.n, st.cell.d
+    moves = 0
+    while total > 0:
+        # about 5e7 elementary operations per kernel call, so the clock is read often
+        work = 2 * st.ball + M * st.n_cand if st.mode == 1 else 4 * st.n_cand * M
+        chunk = max(1, min(_CHUNK, 50_000_000 // work))
+        if steps is not None:
+            chunk = min(chunk, steps - moves)
+        if chunk <= 0:
+            break
+        total, done = K.heur_local_steps(q, n, d, q**n, M, st.words, st.conf, total, st.mode,
+                                         *st.kernel_args(), st.tabu, st.rng, _N_RANDOM, chunk)
+        moves += done
+        if ctx.expired():
+            return total, moves, total > 0
+    return total, moves, False
+
+
+def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
+        parity: bool = True) -> Outcome:
+    """Tabu search raising the code size while it succeeds.
+
+    Parameters
+    ----------
+    ctx : Context
+        The cell, clock, seed and target (option ``size``: stop at a code of that size).
+    steps : int, optional
+        Moves allowed at one size without success before giving up (default 2 000 000 with no
+        time limit, unlimited with one). A step budget with no time limit makes a run exactly
+        reproducible from its seed.
+    tenure : int
+        Length of the tabu list of recently removed words.
+    parity : bool
+        For binary cells with even d, search the punctured cell and extend by parity.
+    """
+    from codesearch import _kernels as K
+
+    if steps is not None:
+        steps = positive_int(steps, "steps")
+    if not isinstance(tenure, (int, np.integer)) or not 0 <= tenure <= 10_000:
+        raise ParameterError(f"tenure must be an integer in 0..10000, got {tenure!r}")
+    if steps is None and ctx.time_limit is None:
+        steps = 2_000_000
+    cell, extended = _work_cell(ctx.params, bool(parity))
+    q, n, d = cell.q, cell.n, cell.d
+    # initial code: one random greedy pass (stream 0 of the seed). The lexicode is kept aside
+    # as a floor: it is often larger than what the search reaches (A(15,5)), but as a start
+    # it is a rigid local optimum (measured: from the lexicode A(12,4) stays at 128, from a
+    # random greedy code it reaches 144 in a second)
+    init, _, _ = greedy.greedy_indices(cell, "random", seed=ctx.seed, stream=0,
+                                       deadline=ctx.deadline)
+    floor = np.empty(0, dtype=np.int64)
+    if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
+        floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=ctx.deadline)
+    st = _setup(cell, init, int(tenure), ctx.seed)
+    best, M = init.copy(), int(init.size)
+    if st.mode == 1:
+        total = K.heur_local_init(q, n, d, M, st.words, st.conf, st.mode, *st.kernel_args())
         assert total == 0  # a greedy code has no conflicts
     else:
         total = 0  # a greedy code has no conflicts: conf = 0 is exact, no O(M^2) recount
     moves = 0
-    level_moves = 0
     levels: list[int] = []
     out_of_time = False
-    while M < cap and (target is None or max(best.size, floor.size) < target):
-        total += K.heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr,
-                                   pat_pos, pat_add, counts, rng, 4 * _N_RANDOM)
+    while M < st.cap and (ctx.target is None or max(best.size, floor.size) < ctx.target):
+        total += K.heur_local_grow(q, n, d, q**n, M, st.words, st.conf, st.mode,
+                                   *st.kernel_args(), st.rng, 4 * _N_RANDOM)
         M += 1
-        level_moves = 0
-        while total > 0:
-            # about 5e7 elementary operations per kernel call, so the clock is read often
-            work = 2 * ball + M * n_cand if mode == 1 else 4 * n_cand * M
-            chunk = max(1, min(_CHUNK, 50_000_000 // work))
-            if steps is not None:
-                chunk = min(chunk, steps - level_moves)
-            if chunk <= 0:
-                break
-            total, done = K.heur_local_steps(q, n, d, space, M, words, conf, total, mode, pw,
-                                             masks, pat_ptr, pat_pos, pat_add, counts, tabu,
-                                             rng, _N_RANDOM, chunk)
-            level_moves += done
-            moves += done
-            if deadline is not None and time.perf_counter() > deadline:
-                out_of_time = total > 0
-                break
+        total, level_moves, out_of_time = _repair(st, M, total, steps, ctx)
+        moves += level_moves
         levels.append(level_moves)
         if total > 0:
             break
-        best = words[:M].copy()
-        if progress is not None:
-            progress({"incumbent": int(best.size), "nodes": moves,
-                      "elapsed": time.perf_counter() - start})
-        if deadline is not None and time.perf_counter() > deadline:
+        best = st.words[:M].copy()
+        ctx.report(incumbent=int(best.size), nodes=moves)
+        if ctx.expired():
             out_of_time = True
             break
     returned = "local search"
     if floor.size > best.size:
         best, returned = floor, "lexicode (larger than the local search reached)"
-    cwords = ws.indices_to_words(np.sort(best), q, n)
-    if extended:
-        cwords = _extend_parity(cwords)
-    code = Code(cwords, params.q) if best.size else None
-    return SearchResult(
-        params=params,
-        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
-        code=code,
-        upper=None,
-        method="local",
-        seconds=time.perf_counter() - start,
-        nodes=moves,
-        seed=seed_used,
-        settings={"size": target, "steps": steps, "tenure": int(tenure), "parity": extended,
-                  "searched_cell": [q, n, d], "scoring": "ball-counts" if mode == 1 else
-                  "pairwise", "start_size": int(init.size), "returned": returned, "moves_per_size": levels[-50:],
-                  "stopped_by_time": out_of_time, "time_limit": time_limit,
-                  "version": greedy._version()},
-        target=target,
-    )
+    code = None
+    if best.size:
+        cwords = ws.indices_to_words(np.sort(best), q, n)
+        code = Code(_extend_parity(cwords) if extended else cwords, ctx.params.q)
+    return Outcome(code, nodes=moves, settings={
+        "steps": steps, "tenure": int(tenure), "parity": extended, "searched_cell": [q, n, d],
+        "scoring": "ball-counts" if st.mode == 1 else "pairwise", "start_size": int(init.size),
+        "returned": returned, "moves_per_size": levels[-50:], "stopped_by_time": out_of_time})

@@ -38,15 +38,13 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass
-from typing import Any, Callable
 
 import numpy as np
 
-from codesearch._version import __version__
 from codesearch.errors import ParameterError, VerificationError
 from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
 from codesearch.search import groups as _groups
+from codesearch.search.base import Context, Outcome
 
 __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph", "heuristic_clique", "tabu_clique",
            "bitsets"]
@@ -54,10 +52,10 @@ __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph", "heuristic_clique", "t
 #: Options accepted by :func:`run` (see its docstring).
 OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
                      "max_orbits"})
+SEEDING = "fixed"
 
 _MODES = ("exact", "heuristic")
 DEFAULT_MAX_ORBITS = 12000
-_NETWORKX_MAX_EDGES = 2_000_000
 
 
 @dataclass(frozen=True, eq=False)
@@ -334,48 +332,6 @@ def tabu_clique(adj: np.ndarray, w: np.ndarray, start: list[int], *, iterations:
     return best, it
 
 
-class _Deadline(Exception):
-    pass
-
-
-def _exact_networkx(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
-                    deadline: float | None) -> tuple[list[int], bool, int]:
-    """Weighted clique by networkx's branch and bound, stopped at the deadline.
-
-    Returns ``(clique, complete, nodes)``; ``complete`` is True when the search finished, so
-    the clique is of maximum weight.
-    """
-    import networkx as nx
-    from networkx.algorithms.clique import MaxWeightClique
-
-    graph = nx.Graph()
-    for v in range(w.size):
-        graph.add_node(v, weight=int(w[v]))
-    rows, cols = np.nonzero(np.triu(adj, 1))
-    graph.add_edges_from(zip(rows.tolist(), cols.tolist()))
-
-    class _Timed(MaxWeightClique):
-        calls = 0
-
-        def expand(self, C, C_weight, P):  # noqa: N803 (networkx's names)
-            _Timed.calls += 1
-            if deadline is not None and _Timed.calls % 64 == 0 and time.perf_counter() > deadline:
-                raise _Deadline
-            super().expand(C, C_weight, P)
-
-    finder = _Timed(graph, "weight")
-    # Starting from the heuristic's clique only prunes more: the search still proves that no
-    # heavier clique exists before it returns.
-    finder.incumbent_nodes = list(incumbent)
-    finder.incumbent_weight = int(w[incumbent].sum()) if incumbent else 0
-    try:
-        finder.find_max_weight_clique()
-        complete = True
-    except (_Deadline, RecursionError):
-        complete = False
-    return list(finder.incumbent_nodes), complete, _Timed.calls
-
-
 def bitsets(adj: np.ndarray) -> np.ndarray:
     """Dense bool adjacency -> ``(K, ceil(K/64))`` uint64 rows; bit ``j & 63`` of word
     ``j >> 6`` of row i is set iff i ~ j (the clique engine's format)."""
@@ -389,60 +345,39 @@ def bitsets(adj: np.ndarray) -> np.ndarray:
 
 def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
                   deadline: float | None, goal: int | None
-                  ) -> tuple[list[int], bool, int, str, int | None]:
-    """Adapter to the weighted clique engine: ``(clique, complete, nodes, engine, upper)``.
+                  ) -> tuple[list[int], bool, int, int]:
+    """The weighted clique engine (:func:`codesearch.search.clique.max_weight_clique`) seeking
+    only cliques heavier than ``incumbent``: ``(clique, complete, nodes, upper)``.
 
-    Uses the project's engine :func:`codesearch.search.clique.max_weight_clique` when it is
-    available, networkx's branch and bound otherwise. ``complete`` means no heavier clique
-    exists; ``upper`` is a proven bound on the clique weight (None if unknown).
+    ``complete`` means no heavier clique exists; ``upper`` is a proven bound on the weight of
+    every clique.
     """
-    try:
-        from codesearch.search import clique as engine  # the exact-search issue's engine
-        fn = engine.max_weight_clique
-    except (ImportError, AttributeError):
-        fn = None
-    lower = int(w[incumbent].sum()) if incumbent else 0
-    if fn is not None:
-        import inspect
+    from codesearch.search import clique as engine
 
-        limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
-        accepted = inspect.signature(fn).parameters
-        extra = {k: v for k, v in (("lower", lower), ("goal", goal)) if k in accepted}
-        out = fn(bitsets(adj), w.astype(np.int64), time_limit=limit, **extra)
-        found = [int(v) for v in np.asarray(out.vertices).tolist()]
-        # With lower = the incumbent's weight the engine looks only for heavier cliques; when
-        # there is none the incumbent is the answer (and proved so if the search completed).
-        clique = found if int(w[found].sum()) > lower else list(incumbent)
-        upper = getattr(out, "upper", None)
-        return (clique, bool(out.complete), int(getattr(out, "nodes", 0)), "codesearch.clique",
-                None if upper is None else int(upper))
-    if int(adj.sum()) // 2 > _NETWORKX_MAX_EDGES:
-        # networkx holds the graph as dicts (hundreds of bytes per edge) and cannot be stopped
-        # while building it: keep the heuristic's clique instead.
-        return list(incumbent), False, 0, "none (graph too large for networkx)", None
-    clique, complete, nodes = _exact_networkx(adj, w, incumbent, deadline)
-    return clique, complete, nodes, "networkx", int(w[clique].sum()) if complete else None
+    lower = int(w[incumbent].sum()) if incumbent else 0
+    limit = None if deadline is None else max(0.01, deadline - time.perf_counter())
+    out = engine.max_weight_clique(bitsets(adj), w.astype(np.int64), time_limit=limit,
+                                   lower=lower, goal=goal)
+    found = [int(v) for v in np.asarray(out.vertices).tolist()]
+    # With lower = the incumbent's weight the engine looks only for heavier cliques; when
+    # there is none the incumbent is the answer (and proved so if the search completed).
+    clique = found if int(w[found].sum()) > lower else list(incumbent)
+    return clique, bool(out.complete), int(out.nodes), int(out.upper)
 
 
 # ------------------------------------------------------------------------------ method entry
-def run(params: Params, *, time_limit: float | None = None, seed: int | None = None,
-        progress: Callable[[dict[str, Any]], None] | None = None,
-        group: str = "cyclic", mode: str = "exact", restarts: int = 200,
-        iterations: int = 20000, size: int | None = None,
-        max_words: int = _groups.DEFAULT_MAX_WORDS,
-        max_orbits: int = DEFAULT_MAX_ORBITS) -> SearchResult:
+def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: int = 200,
+        iterations: int = 20000, max_words: int = _groups.DEFAULT_MAX_WORDS,
+        max_orbits: int = DEFAULT_MAX_ORBITS) -> Outcome:
     """Largest code found that is invariant under the group ``group``.
 
     Parameters
     ----------
-    params : Params
-        The cell.
-    time_limit : float, optional
-        Wall-clock budget in seconds for the whole run (orbits, graph, clique search).
-    seed : int, optional
-        Seed of the randomised greedy (default 0; recorded).
-    progress : callable, optional
-        Called with ``{"phase", "orbits", "incumbent", "elapsed"}`` after each phase.
+    ctx : Context
+        The cell, the clock for the whole run (orbits, graph, clique search), the seed of the
+        randomised greedy, and the target (option ``size``: stop as soon as a G-invariant
+        code of at least that many words is found). Progress receives ``{"phase",
+        "orbits", "incumbent", "elapsed"}`` after each phase.
     group : str
         Group spec (see :mod:`codesearch.search.groups`), default ``"cyclic"``.
     mode : {"exact", "heuristic"}
@@ -454,64 +389,54 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     iterations : int
         Moves of the tabu search that follows the greedy passes (see :func:`tabu_clique`),
         capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded).
-    size : int, optional
-        Stop as soon as a G-invariant code of at least this many words is found (recorded as
-        the result's ``target``).
     max_words, max_orbits : int
         Limits on ``q**n`` and on the number of admissible orbits.
 
     Returns
     -------
-    SearchResult
-        Status FEASIBLE (UNKNOWN if no orbit is admissible); ``settings["invariant_optimal"]``
-        is True when the code is proved to be a largest G-invariant code.
+    Outcome
+        A code (none if no orbit is admissible); ``settings["invariant_optimal"]`` is True when
+        the code is proved to be a largest G-invariant code. Even then nothing is proved about
+        ``A_q(n,d)``: the status stays FEASIBLE.
     """
-    start = time.perf_counter()
-    deadline = None if time_limit is None else start + time_limit
     if mode not in _MODES:
         raise ParameterError(f"orbit mode must be one of {', '.join(_MODES)}, got {mode!r}")
-    if size is not None and (isinstance(size, bool) or not isinstance(size, int) or size < 1):
-        raise ParameterError(f"size must be a positive integer, got {size!r}")
     for name, value in (("restarts", restarts), ("iterations", iterations)):
         if isinstance(value, bool) or not isinstance(value, int) or value < 0:
             raise ParameterError(f"{name} must be a non-negative integer, got {value!r}")
-    seed = 0 if seed is None else int(seed)
+    params, size = ctx.params, ctx.target
     grp = _groups.parse_group(group, params.q, params.n)
+    settings = {"group": grp.spec, "mode": mode, "restarts": restarts}
     try:
         graph = orbit_graph(params, grp, max_words=max_words, max_orbits=max_orbits,
-                            deadline=deadline)
+                            deadline=ctx.deadline)
     except _GraphTimeout as exc:
-        return SearchResult(
-            params=params, status=Status.UNKNOWN, code=None, upper=None, method="orbit",
-            seconds=time.perf_counter() - start, nodes=0, seed=seed,
-            settings={"group": grp.spec, "mode": mode, "stopped": str(exc),
-                      "invariant_optimal": False, "restarts": restarts,
-                      "time_limit": time_limit, "version": __version__})
+        return Outcome(None, settings={**settings, "stopped": str(exc),
+                                       "invariant_optimal": False})
     w = graph.weights
 
     def report(phase: str, clique: list[int]) -> None:
-        if progress is not None:
-            progress({"phase": phase, "orbits": int(w.size),
-                      "incumbent": int(w[clique].sum()) if clique else 0,
-                      "elapsed": time.perf_counter() - start})
+        ctx.report(phase=phase, orbits=int(w.size),
+                   incumbent=int(w[clique].sum()) if clique else 0)
 
     report("graph", [])
     # In exact mode the heuristics get at most half the budget left after the graph.
-    heur_deadline = deadline
-    if mode == "exact" and deadline is not None:
-        heur_deadline = time.perf_counter() + 0.5 * max(0.0, deadline - time.perf_counter())
-    clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=seed,
+    heur_deadline = ctx.deadline
+    if mode == "exact" and ctx.deadline is not None:
+        heur_deadline = time.perf_counter() + 0.5 * max(0.0, ctx.time_left())
+    clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=ctx.seed,
                                       deadline=heur_deadline, stop=size)
     # Small graphs need few moves (and the exact search settles them anyway).
     iterations = min(iterations, 50 * int(w.size) + 500)
-    clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=seed,
+    clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=ctx.seed,
                                 deadline=heur_deadline, stop=size)
     report("heuristic", clique)
     complete, nodes, engine, inv_upper = False, passes + moves, "greedy+tabu", None
     reached = size is not None and int(w[clique].sum()) >= size
     if mode == "exact" and w.size and not reached:
-        exact, complete, enodes, engine, inv_upper = _exact_clique(graph.adj, w, clique,
-                                                                   deadline, size)
+        exact, complete, enodes, inv_upper = _exact_clique(graph.adj, w, clique, ctx.deadline,
+                                                           size)
+        engine = "codesearch.clique"
         nodes += enodes
         if int(w[exact].sum()) >= int(w[clique].sum()):
             clique = exact
@@ -519,32 +444,16 @@ def run(params: Params, *, time_limit: float | None = None, seed: int | None = N
     code = graph.code_of(sorted(clique), params.q) if clique else None
     if code is not None and not _groups.is_invariant(code, grp):
         raise VerificationError(f"orbit search built a code not invariant under {grp.spec!r}")
-    settings = {
-        "group": grp.spec,
+    return Outcome(code, nodes=nodes, settings={
+        **settings,
         "generators": len(grp.generators),
         "orbits": graph.orbits.count,
         "admissible_orbits": int(w.size),
         "edges": int(graph.adj.sum() // 2),
         "orbits_used": len(clique),
-        "mode": mode,
         "clique_engine": engine,
         "invariant_optimal": bool(complete),
         # a proven bound on the size of every G-invariant code (not on A_q(n,d))
         "invariant_upper": inv_upper,
-        "restarts": restarts,
         "iterations": iterations,
-        "time_limit": time_limit,
-        "version": __version__,
-    }
-    return SearchResult(
-        params=params,
-        status=Status.FEASIBLE if code is not None else Status.UNKNOWN,
-        code=code,
-        upper=None,
-        method="orbit",
-        seconds=time.perf_counter() - start,
-        nodes=nodes,
-        seed=seed,
-        settings=settings,
-        target=size,
-    )
+    })

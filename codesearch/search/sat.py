@@ -52,14 +52,15 @@ from typing import Any, Callable
 import numpy as np
 
 from codesearch.errors import ParameterError
-from codesearch.model import Code, Params
-from codesearch.results import SearchResult, Status
+from codesearch.model import Params
 from codesearch.search import _wordspace as ws
+from codesearch.search.base import Context, Outcome
 
-__all__ = ["OPTIONS", "SYMMETRY", "ENCODINGS", "Encoding", "encode_base", "encode_card",
+__all__ = ["OPTIONS", "SEEDING", "SYMMETRY", "ENCODINGS", "Encoding", "encode_base", "encode_card",
            "encode", "run", "solve_size"]
 
 OPTIONS = frozenset({"size", "proof", "symmetry", "encoding", "solver"})
+SEEDING = "none"
 
 #: Symmetry-breaking levels, each including the previous ones.
 SYMMETRY = ("none", "zero", "pair", "lex")
@@ -491,27 +492,18 @@ def solve_size(
     return state["answer"], state["indices"], info
 
 
-def run(
-    params: Params,
-    *,
-    time_limit: float | None = None,
-    seed: int | None = None,
-    progress: Callable[[dict[str, Any]], None] | None = None,
-    size: int | None = None,
-    proof: str | None = None,
-    symmetry: str = "lex",
-    encoding: str = DEFAULT_ENCODING,
-    solver: str = DEFAULT_SOLVER,
-) -> SearchResult:
-    """SAT search: answer one size question (``size``) or raise M until refuted.
+def run(ctx: Context, *, proof: str | None = None, symmetry: str = "lex",
+        encoding: str = DEFAULT_ENCODING, solver: str = DEFAULT_SOLVER) -> Outcome:
+    """SAT search: answer one size question (option ``size``) or raise M until refuted.
 
     Parameters
     ----------
-    size : int, optional
-        Ask only "is there a code of ``size`` words?". Without it, start above the lexicode
-        and raise M while satisfiable; a refutation then proves the best code optimal.
+    ctx : Context
+        The cell and clock; with a target size, ask only "is there a code of that many
+        words?". Without one, start above the lexicode and raise M while satisfiable; a
+        refutation then proves the best code optimal.
     proof : str, optional
-        With ``size``: write the DIMACS formula and DRAT proof of each refuted branch to
+        With a target: write the DIMACS formula and DRAT proof of each refuted branch to
         ``PROOF[.wW].cnf`` and ``PROOF[.wW]``.
     symmetry : {"lex", "pair", "zero", "none"}
         Symmetry-breaking level.
@@ -519,91 +511,62 @@ def run(
         Cardinality encoding (see :data:`ENCODINGS`).
     solver : str
         python-sat solver name.
-
-    Returns
-    -------
-    SearchResult
-        OPTIMAL (code found and next size refuted), INFEASIBLE (``size`` refuted; ``upper`` =
-        size - 1), FEASIBLE (code found, larger sizes undecided) or UNKNOWN.
     """
-    from codesearch import verify
-    from codesearch.search import greedy
-
-    start = time.perf_counter()
-    deadline = None if time_limit is None else start + time_limit
-    target = greedy._check_size(size)
     if symmetry not in SYMMETRY:
         raise ParameterError(f"unknown symmetry level {symmetry!r}; choose from "
                              f"{', '.join(SYMMETRY)}")
     if encoding not in ENCODINGS:
         raise ParameterError(f"unknown cardinality encoding {encoding!r}; choose from "
                              f"{', '.join(ENCODINGS)}")
-    if proof is not None and target is None:
+    if proof is not None and ctx.target is None:
         raise ParameterError("--proof needs --size: a proof refutes one size")
     _check_solver(solver, proof is not None)
-    q, n = params.q, params.n
     # fail early (here, not in a worker) on cells too large to encode
-    encode_base_check(params)
-    settings: dict[str, Any] = {
-        "size": target, "symmetry": symmetry, "encoding": encoding, "solver": solver,
-        "time_limit": time_limit, "version": greedy._version(), "pysat": _pysat_version(),
-        "reductions": _describe(symmetry),
-    }
+    encode_base_check(ctx.params)
+    settings: dict[str, Any] = {"symmetry": symmetry, "encoding": encoding, "solver": solver,
+                                "pysat": _pysat_version(), "reductions": _describe(symmetry)}
     if proof is not None:
         settings["proof_scope"] = ("the DRAT proofs refute the symmetry-reduced formula of "
                                    "each branch; validity for the cell rests on the "
                                    "reductions listed")
-    code_idx: np.ndarray | None = None
-    upper: int | None = None
-    decisions = 0
-
-    if target is not None:
-        answer, idx, info = solve_size(params, target, symmetry=symmetry, encoding=encoding,
-                                       solver=solver, deadline=deadline, proof=proof)
-        decisions = info["decisions"]
+    if ctx.target is not None:
+        answer, idx, info = solve_size(ctx.params, ctx.target, symmetry=symmetry,
+                                       encoding=encoding, solver=solver,
+                                       deadline=ctx.deadline, proof=proof)
         settings["proof_files"] = info["proof_files"]
         settings["branches_refuted"] = info["branches_refuted"]
-        if answer:
-            code_idx = idx
-            status = Status.FEASIBLE
-        elif answer is False:
-            upper = target - 1
-            status = Status.INFEASIBLE
-        else:
-            status = Status.UNKNOWN
-    else:
-        # start from the lexicode: its size is a free lower bound
-        base, _, _ = greedy.greedy_indices(params, "lex", deadline=deadline)
-        settings["start_size"] = int(base.size)
-        state: dict[str, Any] = {"code": base, "upper": None, "decisions": 0, "history": []}
+        return Outcome(ws.code_of_indices(idx, ctx.params) if answer else None,
+                       ctx.target - 1 if answer is False else None, info["decisions"],
+                       settings)
+    return _raise_size(ctx, symmetry, encoding, solver, settings)
 
-        def on_message(msg: tuple) -> None:
-            if msg[0] == "decisions":
-                state["decisions"] = msg[1]
-            elif msg[0] == "sat":
-                state["history"].append([msg[1], "sat"])
-                state["code"] = msg[2]
-                if progress is not None:
-                    progress({"incumbent": int(msg[2].size), "nodes": state["decisions"],
-                              "elapsed": time.perf_counter() - start})
-            elif msg[0] == "unsat":
-                state["history"].append([msg[1], "unsat"])
-                state["upper"] = msg[1] - 1
 
-        _drive(_job_raise, (params, int(base.size) + 1, symmetry, encoding, solver), deadline,
-               on_message)
-        code_idx, upper, decisions = state["code"], state["upper"], state["decisions"]
-        settings["history"] = state["history"]
-        status = Status.OPTIMAL if upper is not None else Status.FEASIBLE
-    code = None
-    if code_idx is not None and code_idx.size:
-        code = Code(ws.indices_to_words(np.sort(code_idx), q, n), q)
-        verify.assert_code(code, params)
-    if status is Status.OPTIMAL and (code is None or code.size != upper):
-        raise RuntimeError("SAT search refuted a size other than one above its code")
-    return SearchResult(params=params, status=status, code=code, upper=upper, method="sat",
-                        seconds=time.perf_counter() - start, nodes=decisions, seed=None,
-                        settings=settings, target=target)
+def _raise_size(ctx: Context, symmetry: str, encoding: str, solver: str,
+                settings: dict[str, Any]) -> Outcome:
+    """From the lexicode up: ask for one more word until a size is refuted or time is up."""
+    from codesearch.search import greedy
+
+    # start from the lexicode: its size is a free lower bound
+    base, _, _ = greedy.greedy_indices(ctx.params, "lex", deadline=ctx.deadline)
+    settings["start_size"] = int(base.size)
+    state: dict[str, Any] = {"code": base, "upper": None, "decisions": 0, "history": []}
+
+    def on_message(msg: tuple) -> None:
+        if msg[0] == "decisions":
+            state["decisions"] = msg[1]
+        elif msg[0] == "sat":
+            state["history"].append([msg[1], "sat"])
+            state["code"] = msg[2]
+            ctx.report(incumbent=int(msg[2].size), nodes=state["decisions"])
+        elif msg[0] == "unsat":
+            state["history"].append([msg[1], "unsat"])
+            state["upper"] = msg[1] - 1
+
+    _drive(_job_raise, (ctx.params, int(base.size) + 1, symmetry, encoding, solver),
+           ctx.deadline, on_message)
+    settings["history"] = state["history"]
+    return Outcome(ws.code_of_indices(state["code"], ctx.params), state["upper"],
+                   state["decisions"], settings)
 
 
 def encode_base_check(params: Params) -> None:

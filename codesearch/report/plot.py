@@ -88,9 +88,9 @@ def rate_distance_figure(q: int, points: Iterable[Sequence[int]] | None = None, 
     title : str, optional
         Figure title (default names q).
     """
-    import matplotlib
+    from codesearch._optional import require
 
-    matplotlib.use("Agg")
+    require("matplotlib", "the rate-distance picture").use("Agg")
     import matplotlib.pyplot as plt
 
     delta = np.linspace(0.0, 1.0, 801)
@@ -131,12 +131,12 @@ def _log_rate(q: int, n: int, value: int) -> float:
 def save_rate_distance(path: str, q: int, points: Iterable[Sequence[int]] | None = None, *,
                        title: str | None = None) -> str:
     """Draw and write the picture; the format (png, svg, pdf) follows the file extension."""
-    import matplotlib.pyplot as plt
-
     suffix = path.rsplit(".", 1)[-1].lower() if "." in path else ""
     if suffix not in ("png", "svg", "pdf"):
         raise ParameterError(f"{path}: plot file must end in .png, .svg or .pdf")
     fig = rate_distance_figure(q, points, title=title)
+    import matplotlib.pyplot as plt
+
     try:
         fig.savefig(path, dpi=150)
     except OSError as exc:

@@ -1,5 +1,7 @@
 """Reports of the stored table: Markdown, CSV, LaTeX, HTML, JSON, export and plot.
 
+Part of the presentation layer (:mod:`codesearch.report`).
+
 Everything here reads the results store only; nothing runs a search or a bound. Per cell the
 report gives the best code size (lower), the best certified upper bound (upper), the gap, where
 each came from (method, time, certificate kind), and the comparison with imported published
@@ -18,11 +20,12 @@ import html
 import io
 import json
 import math
-from dataclasses import asdict, dataclass
-from typing import Any, Sequence
+from dataclasses import dataclass, fields
+from typing import Any, Callable, Sequence
 
 from codesearch.errors import InputError
 from codesearch.model import Params
+from codesearch.store import CellSummary
 
 __all__ = [
     "FORMATS",
@@ -37,27 +40,19 @@ __all__ = [
 FORMATS = ("md", "csv", "tex", "html", "json")
 #: Codes larger than this are not inlined in the HTML report (export them instead).
 MAX_INLINE_WORDS = 4096
+#: Row ids and provenance stay out of the JSON report.
+_ROW_IDS = ("code_id", "bound_id", "lower_provenance")
 
 
 @dataclass(frozen=True)
-class CellRow:
-    """One cell of the report (everything the renderers need)."""
+class CellRow(CellSummary):
+    """One cell of the report: what the store holds (as :class:`~codesearch.store.CellSummary`,
+    but ``lower`` is None when no code is stored) and the imported published values."""
 
-    q: int
-    n: int
-    d: int
-    lower: int | None
-    upper: int | None
-    lower_method: str | None
-    upper_method: str | None
-    lower_seconds: float | None
-    upper_seconds: float | None
-    upper_kind: str | None
-    code_id: int | None
-    published_lower: int | None
-    published_upper: int | None
-    published_source: str | None
-    compare: str | None
+    published_lower: int | None = None
+    published_upper: int | None = None
+    published_source: str | None = None
+    compare: str | None = None
 
     @property
     def exact(self) -> bool:
@@ -78,7 +73,7 @@ class CellRow:
         return {"matched": "=", "improved": "+", "short": "<"}.get(self.compare or "", "")
 
     def to_json(self) -> dict[str, Any]:
-        out = {k: v for k, v in asdict(self).items() if k != "code_id"}
+        out = {f.name: getattr(self, f.name) for f in fields(self) if f.name not in _ROW_IDS}
         out["exact"] = self.exact
         return out
 
@@ -110,16 +105,18 @@ def collect(store: Any, q: int | None = None) -> list[CellRow]:
         pl = max(lows) if lows else None
         pu = min(ups) if ups else None
         lower = s.lower if s.code_id is not None else None
+        stored = {f.name: getattr(s, f.name) for f in fields(CellSummary)}
         rows.append(CellRow(
-            p.q, p.n, p.d, lower, s.upper, s.lower_method, s.upper_method, s.lower_seconds,
-            s.upper_seconds, s.upper_kind, s.code_id, pl, pu,
-            "; ".join(sorted({r.source for r in pubs})) or None,
-            _compare(lower, s.upper, pl, pu) if pubs else None,
+            **{**stored, "lower": lower}, published_lower=pl, published_upper=pu,
+            published_source="; ".join(sorted({r.source for r in pubs})) or None,
+            compare=_compare(lower, s.upper, pl, pu) if pubs else None,
         ))
     return rows
 
 
-def _grid(rows: Sequence[CellRow]) -> dict[int, tuple[list[int], list[int], dict[tuple[int, int], CellRow]]]:
+def _layout(rows: Sequence[CellRow]
+            ) -> dict[int, tuple[list[int], list[int], dict[tuple[int, int], CellRow]]]:
+    """Per alphabet: the lengths and distances that occur, and the rows by ``(n, d)``."""
     out: dict[int, Any] = {}
     for r in rows:
         ns, ds, cells = out.setdefault(r.q, (set(), set(), {}))
@@ -136,24 +133,37 @@ def _name(q: int) -> str:
 # ------------------------------------------------------------------------------ renderers
 def render_md(rows: Sequence[CellRow]) -> str:
     out = []
-    for q, (ns, ds, cells) in _grid(rows).items():
+    for q, (ns, ds, cells) in _layout(rows).items():
         out.append(f"### {_name(q)}, q = {q}\n")
         out.append("| n \\ d | " + " | ".join(str(d) for d in ds) + " |")
         out.append("|---:|" + "---:|" * len(ds))
         for n in ns:
-            line = []
-            for d in ds:
-                r = cells.get((n, d))
-                if r is None:
-                    line.append("")
-                elif r.lower is None and r.upper is None:
-                    line.append(f"[{_pub_text(r)}]")
-                else:
-                    line.append(("**" + r.text + "**" if r.exact else r.text) + r.mark)
+            line = _entries(cells, n, ds, lambda r: ("**" + r.text + "**" if r.exact
+                                                     else r.text) + r.mark)
             out.append(f"| {n} | " + " | ".join(line) + " |")
         out.append("")
     out.append(_legend())
     return "\n".join(out) + "\n"
+
+
+def _entries(cells: dict[tuple[int, int], CellRow], n: int, ds: Sequence[int],
+             proven: Callable[[CellRow], str]) -> list[str]:
+    """The entries of row n: blank, ``[published]`` only, or ``proven(row)``."""
+    out = []
+    for d in ds:
+        r = cells.get((n, d))
+        if r is None:
+            out.append("")
+        elif r.lower is None and r.upper is None:
+            out.append(f"[{_pub_text(r)}]")
+        else:
+            out.append(proven(r))
+    return out
+
+
+def _tex_entry(r: CellRow) -> str:
+    t = r"\textbf{%s}" % r.text if r.exact else r.text.replace("-", "--")
+    return t + (f"$^{{{r.mark}}}$" if r.mark else "")
 
 
 def _pub_text(r: CellRow) -> str:
@@ -200,21 +210,12 @@ def _tex_escape(s: str) -> str:
 
 def render_tex(rows: Sequence[CellRow]) -> str:
     out = ["% generated by codesearch report; needs no package beyond LaTeX itself"]
-    for q, (ns, ds, cells) in _grid(rows).items():
+    for q, (ns, ds, cells) in _layout(rows).items():
         out.append(r"\begin{table}[ht]\centering")
         out.append(r"\begin{tabular}{r|" + "r" * len(ds) + "}")
         out.append(r"$n \backslash d$ & " + " & ".join(str(d) for d in ds) + r" \\ \hline")
         for n in ns:
-            line = []
-            for d in ds:
-                r = cells.get((n, d))
-                if r is None:
-                    line.append("")
-                elif r.lower is None and r.upper is None:
-                    line.append(f"[{_pub_text(r)}]")
-                else:
-                    t = r"\textbf{%s}" % r.text if r.exact else r.text.replace("-", "--")
-                    line.append(t + (f"$^{{{r.mark}}}$" if r.mark else ""))
+            line = _entries(cells, n, ds, _tex_entry)
             out.append(f"{n} & " + " & ".join(line) + r" \\")
         out.append(r"\end{tabular}")
         out.append(r"\caption{Bounds on $%s$ for $q=%d$: bold entries are exact, $a$--$b$ gives "
@@ -271,7 +272,7 @@ def render_html(rows: Sequence[CellRow], store: Any, title: str = "codesearch ta
         "[x] is an imported published value only. Marks vs published: = matched, + improved, "
         "&lt; short.</p>",
     ]
-    for q, (ns, ds, cells) in _grid(rows).items():
+    for q, (ns, ds, cells) in _layout(rows).items():
         parts.append(f'<h2>{e(_name(q))}, q = {q}</h2><table id="table-q{q}">')
         parts.append("<tr><th>n \\ d</th>" + "".join(f"<th>{d}</th>" for d in ds) + "</tr>")
         for n in ns:
@@ -355,10 +356,10 @@ def export_code(store_path: str, params: Params, out: str) -> int:
 
 def plot_store(store_path: str, out: str, *, q: int = 2) -> int:
     """Draw the stored cells of alphabet ``q`` on the rate-distance picture
-    (:func:`codesearch.plot.save_rate_distance`): at d/n, a bar from the rate of the best
+    (:func:`codesearch.report.plot.save_rate_distance`): at d/n, a bar from the rate of the best
     stored code to the rate of the best proven upper bound. Returns the number of cells drawn.
     """
-    from codesearch.plot import save_rate_distance
+    from codesearch.report.plot import save_rate_distance
     from codesearch.store import Store
 
     with Store(store_path, create=False) as st:

@@ -1,0 +1,101 @@
+"""Plain-text renderings of results for the command line: the check report of a code, the
+one-line summaries of ``find`` and ``table``, and the grid of bounds.
+
+Every function returns text; only :mod:`codesearch.cli` prints. The JSON forms are the
+objects' own ``to_json()`` / ``to_dict()``.
+"""
+
+from __future__ import annotations
+
+from typing import Any, Mapping, Sequence
+
+__all__ = ["format_value", "code_report", "find_summary", "table_summary", "bounds_table",
+           "BOUND_LABELS"]
+
+#: Column label of each bound in :func:`bounds_table`, in column order (a bound not listed
+#: gets a column under its own name after these).
+BOUND_LABELS = {
+    "singleton": "singleton",
+    "hamming": "hamming",
+    "plotkin": "plotkin",
+    "johnson": "johnson",
+    "elias": "elias",
+    "delsarte-lp": "lp",
+    "delsarte-lp-plus": "lp+",
+    "three-point-sdp": "sdp",
+}
+
+
+def format_value(v: int) -> str:
+    """Exact below 10^12, else ``m.mmme+XX`` (the JSON output is always exact)."""
+    return str(v) if v < 10**12 else f"{v:.3e}"
+
+
+def _aligned(rows: Sequence[Sequence[str]]) -> list[str]:
+    widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
+    return ["  ".join(c.rjust(w) for c, w in zip(r, widths)) for r in rows]
+
+
+def code_report(report: Any, file: str) -> str:
+    """The ``check`` report of a code (a :class:`codesearch.verify.CodeReport`)."""
+    if report.distance_distribution is None:
+        dist = "not computed (minimum distance by information sets)"
+    else:
+        dist = ", ".join(f"{i}:{c}" for i, c in enumerate(report.distance_distribution) if c)
+    rows = [
+        ("file", file),
+        ("length n", report.n),
+        ("alphabet q", report.q),
+        ("size M", report.size),
+        ("min distance", "-" if report.min_distance is None else report.min_distance),
+        ("distance distribution", dist or "-"),
+        ("duplicate pairs", report.duplicates),
+    ]
+    if report.linear is None:
+        rows.append(("linear", "not tested (q is not prime)"))
+    elif report.linear:
+        rows.append(("linear", f"yes, dimension {report.dimension}"))
+        wd = ("not computed" if report.weight_distribution is None else
+              ", ".join(f"{i}:{c}" for i, c in enumerate(report.weight_distribution) if c))
+        rows.append(("weight distribution", wd))
+    else:
+        rows.append(("linear", "no"))
+    if report.claimed_d is not None:
+        rows.append((f"claim d >= {report.claimed_d}", "holds" if report.valid else "FAILS"))
+    width = max(len(k) for k, _ in rows)
+    return "\n".join(f"{key:<{width}}  {value}" for key, value in rows)
+
+
+def find_summary(result: Any) -> str:
+    """One line for a :class:`~codesearch.results.SearchResult`."""
+    verdict = "proved optimal" if result.optimal else (
+        f"{result.status.value}; upper bound {result.upper}")
+    return (f"{result.params}: code of size {result.size} ({verdict}) by {result.method} in "
+            f"{result.seconds:.2f} s, {result.nodes} nodes")
+
+
+def table_summary(summary: Any, store: str) -> str:
+    """One line for a :class:`~codesearch.batch.TableSummary`."""
+    return (f"{summary.ran} cells run, {summary.skipped} skipped, {summary.failed} failed, "
+            f"{summary.derived_codes} codes and {summary.derived_bounds} bounds derived in "
+            f"{summary.seconds:.1f} s; store {store}")
+
+
+def bounds_table(summaries: Sequence[Mapping[str, Any]], *, lp: bool = True,
+                 sdp: bool = False) -> str:
+    """The aligned table of :func:`codesearch.bounds.cell_summary` rows, one line a cell."""
+    names = [k for k in BOUND_LABELS if (lp or not k.startswith("delsarte"))
+             and (sdp or k != "three-point-sdp")]
+    names += sorted({k for s in summaries for k in s["bounds"]} - set(names))
+    header = ["q", "n", "d", "upper", "by", "gv"] + [BOUND_LABELS.get(k, k) for k in names]
+    rows = [header + ["griesmer*"]]
+    for s in summaries:
+        row = [str(s["q"]), str(s["n"]), str(s["d"]), str(s["upper"]), s["upper_method"],
+               format_value(s["gv"])]
+        row += ["-" if s["bounds"].get(k) is None else format_value(s["bounds"][k])
+                for k in names]
+        g = s["linear"].get("griesmer")
+        rows.append(row + ["-" if g is None else format_value(g)])
+    return "\n".join(_aligned(rows) + [
+        "* griesmer bounds linear codes only; gv is an existential lower bound; "
+        "'-' = not applicable or not certified"])

@@ -1,0 +1,233 @@
+"""Checks of explicit codes: distance distribution, minimum distance, linearity, claims.
+
+Every code a search returns, a file holds or the store keeps passes through
+:func:`assert_code`. The pairwise distances come from the packed distance kernels of
+:mod:`codesearch._kernels` (tested against the definition in :mod:`codesearch._reference`).
+
+The distance distribution of an ``M``-word code counts the unordered pairs at each distance
+``0..n``. For a *linear* code (a subspace of GF(p)^n) the pairs at distance ``i > 0`` number
+``M * A_i / 2`` where ``A_i`` is the weight distribution, so only ``O(M n)`` work is needed;
+otherwise the packed kernel visits all ``M (M - 1) / 2`` pairs.
+
+References
+----------
+F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*, North-Holland,
+1977, ch. 1 (distance distribution of linear codes equals the weight distribution).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from codesearch.errors import VerificationError
+from codesearch.model import Code, Params
+
+__all__ = ["CodeReport", "check_code", "assert_code", "assert_min_distance", "min_distance",
+           "distance_distribution", "first_close_pair", "is_prime", "prepare"]
+
+
+def is_prime(q: int) -> bool:
+    """True for prime q (the alphabets where we test linearity over GF(q))."""
+    return q >= 2 and all(q % p for p in range(2, int(q**0.5) + 1))
+
+
+@dataclass(frozen=True)
+class CodeReport:
+    """What :func:`check_code` found.
+
+    Attributes
+    ----------
+    n, q, size : int
+        Length, alphabet size, number of codewords (duplicates included).
+    min_distance : int or None
+        Least distance over pairs of rows (0 when there are duplicates); None when size < 2.
+    distance_distribution : list of int or None
+        Unordered pairs at each distance 0..n; None for a generator matrix checked by
+        information sets (minimum distance only).
+    duplicates : int
+        Pairs of equal rows (``distance_distribution[0]``).
+    linear : bool or None
+        Whether the rows form a subspace of GF(q)^n; None when q is not prime.
+    dimension : int or None
+        The dimension when linear.
+    weight_distribution : list of int or None
+        Words of each weight 0..n when linear (None when only the minimum distance was
+        computed).
+    claimed_d : int or None
+        The minimum distance the check was asked to confirm.
+    valid : bool
+        True when no claim was made, or the claim holds.
+    offending : tuple of int or None
+        ``(i, j, distance)``: the first pair of rows (0-based) closer than ``claimed_d``.
+    """
+
+    n: int
+    q: int
+    size: int
+    min_distance: int | None
+    distance_distribution: list[int] | None
+    duplicates: int
+    linear: bool | None
+    dimension: int | None
+    weight_distribution: list[int] | None = None
+    claimed_d: int | None = None
+    valid: bool = True
+    offending: tuple[int, int, int] | None = None
+    method: str = "pairs"
+
+    def to_json(self) -> dict[str, Any]:
+        """The object printed by ``codesearch check --json``."""
+        return {
+            "n": self.n,
+            "q": self.q,
+            "size": self.size,
+            "min_distance": self.min_distance,
+            "distance_distribution": (None if self.distance_distribution is None
+                                      else list(self.distance_distribution)),
+            "duplicates": self.duplicates,
+            "linear": self.linear,
+            "dimension": self.dimension,
+            "weight_distribution": self.weight_distribution,
+            "claimed_d": self.claimed_d,
+            "valid": self.valid,
+            "method": self.method,
+        }
+
+
+def _kernels():
+    from codesearch import _kernels
+
+    return _kernels
+
+
+def prepare() -> None:
+    """Load the checker's compiled kernels now (a no-op once loaded).
+
+    Long-running drivers call this before starting work, so that the first import of numba
+    (a second or more) does not happen in the middle of the run.
+    """
+    _kernels()
+
+
+def _packed(code: Code) -> tuple[np.ndarray, int, int]:
+    k = _kernels()
+    return k.pack_words(code.words, code.q), k.plane_count(code.q), k.limb_count(code.n)
+
+
+def distance_distribution(code: Code) -> list[int]:
+    """Unordered pairs of rows at each distance 0..n, over all pairs (packed kernel)."""
+    if code.size < 2:
+        return [0] * (code.n + 1)
+    k = _kernels()
+    planes = k.plane_count(code.q)
+    if planes > 1 and planes * code.n <= 64:
+        # short q-ary codes: all symbols in one word, one load per pair
+        col = k.pack_interleaved(code.words, code.q)
+        low, high = (np.uint64(v) for v in k.interleaved_masks(code.n, planes))
+        return [int(v) for v in k.distance_distribution_interleaved(col, low, high, code.n)]
+    packed, planes, limbs = _packed(code)
+    return [int(v) for v in k.distance_distribution_packed(packed, planes, limbs, code.n)]
+
+
+def first_close_pair(code: Code, below: int) -> tuple[int, int, int] | None:
+    """The first pair of rows ``(i, j, dist)`` with ``dist < below``, or None (early exit)."""
+    if code.size < 2:
+        return None
+    packed, planes, limbs = _packed(code)
+    i, j, dist = (int(v) for v in _kernels().first_close_pair_packed(packed, planes, limbs, below))
+    return None if i < 0 else (i, j, dist)
+
+
+def min_distance(code: Code) -> int | None:
+    """Minimum distance over pairs of rows; None for fewer than two rows."""
+    if code.size < 2:
+        return None
+    dist = distance_distribution(code)
+    return next(i for i, c in enumerate(dist) if c)
+
+
+def _linear_dimension(code: Code) -> int | None:
+    """The dimension if the rows are exactly a subspace of GF(q)^n, else None.
+
+    A set C of distinct vectors lies in span(C), which has q^rank elements; so C is a subspace
+    iff |C| = q^rank(C). Quick rejections: |C| must be a power of q and C must hold 0.
+    """
+    q, m = code.q, code.size
+    if not is_prime(q) or m == 0:
+        return None
+    k, power = 0, 1
+    while power < m:
+        power *= q
+        k += 1
+    if power != m or not (code.words == 0).all(axis=1).any():
+        return None
+    if k > code.n:
+        return None
+    rank = int(_kernels().gf_rank(np.array(code.words, dtype=np.uint8, order="C"), q, k))
+    if rank != k:
+        return None
+    # |C| = q^k = q^rank; C is a subspace provided its rows are distinct
+    srt = code.canonical().words
+    if m > 1 and (srt[1:] == srt[:-1]).all(axis=1).any():
+        return None
+    return k
+
+
+def check_code(code: Code, d: int | None = None) -> CodeReport:
+    """Check a code: distance distribution, duplicates, linearity, and the claim ``d``.
+
+    Parameters
+    ----------
+    code : Code
+        The code to check.
+    d : int, optional
+        Claimed minimum distance. With a claim the report names the first offending pair.
+    """
+    n, q, m = code.n, code.q, code.size
+    dim = _linear_dimension(code)
+    linear: bool | None = None if not is_prime(q) else dim is not None
+    weights = None
+    if dim is not None:
+        weights = np.bincount((code.words != 0).sum(axis=1), minlength=n + 1).astype(np.int64)
+        dist = [0] + [int(m * int(a) // 2) for a in weights[1:]]
+        method = "weights"
+    else:
+        dist = distance_distribution(code)
+        method = "pairs"
+    mind = next((i for i, c in enumerate(dist) if c), None) if m >= 2 else None
+    valid, offending = True, None
+    if d is not None and mind is not None and mind < d:
+        valid = False
+        offending = first_close_pair(code, d)
+    return CodeReport(
+        n=n, q=q, size=m, min_distance=mind, distance_distribution=dist, duplicates=dist[0],
+        linear=linear, dimension=dim,
+        weight_distribution=None if weights is None else [int(v) for v in weights],
+        claimed_d=d, valid=valid, offending=offending, method=method,
+    )
+
+
+
+def assert_min_distance(code: Code, d: int) -> None:
+    """Raise :class:`VerificationError` if two rows of ``code`` are closer than ``d``."""
+    bad = first_close_pair(code, d)
+    if bad is not None:
+        i, j, dist = bad
+        raise VerificationError(
+            f"rows {i} and {j} are at distance {dist} < d={d} "
+            f"({code.to_strings()[i]} / {code.to_strings()[j]})"
+        )
+
+
+def assert_code(code: Code, params: Params) -> None:
+    """Raise :class:`VerificationError` unless ``code`` is a code of the cell ``params``."""
+    if not isinstance(code, Code):
+        raise VerificationError(f"expected a Code, got {type(code).__name__}")
+    if code.q != params.q or code.n != params.n:
+        raise VerificationError(
+            f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}"
+        )
+    assert_min_distance(code, params.d)
