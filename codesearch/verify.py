@@ -1028,13 +1028,14 @@ def check_additive_generator(rows: np.ndarray, q: int, d: int | None = None,
     )
 
 
-def assert_linear_code(code: Any, params: Params) -> CodeReport:
+def assert_linear_code(code: Any, params: Params, enumerate_up_to: int = 1 << 22) -> CodeReport:
     """Raise :class:`VerificationError` unless the :class:`~codesearch.model.LinearCode`
     ``code`` has q^k words of length n and minimum distance at least ``params.d``.
 
     Prime q goes through :func:`check_generator` (information sets beyond
-    :data:`ENUMERATION_LIMIT` words); q = p^m through :func:`check_additive_generator` on the
-    rows the code lists its words from (:meth:`~codesearch.model.LinearCode.additive_basis`).
+    ``enumerate_up_to`` words, the minimum distance alone beyond); q = p^m through
+    :func:`check_additive_generator` on the rows the code lists its words from
+    (:meth:`~codesearch.model.LinearCode.additive_basis`).
     """
     from codesearch.model import LinearCode
 
@@ -1044,7 +1045,8 @@ def assert_linear_code(code: Any, params: Params) -> CodeReport:
         raise VerificationError(
             f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}")
     if is_prime(code.q):
-        report = check_generator(code.generator, code.q, params.d)
+        method = "enumerate" if code.size <= enumerate_up_to else "information-sets"
+        report = check_generator(code.generator, code.q, params.d, method=method)
     else:
         report = check_additive_generator(code.additive_basis(), code.q, params.d)
     if report.size != code.size:
