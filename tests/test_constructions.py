@@ -336,3 +336,17 @@ def test_cli_construct(tmp_path):
     assert "delta" in r.stderr
     r = _cli("construct", "--cell", "21", "8", "--json")
     assert r.returncode == 0 and '"size": 512' in r.stdout
+
+
+def test_public_api_is_pinned():
+    import codesearch.constructions as C
+
+    assert sorted(C.__all__) == sorted([
+        "DEFAULT_NMAX", "Candidate", "ConstructionTable", "best", "candidates", "table",
+        "Built", "verified", "coset_union", "concatenate", "construction_x", "construction_xx",
+        "direct_sum", "juxtapose", "pad", "parity_extend", "puncture", "shorten", "translate",
+        "u_u_plus_v", "FAMILIES", "Family", "Instance", "build_family", "family_instances",
+    ])
+    assert set(FAMILIES) >= {"hamming", "golay", "reed-muller", "bch", "qr", "mds", "cyclic",
+                             "hadamard", "levenshtein", "conference", "nordstrom-robinson",
+                             "kerdock", "preparata", "partition"}
