@@ -417,6 +417,73 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     return demo.run(args.workdir)
 
 
+# ------------------------------------------------------------------------------ construct
+def _add_construct(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "construct",
+        help="build a code family from its definition, or list the constructions for a cell",
+        description="'construct FAMILY --param NAME=VALUE ... [--out FILE]' builds and verifies "
+        "a family code (codesearch.constructions.build_family); 'construct --cell N D [--q Q]' "
+        "lists the families and chains of operations that give a code for the cell, largest "
+        "first (codesearch.constructions.candidates), and with --out writes the best "
+        "(codesearch.constructions.best); 'construct --families' lists the families.",
+    )
+    p.add_argument("family", nargs="?", help="family name (see --families)")
+    p.add_argument("--param", action="append", metavar="NAME=VALUE",
+                   help="a family parameter, repeated (e.g. --param q=2 --param m=5)")
+    p.add_argument("--cell", nargs=2, type=int, metavar=("N", "D"),
+                   help="list the constructions for length N, distance D")
+    p.add_argument("--q", type=int, default=2, help="alphabet size for --cell (default 2)")
+    p.add_argument("--families", action="store_true", help="list the families")
+    p.add_argument("--out", help="write the code (verified) to this file")
+    p.add_argument("--generator", action="store_true",
+                   help="write a linear code as its generator matrix (always done past 2^16 words)")
+    p.add_argument("--max-words", type=int, help="with --cell --out: largest nonlinear code built")
+    p.add_argument("--json", action="store_true", help="print JSON")
+    _COMMANDS["construct"] = _cmd_construct
+
+
+def _cmd_construct(args: argparse.Namespace) -> int:
+    from codesearch.constructions import command
+
+    if args.families:
+        rows = command.family_listing()
+        if args.json:
+            _print_json(rows)
+        else:
+            for r in rows:
+                print(f"{r['family']:<20} {' '.join(r['parameters']):<28} {r['summary']}")
+        return 0
+    if args.cell:
+        from codesearch.model import Params
+
+        summary = command.cell_listing(Params(args.q, *args.cell), args.out, args.max_words,
+                                       args.generator)
+        if args.json:
+            _print_json(summary)
+            return 0
+        for r in summary["routes"]:
+            kind = "linear" if r["linear"] else "nonlinear"
+            print(f"{r['size']:>12}  d>={r['d']:<3} {kind:<9} {r['provenance']}")
+        if not summary["routes"]:
+            print(f"no construction for {Params(args.q, *args.cell)}")
+        if summary["file"]:
+            print(f"wrote {summary['built']['size']} words ({summary['built']['provenance']}) "
+                  f"to {summary['file']}")
+        return 0
+    if not args.family:
+        raise InputError("construct: name a FAMILY, or use --cell N D or --families")
+    summary = command.build_to_file(args.family, command.parse_params(args.param), args.out,
+                                    args.generator)
+    if args.json:
+        _print_json(summary)
+    else:
+        print(f"{summary['provenance']}: n={summary['n']}, {summary['size']} words, "
+              f"d>={summary['d']} (verified)" + (f"; wrote {summary['file']}" if summary["file"]
+                                                 else ""))
+    return 0
+
+
 # ------------------------------------------------------------------------------------ main
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser with every subcommand."""
@@ -427,7 +494,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"codesearch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for add in (_add_check, _add_bounds, _add_find, _add_table, _add_report, _add_export,
-                _add_import, _add_plot, _add_demo):
+                _add_import, _add_plot, _add_demo, _add_construct):
         add(sub)
     return parser
 

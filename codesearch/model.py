@@ -13,7 +13,7 @@ import numpy as np
 
 from codesearch.errors import ParameterError
 
-__all__ = ["MAX_Q", "Params", "Code", "grid"]
+__all__ = ["MAX_Q", "Params", "Code", "LinearCode", "MAX_LISTED_WORDS", "grid"]
 
 #: Largest alphabet the code file format can write (symbols 0-9 then a-z).
 MAX_Q = 36
@@ -178,3 +178,105 @@ class Code:
         alphabet = np.frombuffer(b"0123456789abcdefghijklmnopqrstuvwxyz", dtype=np.uint8)
         chars = alphabet[self.words]
         return [row.tobytes().decode("ascii") for row in chars]
+
+
+#: Largest number of codewords :meth:`LinearCode.words` lists (2^22 words of length 32 take
+#: 128 MiB as uint8); larger linear codes stay generator matrices.
+MAX_LISTED_WORDS = 1 << 22
+
+
+@dataclass(frozen=True, eq=False)
+class LinearCode:
+    """A linear code over GF(q), q a prime power, held as a generator matrix.
+
+    Parameters
+    ----------
+    generator : numpy.ndarray
+        ``(k, n)`` array of field elements (the integer convention of :mod:`codesearch.gf`:
+        for q prime the residues mod q); its rows must be linearly independent.
+    q : int
+        Field order.
+
+    Notes
+    -----
+    The code has exactly ``q**k`` words; :meth:`words` lists them on demand, up to a cap.
+    For q = p^m with m > 1 the words are listed as the GF(p)-span of :meth:`additive_basis`,
+    the same rows the checker enumerates (:func:`codesearch.verify.check_additive_generator`).
+    """
+
+    generator: np.ndarray
+    q: int
+
+    def __post_init__(self) -> None:
+        from codesearch.gf import field
+
+        q = int(self.q)
+        if not 2 <= q <= MAX_Q:
+            raise ParameterError(f"alphabet size q={q} is outside 2..{MAX_Q}")
+        gf = field(q)
+        arr = np.asarray(self.generator)
+        if arr.ndim != 2 or arr.shape[1] < 1:
+            raise ParameterError(f"a generator matrix must be (k, n) with n >= 1, got {arr.shape}")
+        if arr.size and (arr.min() < 0 or arr.max() >= q):
+            raise ParameterError(f"a generator entry lies outside 0..{q - 1}")
+        arr = np.array(arr, dtype=np.uint8, copy=True, order="C")
+        if arr.shape[0] and gf.rank(arr) != arr.shape[0]:
+            raise ParameterError(f"the {arr.shape[0]} generator rows are linearly dependent")
+        arr.setflags(write=False)
+        object.__setattr__(self, "generator", arr)
+        object.__setattr__(self, "q", q)
+
+    @property
+    def n(self) -> int:
+        """Length."""
+        return int(self.generator.shape[1])
+
+    @property
+    def k(self) -> int:
+        """Dimension."""
+        return int(self.generator.shape[0])
+
+    @property
+    def size(self) -> int:
+        """Number of codewords, ``q**k``."""
+        return self.q**self.k
+
+    def __len__(self) -> int:
+        return self.size
+
+    def __repr__(self) -> str:
+        return f"LinearCode(q={self.q}, n={self.n}, k={self.k})"
+
+    def additive_basis(self) -> np.ndarray:
+        """Rows ``alpha^j g_i`` (j < m) spanning the code over the prime field GF(p)."""
+        from codesearch.gf import field
+
+        gf = field(self.q)
+        if gf.m == 1:
+            return self.generator
+        rows = [gf.mul[gf.exp[j], self.generator.astype(np.int64)] for j in range(gf.m)]
+        return np.ascontiguousarray(np.vstack(rows), dtype=np.uint8)
+
+    def words(self, max_words: int = MAX_LISTED_WORDS) -> Code:
+        """All ``q**k`` codewords as a :class:`Code`.
+
+        Raises
+        ------
+        ParameterError
+            When the code has more than ``max_words`` words.
+        """
+        if self.size > max_words:
+            raise ParameterError(
+                f"{self.q}^{self.k} = {self.size} codewords exceed the cap of {max_words} words"
+            )
+        from codesearch.gf import digit_add_table, prime_power
+
+        p, _ = prime_power(self.q)  # type: ignore[misc]
+        add = digit_add_table(self.q)
+        words = np.zeros((1, self.n), dtype=np.uint8)
+        for row in self.additive_basis():
+            multiples = [np.zeros(self.n, dtype=np.uint8), row]
+            for _ in range(p - 2):
+                multiples.append(add[multiples[-1], row])
+            words = np.vstack([add[words, c[None, :]] for c in multiples]).astype(np.uint8)
+        return Code(words, self.q)

@@ -27,6 +27,8 @@ from codesearch.verify.certificates import CERTIFICATE_CHECKERS, check_certifica
 from codesearch.verify.codes import (
     CodeReport,
     assert_code,
+    assert_code_by_balls,
+    ball_check_cost,
     assert_min_distance,
     check_code,
     distance_distribution,
@@ -38,6 +40,8 @@ from codesearch.verify.codes import (
 from codesearch.verify.exact import parse_fraction
 from codesearch.verify.linear import (
     ENUMERATION_LIMIT,
+    assert_linear_code,
+    check_additive_generator,
     check_generator,
     information_set_forms,
     linear_min_distance,
@@ -62,4 +66,8 @@ __all__ = [
     "check_cell_relation",
     "parse_fraction",
     "prepare",
+    "assert_linear_code",
+    "check_additive_generator",
+    "assert_code_by_balls",
+    "ball_check_cost",
 ]

@@ -17,6 +17,7 @@ F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*, N
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
 
@@ -26,7 +27,8 @@ from codesearch.errors import VerificationError
 from codesearch.model import Code, Params
 
 __all__ = ["CodeReport", "check_code", "assert_code", "assert_min_distance", "min_distance",
-           "distance_distribution", "first_close_pair", "is_prime", "prepare"]
+           "distance_distribution", "first_close_pair", "is_prime", "prepare",
+           "ball_check_cost", "assert_code_by_balls"]
 
 
 def is_prime(q: int) -> bool:
@@ -231,3 +233,50 @@ def assert_code(code: Code, params: Params) -> None:
             f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}"
         )
     assert_min_distance(code, params.d)
+
+
+# ===================================================================== large binary codes
+# Two words at distance <= 2r share a word at distance <= r from both, so a binary code has
+# minimum distance >= 2r + 1 iff its radius-r balls are pairwise disjoint; if moreover all its
+# words have the same weight parity every distance is even, and the bound rises to 2r + 2.
+# Listing M * V(n, r) ball words and sorting them is far cheaper than M^2/2 pair distances
+# when r is small.
+
+
+def ball_check_cost(code: Code, d: int) -> int | None:
+    """Number of ball words :func:`assert_code_by_balls` would list, or None if it does not
+    apply (q != 2, n > 64, or d even with words of both weight parities)."""
+    if code.q != 2 or code.n > 64 or d < 2:
+        return None
+    r = (d - 1) // 2
+    if d % 2 == 0:
+        par = code.words.sum(axis=1) % 2
+        if par.size and par.min() != par.max():
+            return None
+    return code.size * sum(math.comb(code.n, i) for i in range(r + 1))
+
+
+def assert_code_by_balls(code: Code, params: Params) -> None:
+    """Raise :class:`VerificationError` unless ``code`` is a binary code of the cell, checked by
+    disjoint radius-r balls (see the comment above); falls back to :func:`assert_code`."""
+    import itertools
+
+    if code.q != params.q or code.n != params.n:
+        raise VerificationError(
+            f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}")
+    if ball_check_cost(code, params.d) is None:
+        assert_code(code, params)
+        return
+    n, r = code.n, (params.d - 1) // 2
+    weights = (np.uint64(1) << np.arange(n, dtype=np.uint64))
+    packed = (code.words.astype(np.uint64) * weights).sum(axis=1, dtype=np.uint64)
+    masks = [0]
+    for i in range(1, r + 1):
+        masks.extend(sum(1 << j for j in c) for c in itertools.combinations(range(n), i))
+    ball = (packed[:, None] ^ np.array(masks, dtype=np.uint64)[None, :]).ravel()
+    ball.sort()
+    clash = np.nonzero(ball[1:] == ball[:-1])[0]
+    if clash.size:
+        raise VerificationError(
+            f"two codewords lie within distance {2 * r} (balls of radius {r} meet); "
+            f"the code does not have minimum distance {params.d}")

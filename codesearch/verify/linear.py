@@ -14,11 +14,14 @@ from __future__ import annotations
 
 import numpy as np
 
-from codesearch.errors import InputError
+from typing import Any
+
+from codesearch.errors import InputError, VerificationError
+from codesearch.model import Params
 from codesearch.verify.codes import CodeReport, _kernels, is_prime
 
 __all__ = ["check_generator", "linear_min_distance", "information_set_forms",
-           "ENUMERATION_LIMIT"]
+           "ENUMERATION_LIMIT", "check_additive_generator", "assert_linear_code"]
 
 
 def check_generator(rows: np.ndarray, q: int, d: int | None = None,
@@ -185,3 +188,95 @@ def _row_basis(rows: np.ndarray, q: int) -> np.ndarray:
         if kern.gf_rank(trial, q, len(keep) + 1) == len(keep) + 1:
             keep.append(i)
     return np.ascontiguousarray(rows[keep]).reshape(len(keep), rows.shape[1])
+
+
+# ===================================================================== linear codes, any field
+# A code that is linear over GF(p^m) is in particular a group under the digit-wise addition of
+# its symbols (codesearch.gf's convention), so its distances are the weights of its words. The
+# check below enumerates the GF(p)-span of the rows it is given; it needs no field
+# multiplication, so it does not rely on the field tables the producer used.
+
+
+def check_additive_generator(rows: np.ndarray, q: int, d: int | None = None,
+                             max_words: int = 1 << 24) -> CodeReport:
+    """Check the code spanned over GF(p) by ``rows`` under digit-wise addition, q = p^m.
+
+    The symbols of q = p^m are read as m base-p digits; the span is an additive group, so its
+    distance distribution is its weight distribution. Its size is p^r with r the GF(p) rank of
+    the rows written out digit by digit.
+
+    Raises
+    ------
+    InputError
+        When q is not a prime power or the span has more than ``max_words`` words.
+    """
+    p = next((f for f in range(2, q + 1) if q % f == 0), q)
+    m, rest = 0, q
+    while rest % p == 0:
+        rest //= p
+        m += 1
+    if rest != 1:
+        raise InputError(f"q={q} is not a prime power")
+    rows = np.ascontiguousarray(rows, dtype=np.uint8)
+    r_all, n = rows.shape
+    digits = np.concatenate([(rows.astype(np.int64) // p**j) % p for j in range(m)], axis=1)
+    rank = int(_kernels().gf_rank(np.ascontiguousarray(digits, dtype=np.uint8), p, r_all)) \
+        if r_all else 0
+    size = p**rank
+    if size > max_words:
+        raise InputError(f"{size} codewords are too many to enumerate (cap {max_words})")
+    # digit-wise addition table of the group (Z_p)^m
+    xs = np.arange(q)
+    add = np.zeros((q, q), dtype=np.int64)
+    for j in range(m):
+        dx = (xs // p**j) % p
+        add += ((dx[:, None] + dx[None, :]) % p) * p**j
+    add = add.astype(np.uint8)
+    words = np.zeros((1, n), dtype=np.uint8)
+    basis = digits[:0]
+    for i in range(r_all):
+        trial = np.ascontiguousarray(np.vstack([basis, digits[i:i + 1]]), dtype=np.uint8)
+        if int(_kernels().gf_rank(trial, p, trial.shape[0])) == trial.shape[0]:
+            basis = trial
+            mult = [np.zeros(n, dtype=np.uint8), rows[i]]
+            for _ in range(p - 2):
+                mult.append(add[mult[-1], rows[i]])
+            words = np.vstack([add[words, c[None, :]] for c in mult])
+    weights = np.bincount((words != 0).sum(axis=1), minlength=n + 1).astype(np.int64)
+    dist = [0] + [int(size * int(a) // 2) for a in weights[1:]]
+    mind = next((i for i, c in enumerate(dist) if c), None) if size >= 2 else None
+    return CodeReport(
+        n=n, q=q, size=size, min_distance=mind, distance_distribution=dist, duplicates=0,
+        linear=None, dimension=None, weight_distribution=[int(v) for v in weights],
+        claimed_d=d, valid=d is None or mind is None or mind >= d, offending=None,
+        method="additive-span",
+    )
+
+
+def assert_linear_code(code: Any, params: Params, enumerate_up_to: int = 1 << 22) -> CodeReport:
+    """Raise :class:`VerificationError` unless the :class:`~codesearch.model.LinearCode`
+    ``code`` has q^k words of length n and minimum distance at least ``params.d``.
+
+    Prime q goes through :func:`check_generator` (information sets beyond
+    ``enumerate_up_to`` words, the minimum distance alone beyond); q = p^m through
+    :func:`check_additive_generator` on the rows the code lists its words from
+    (:meth:`~codesearch.model.LinearCode.additive_basis`).
+    """
+    from codesearch.model import LinearCode
+
+    if not isinstance(code, LinearCode):
+        raise VerificationError(f"expected a LinearCode, got {type(code).__name__}")
+    if code.q != params.q or code.n != params.n:
+        raise VerificationError(
+            f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}")
+    if is_prime(code.q):
+        method = "enumerate" if code.size <= enumerate_up_to else "information-sets"
+        report = check_generator(code.generator, code.q, params.d, method=method)
+    else:
+        report = check_additive_generator(code.additive_basis(), code.q, params.d)
+    if report.size != code.size:
+        raise VerificationError(f"the generator spans {report.size} words, not {code.size}")
+    if code.k and not report.valid:
+        raise VerificationError(
+            f"minimum distance {report.min_distance} < d={params.d} ({code!r})")
+    return report
