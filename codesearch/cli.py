@@ -160,7 +160,10 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
                    help="double-precision LP only: no high-precision fallback for cells "
                    "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
     p.add_argument("--certificate", metavar="FILE",
-                   help="write the LP certificate of the (single) cell as JSON")
+                   help="write the certificate of the upper bound (any kind) as JSON; for a "
+                   "grid FILE must contain {n} and {d}; re-check with 'codesearch check FILE'")
+    p.add_argument("--no-relations", action="store_true",
+                   help="each cell on its own (no A(n,d) <= 2 A(n-1,d) etc. across the grid)")
     _COMMANDS["bounds"] = _cmd_bounds
 
 
@@ -169,7 +172,8 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
 
     return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
                                      lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
-                                     certificate=args.certificate)
+                                     certificate=args.certificate,
+                                     relations=not args.no_relations)
 
 
 # ----------------------------------------------------------------------------------- find

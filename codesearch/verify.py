@@ -965,3 +965,8 @@ def _check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
 
 
 CERTIFICATE_CHECKERS["delsarte-lp-qcw"] = _check_delsarte_lp_qcw
+# Checkers kept in their own modules (one registry line each).
+from codesearch import _cert_relation  # noqa: E402
+
+CERTIFICATE_CHECKERS.update({"relation-chain": _cert_relation.check_relation_chain,
+                             "theorem": _cert_relation.check_theorem})

@@ -23,7 +23,8 @@ from codesearch.results import BoundResult
 
 __all__ = ["BOUNDS", "MAX_N", "bound_names", "compute_bound", "upper_bound", "all_bounds",
            "gv_lower_bound", "least_usable",
-           "cell_summary", "best_lp_certificate"]
+           "cell_summary", "summarize", "best_lp_certificate", "grid_bounds", "CellBound",
+           "certificate_of"]
 
 #: Canonical bound name -> (module, function). Order is the tie-break for the winning bound:
 #: simpler theorems first, so a cell names the plainest argument that reaches its value.
@@ -152,18 +153,48 @@ def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
     whose solver answer failed its exact check; never used).
     """
     found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback)
-    best = least_usable(found)
-    return {
+    return summarize(params, found)
+
+
+def summarize(params: Params, found: dict[str, BoundResult], upper: BoundResult | None = None,
+              cites: tuple = ()) -> dict:
+    """The :func:`cell_summary` dictionary from bounds already computed.
+
+    ``upper`` (default: the least usable of ``found``) may be a bound derived from other
+    cells (:func:`grid_bounds`); ``cites`` are then its ``(cell, value)`` pairs, listed under
+    ``relation``. ``upper_kind`` is the certificate kind of the upper bound (``"theorem"``
+    for a closed form).
+    """
+    best = upper if upper is not None else least_usable(found)
+    bounds = {k: b.value for k, b in found.items() if b.usable}
+    if best.method not in bounds:
+        bounds[best.method] = best.value
+    out = {
         "q": params.q,
         "n": params.n,
         "d": params.d,
-        "bounds": {k: b.value for k, b in found.items() if b.usable},
+        "bounds": bounds,
         "upper": best.value,
         "upper_method": best.method,
+        "upper_kind": ("theorem" if best.certificate is None
+                       else str(best.certificate.get("kind", "certificate"))),
         "gv": gv_lower_bound(params),
         "linear": {k: b.value for k, b in found.items() if b.scope == "linear" and b.certified},
         "uncertified": sorted(k for k, b in found.items() if not b.certified),
     }
+    if cites:
+        out["relation"] = {"rule": best.method.partition(":")[2],
+                           "cites": [[c.q, c.n, c.d, v] for c, v in cites]}
+    return out
+
+
+def __getattr__(name: str):
+    # grid helpers load lazily (they import codesearch.propagate)
+    if name in ("grid_bounds", "CellBound", "certificate_of"):
+        from codesearch.bounds import grid
+
+        return getattr(grid, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def best_lp_certificate(params: Params) -> BoundResult | None:

@@ -79,48 +79,76 @@ def format_value(v: int) -> str:
 
 def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json: bool = False,
                        lp: bool = True, lp_fallback: bool = True, sdp: bool = False,
-                       certificate: str | None = None,
+                       certificate: str | None = None, relations: bool = True,
                        out: TextIO | None = None) -> int:
-    """Print the bounds of a grid of cells; returns the exit status."""
-    from codesearch.bounds import MAX_N, best_lp_certificate, cell_summary
+    """Print the bounds of a grid of cells; returns the exit status.
+
+    The cell relations (:func:`codesearch.bounds.grid_bounds`) are applied across the grid
+    unless ``relations`` is False. ``certificate``: file name for the certificate of the
+    upper bound (whatever its kind); for a grid it must contain ``{n}`` and ``{d}`` (one file
+    per cell).
+    """
+    from codesearch.bounds import MAX_N, all_bounds, certificate_of, grid_bounds, summarize
 
     out = out or sys.stdout
     grid = cells(q, ns, ds)
     if any(p.n > MAX_N for p in grid):
         raise ParameterError(f"length beyond the bounds limit {MAX_N}")
-    if certificate is not None and len(grid) != 1:
-        raise ParameterError("--certificate needs a single cell (N and D, not ranges)")
+    if certificate is not None and len(grid) != 1 and not (
+            "{n}" in certificate and "{d}" in certificate):
+        raise ParameterError("--certificate for a grid needs {n} and {d} in the file name")
+    result = grid_bounds(grid, lambda p: all_bounds(p, sdp=sdp, lp=lp, lp_fallback=lp_fallback),
+                         relations=relations)
+    summaries = {p: summarize(p, c.bounds, c.upper, c.cites) for p, c in result.items()}
     if as_json:
         for p in grid:
-            print(json.dumps(cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)), file=out)
+            print(json.dumps(summaries[p]), file=out)
     else:
-        names = [k for k in _SHORT if (lp or not k.startswith("delsarte"))
-                 and (sdp or k != "three-point-sdp")]
-        header = ["q", "n", "d", "upper", "by", "gv"] + [_SHORT[k] for k in names] + ["griesmer*"]
-        rows = []
-        for p in grid:
-            s = cell_summary(p, lp=lp, lp_fallback=lp_fallback, sdp=sdp)
-            row = [str(p.q), str(p.n), str(p.d), str(s["upper"]), s["upper_method"],
-                   format_value(s["gv"])]
-            for k in names:
-                v = s["bounds"].get(k)
-                row.append("-" if v is None else format_value(v))
-            g = s["linear"].get("griesmer")
-            row.append("-" if g is None else format_value(g))
-            rows.append(row)
-        widths = [max(len(r[i]) for r in [header] + rows) for i in range(len(header))]
-        for r in [header] + rows:
-            print("  ".join(c.rjust(w) for c, w in zip(r, widths)), file=out)
-        print("* griesmer bounds linear codes only; gv is an existential lower bound; "
-              "'-' = not applicable or not certified", file=out)
+        _print_table(grid, summaries, lp=lp, sdp=sdp, out=out)
     if certificate is not None:
-        best = best_lp_certificate(grid[0])
-        if best is None:
-            raise ParameterError(f"no certified LP bound for {grid[0]}")
-        with open(certificate, "w", encoding="utf-8") as fh:
-            json.dump(dict(best.certificate), fh, indent=1)
-            fh.write("\n")
+        for p in grid:
+            cert = certificate_of(result[p], result)
+            if cert is None:
+                if len(grid) == 1:
+                    raise ParameterError(f"the upper bound of {p} is the closed form "
+                                         f"{result[p].upper.method}: no certificate file")
+                continue
+            with open(certificate.format(n=p.n, d=p.d, q=p.q), "w", encoding="utf-8") as fh:
+                json.dump(cert, fh, indent=1)
+                fh.write("\n")
     return 0
+
+
+def _print_table(grid: list[Params], summaries: dict, *, lp: bool, sdp: bool,
+                 out: TextIO) -> None:
+    names = [k for k in _SHORT if (lp or not k.startswith("delsarte"))
+             and (sdp or k != "three-point-sdp")]
+    header = (["q", "n", "d", "upper", "by", "kind", "gv"] + [_SHORT[k] for k in names]
+              + ["griesmer*"])
+    rows, notes = [], []
+    for p in grid:
+        s = summaries[p]
+        row = [str(p.q), str(p.n), str(p.d), str(s["upper"]), s["upper_method"],
+               s["upper_kind"], format_value(s["gv"])]
+        for k in names:
+            v = s["bounds"].get(k)
+            row.append("-" if v is None else format_value(v))
+        g = s["linear"].get("griesmer")
+        row.append("-" if g is None else format_value(g))
+        rows.append(row)
+        if "relation" in s:
+            cited = ", ".join(f"A({c[1]},{c[2]}) <= {c[3]}" for c in s["relation"]["cites"])
+            notes.append(f"  A({p.n},{p.d}) <= {s['upper']}: {s['relation']['rule']} "
+                         f"from {cited}")
+    widths = [max(len(r[i]) for r in [header] + rows) for i in range(len(header))]
+    for r in [header] + rows:
+        print("  ".join(c.rjust(w) for c, w in zip(r, widths)), file=out)
+    print("* griesmer bounds linear codes only; gv is an existential lower bound; "
+          "'-' = not applicable or not certified", file=out)
+    if notes:
+        print("relations between cells of the grid:", file=out)
+        for line in notes:
+            print(line, file=out)
 
 
 def finite_points(q: int, ns: Iterable[int], *, lp: bool = True) -> list[tuple[int, int, int, int]]:

@@ -1,0 +1,114 @@
+"""Cell relations across a grid of bounds, and the ``relation-chain`` certificate checker.
+
+References (outside the project):
+- MacWilliams and Sloane (1977), Ch. 1 and Ch. 17 section 1: A(n,d) <= 2 A(n-1,d),
+  A(n,2t-1) = A(n+1,2t), monotonicity in n and d.
+- Published lower values in data/published_binary.csv (sources named per row there).
+- Best et al., IEEE Trans. Inform. Theory 24 (1978), and the tables after them: A(17,4) <= 3276
+  and A(18,4) <= 6552 (from memory), the latter being twice the former.
+"""
+
+from __future__ import annotations
+
+import copy
+import csv
+import json
+import os
+
+import pytest
+
+from codesearch import verify
+from codesearch.bounds import all_bounds, certificate_of, grid_bounds
+from codesearch.cli import main
+from codesearch.errors import InputError
+from codesearch.model import Params
+
+_DATA = os.path.join(os.path.dirname(__file__), "..", "data", "published_binary.csv")
+
+
+def _published_lower() -> dict[tuple[int, int], int]:
+    out = {}
+    with open(_DATA, encoding="utf-8") as fh:
+        for row in csv.DictReader(line for line in fh if not line.startswith("#")):
+            if row["q"] == "2" and row["lower"]:
+                out[(int(row["n"]), int(row["d"]))] = int(row["lower"])
+    return out
+
+
+@pytest.fixture(scope="module")
+def grid_16_18():
+    cells = [Params(2, n, 4) for n in (16, 17, 18)]
+    return grid_bounds(cells, all_bounds)
+
+
+def test_doubling_reaches_the_published_a18_4(grid_16_18):
+    cell = grid_16_18[Params(2, 18, 4)]
+    assert cell.upper.value == 6552  # published (from memory), = 2 * 3276
+    assert cell.upper.method == "relation:times-q-shorter"
+    assert cell.kind == "relation-chain"
+    assert [(p.n, p.d, v) for p, v in cell.cites] == [(17, 4, 3276)]
+    cert = certificate_of(cell, grid_16_18)
+    ok, bound, reason = verify.check_certificate(cert)
+    assert ok and bound == 6552, reason
+
+
+def _tampered(cert):
+    c = copy.deepcopy(cert)
+    yield "lower claim", dict(c, value=6551)
+    bad = copy.deepcopy(c)
+    bad["cites"][0]["value"] = 3275
+    yield "cited value below its proof", bad
+    bad = copy.deepcopy(c)
+    bad["rule"] = "longer"
+    yield "wrong rule", bad
+    bad = copy.deepcopy(c)
+    bad["cites"][0]["certificate"]["y"][0] = "0/1"
+    yield "nested certificate altered", bad
+    bad = copy.deepcopy(c)
+    bad["cites"][0]["n"] = 16
+    yield "wrong cited cell", bad
+
+
+def test_tampered_relation_certificates_are_rejected(grid_16_18):
+    cert = certificate_of(grid_16_18[Params(2, 18, 4)], grid_16_18)
+    for what, bad in _tampered(cert):
+        try:
+            ok, _, _ = verify.check_certificate(bad)
+        except InputError:
+            ok = False
+        assert not ok, what
+
+
+def test_theorem_certificates():
+    assert verify.check_certificate({"kind": "theorem", "theorem": "hamming", "q": 2, "n": 7,
+                                     "d": 3, "value": 16})[:2] == (True, 16)
+    assert not verify.check_certificate({"kind": "theorem", "theorem": "hamming", "q": 2,
+                                         "n": 7, "d": 3, "value": 15})[0]
+    assert not verify.check_certificate({"kind": "theorem", "theorem": "plotkin", "q": 2,
+                                         "n": 7, "d": 3, "value": 16})[0]
+
+
+def test_grid_never_below_published_lower_values():
+    lower = _published_lower()
+    cells = [Params(2, n, d) for n in range(4, 17) for d in range(3, 9) if d <= n]
+    result = grid_bounds(cells, lambda p: all_bounds(p, lp_fallback=False))
+    for p, cell in result.items():
+        assert cell.upper.value >= lower.get((p.n, p.d), 0), p
+        # each cell's upper bound is at most its own least bound, and relations hold
+        own = min(b.value for b in cell.bounds.values() if b.usable)
+        assert cell.upper.value <= own
+        if p.n - 1 >= p.d and Params(2, p.n - 1, p.d) in result:
+            assert cell.upper.value <= 2 * result[Params(2, p.n - 1, p.d)].upper.value
+
+
+def test_cli_grid_names_rule_and_cells(tmp_path, capsys):
+    pattern = str(tmp_path / "c_{n}_{d}.json")
+    assert main(["bounds", "17..18", "4", "--certificate", pattern]) == 0
+    out = capsys.readouterr().out
+    assert "relation:times-q-shorter" in out and "relation-chain" in out
+    assert "A(18,4) <= 6552: times-q-shorter from A(17,4) <= 3276" in out
+    assert main(["check", str(tmp_path / "c_18_4.json")]) == 0
+    assert main(["bounds", "17..18", "4", "--json", "--no-relations"]) == 0
+    rows = [json.loads(line) for line in capsys.readouterr().out.splitlines()
+            if line.startswith("{")]
+    assert rows[-1]["upper"] == 6553 and "relation" not in rows[-1]
