@@ -81,8 +81,10 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
     params : Params
         The cell.
     sdp : bool
-        Also compute Schrijver's three-point semidefinite bound (binary, d >= 3; seconds
-        to minutes per cell, see :func:`codesearch.bounds.sdp.three_point_cost`).
+        Also compute the three-point semidefinite bound (d >= 3): Schrijver's for binary
+        codes, Gijswijt-Schrijver-Tanaka's for q >= 3 (seconds to minutes per cell, see
+        :func:`codesearch.bounds.sdp.three_point_cost` and
+        :func:`codesearch.bounds.qary_sdp.qary_three_point_cost`).
     lp : bool
         Include the Delsarte linear programs (the slow part of a grid run).
     lp_fallback : bool
@@ -105,16 +107,16 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
         if result is not None:
             out[name] = result
-    if sdp and params.q == 2 and params.d >= 3:
-        # Schrijver's bound is binary and needs d >= 3 (A(n,1), A(n,2) are known exactly).
-        try:
-            from codesearch.bounds.sdp import three_point_bound
-        except ImportError:
-            three_point_bound = None
-        if three_point_bound is not None:
-            result = three_point_bound(params)
-            if result is not None:
-                out[result.method] = result
+    if sdp and params.d >= 3:
+        # Schrijver's bound (binary) and Gijswijt-Schrijver-Tanaka's (q >= 3); both need
+        # d >= 3 (A_q(n,1), A_q(n,2) are known exactly).
+        if params.q == 2:
+            from codesearch.bounds.sdp import three_point_bound as semidefinite
+        else:
+            from codesearch.bounds.qary_sdp import qary_three_point_bound as semidefinite
+        result = semidefinite(params)
+        if result is not None:
+            out[result.method] = result
     return out
 
 

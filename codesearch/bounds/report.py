@@ -30,6 +30,7 @@ _SHORT = {
     "delsarte-lp": "lp",
     "delsarte-lp-plus": "lp+",
     "three-point-sdp": "sdp",
+    "qary-three-point-sdp": "sdp-q",
 }
 
 
@@ -122,7 +123,7 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
 def _print_table(grid: list[Params], summaries: dict, *, lp: bool, sdp: bool,
                  out: TextIO) -> None:
     names = [k for k in _SHORT if (lp or not k.startswith("delsarte"))
-             and (sdp or k != "three-point-sdp")]
+             and (sdp or "sdp" not in k)]
     header = (["q", "n", "d", "upper", "by", "kind", "gv"] + [_SHORT[k] for k in names]
               + ["griesmer*"])
     rows, notes = [], []
