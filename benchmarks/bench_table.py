@@ -47,7 +47,7 @@ def _score(store_path: str) -> dict[str, int]:
             if pub is None:
                 continue
             lo_ok = (row.lower or 0) >= pub.lower
-            up_ok = row.upper is not None and row.upper <= pub.upper
+            up_ok = row.upper is not None and pub.upper is not None and row.upper <= pub.upper
             lower += lo_ok
             upper += up_ok
             both += lo_ok and up_ok

@@ -195,17 +195,25 @@ def test_published_reference_file_is_consistent():
     path = pathlib.Path(__file__).resolve().parents[1] / "data" / "published_binary.csv"
     rows = {(r.n, r.d): r for r in read_published_file(str(path))}
     for (n, d), r in rows.items():
-        assert r.lower <= r.upper
+        assert r.upper is None or r.lower <= r.upper
         prev = rows.get((n - 1, d))
         if prev is not None:
-            assert prev.lower <= r.lower and r.upper <= 2 * prev.upper
+            assert prev.lower <= r.lower
+            if r.upper is not None and prev.upper is not None:
+                assert r.upper <= 2 * prev.upper
         if d % 2 == 1 and (n + 1, d + 1) in rows:
             assert (rows[(n + 1, d + 1)].lower, rows[(n + 1, d + 1)].upper) == (r.lower, r.upper)
     for r_ in (3, 4):
         n = 2**r_ - 1
         assert rows[(n, 3)].lower == rows[(n, 3)].upper == 2 ** (n - r_)
-    for d in (4, 6, 8):
+    for d in (4, 6, 8, 10, 12):
         assert rows[(2 * d, d)].upper == 4 * d
+    # Golay: A(23,7) = A(24,8) = 4096 (MacWilliams-Sloane Ch. 20); Levenshtein in the Plotkin
+    # range: A(n,d) = 2 floor(d / (2d - n)) for even d, n < 2d (MacWilliams-Sloane Ch. 2 Thm 8).
+    assert rows[(23, 7)].lower == rows[(24, 8)].upper == 4096
+    for (n, d), r in rows.items():
+        if d % 2 == 0 and n < 2 * d:
+            assert r.lower == r.upper == 2 * (d // (2 * d - n))
 
 
 def _open_and_write(path: str, n: int) -> str:
