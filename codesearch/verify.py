@@ -966,8 +966,9 @@ def _check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
 
 CERTIFICATE_CHECKERS["delsarte-lp-qcw"] = _check_delsarte_lp_qcw
 # Checkers kept in their own modules (one registry line each).
-from codesearch import _cert_qary_threepoint, _cert_relation  # noqa: E402
+from codesearch import _cert_integral, _cert_qary_threepoint, _cert_relation  # noqa: E402
 
 CERTIFICATE_CHECKERS.update({"relation-chain": _cert_relation.check_relation_chain,
                              "theorem": _cert_relation.check_theorem,
-                             "qary-three-point-sdp": _cert_qary_threepoint.check_qary_three_point})
+                             "qary-three-point-sdp": _cert_qary_threepoint.check_qary_three_point,
+                             "distance-enumeration": _cert_integral.check_distance_enumeration})

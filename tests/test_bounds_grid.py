@@ -112,3 +112,31 @@ def test_cli_grid_names_rule_and_cells(tmp_path, capsys):
     rows = [json.loads(line) for line in capsys.readouterr().out.splitlines()
             if line.startswith("{")]
     assert rows[-1]["upper"] == 6553 and "relation" not in rows[-1]
+
+
+# ------------------------------------------------------ integral distance distributions
+def test_distance_enumeration_proves_a9_4():
+    from codesearch.bounds.integral import distance_enumeration, size_is_impossible
+
+    # A(9,4) = 20 (Best et al. 1978; MacWilliams-Sloane App. A, from memory): the LP with
+    # constant-weight rows gives 21, integrality and parity of the distance distribution 20.
+    res = distance_enumeration(Params(2, 9, 4))
+    assert res.value == 20 and res.certificate["kind"] == "distance-enumeration"
+    ok, bound, reason = verify.check_certificate(res.certificate)
+    assert ok and bound == 20, reason
+    # a code of size 20 exists, so size 20 must not be ruled out (soundness)
+    from codesearch.bounds.integral import _caps
+
+    assert size_is_impossible(9, 4, 20, _caps(9, 4)) is False
+    assert not verify.check_certificate(dict(res.certificate, value=19))[0]
+    assert distance_enumeration(Params(2, 8, 3)).value == 20  # A(8,3) = A(9,4)
+
+
+def test_distance_enumeration_never_below_known_codes():
+    from codesearch.bounds.integral import _caps, size_is_impossible
+
+    # sizes of codes that exist (MacWilliams-Sloane App. A, from memory; Hamming, RM, NR):
+    # none may be declared impossible
+    for n, d, m in [(8, 4, 16), (10, 4, 40), (12, 6, 24), (13, 6, 32), (16, 8, 32),
+                    (10, 6, 6)]:
+        assert size_is_impossible(n, d, m, _caps(n, d)) is False, (n, d)

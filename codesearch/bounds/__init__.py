@@ -36,11 +36,12 @@ BOUNDS: dict[str, tuple[str, str]] = {
     "elias": ("codesearch.bounds.classical", "elias"),
     "delsarte-lp": ("codesearch.bounds.delsarte", "delsarte_lp"),
     "delsarte-lp-plus": ("codesearch.bounds.delsarte", "delsarte_lp_plus"),
+    "distance-enumeration": ("codesearch.bounds.integral", "distance_enumeration"),
     "griesmer": ("codesearch.bounds.classical", "griesmer"),
 }
 
 #: Bounds computed by solving an optimisation problem (skipped when ``lp=False``).
-_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus"})
+_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "distance-enumeration"})
 
 #: Longest codes the front end accepts (closed forms stay exact far beyond; this only keeps
 #: a typo such as n = 10**9 from hanging the process).
@@ -104,7 +105,8 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         if not lp and name in _COMPUTED:
             continue
         func = _function(name)
-        result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
+        result = (func(params, exact_fallback=lp_fallback)
+                  if name in _COMPUTED - {"distance-enumeration"} else func(params))
         if result is not None:
             out[name] = result
     if sdp and params.d >= 3:
