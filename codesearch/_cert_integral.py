@@ -25,7 +25,7 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
-__all__ = ["check_distance_enumeration", "MAX_LEAVES"]
+__all__ = ["check_distance_enumeration", "check_odd_size", "MAX_LEAVES"]
 
 #: Leaves the checker is willing to visit per size (else: too expensive to re-check).
 MAX_LEAVES = 5_000_000
@@ -91,22 +91,53 @@ def _exists(n: int, d: int, M: int) -> bool | None:
         return None
 
 
+def _cell_and_lp(cert: Mapping[str, Any]) -> tuple[int, int, int, int, Mapping[str, Any]]:
+    q, n0, d0 = (cert[k] for k in ("q", "n", "d"))
+    claimed = cert["value"]
+    if any(isinstance(v, bool) or not isinstance(v, int) for v in (q, n0, d0, claimed)):
+        raise ValueError("q, n, d, value must be integers")
+    if q != 2 or not 3 <= d0 <= n0 <= 4096:
+        raise ValueError(f"binary cells only, got q={q}, n={n0}, d={d0}")
+    n, d = (n0 + 1, d0 + 1) if d0 % 2 else (n0, d0)
+    lp = cert["lp"]
+    if not isinstance(lp, Mapping) or (lp.get("q"), lp.get("n"), lp.get("d")) != (2, n, d):
+        raise ValueError(f"the LP certificate must be for A({n},{d})")
+    return n0, d0, n, d, lp
+
+
+def check_odd_size(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Re-check an ``lp-odd-size`` certificate: the nested Delsarte LP certificate (exact
+    value ``V``, dual ``y``) and, for ``M = floor(V)`` odd, ``M^2 - V M + sum_k y_k C(n,k) > 0``
+    (an odd-size code has ``b_k >= C(n,k)``: ``M - 1 <= V - 1 - sum_k y_k C(n,k) / M``)."""
+    from fractions import Fraction
+
+    from codesearch.verify import check_certificate
+
+    n0, d0, n, d, lp = _cell_and_lp(cert)
+    claimed = cert["value"]
+    if lp.get("kind") not in ("delsarte-lp",):
+        return False, None, "the nested certificate must be a binary Delsarte LP"
+    ok, top, why = check_certificate(lp)
+    if not ok or top is None:
+        return False, None, f"LP certificate: {why}"
+    value = Fraction(lp["bound"])  # equal to the LP's exact value: checked just above
+    weight = sum(Fraction(v) * math.comb(n, k) for k, v in enumerate(lp["y"], start=1))
+    M = top
+    if claimed >= M:
+        return True, claimed, f"A({n0},{d0}) <= {claimed} (LP alone gives {M})"
+    if claimed != M - 1 or M % 2 == 0 or not M * M - value * M + weight > 0:
+        return False, None, f"size {M} is not excluded by the odd-size cut"
+    return True, claimed, f"A({n0},{d0}) <= {claimed}: LP gives {M}, odd size {M} excluded"
+
+
 def check_distance_enumeration(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
     """Re-check a ``distance-enumeration`` certificate; returns ``(valid, bound, reason)``."""
     from codesearch.verify import check_certificate
 
-    q, n0, d0 = (cert[k] for k in ("q", "n", "d"))
-    if any(isinstance(v, bool) or not isinstance(v, int) for v in (q, n0, d0)):
-        raise ValueError("q, n, d must be integers")
+    n0, d0, n, d, lp = _cell_and_lp(cert)
     claimed = cert["value"]
-    if isinstance(claimed, bool) or not isinstance(claimed, int):
-        raise ValueError("value must be an integer")
-    if q != 2 or not 3 <= d0 <= n0 <= 64:
-        return False, None, f"distance enumeration is for binary cells, got q={q}, n={n0}, d={d0}"
-    n, d = (n0 + 1, d0 + 1) if d0 % 2 else (n0, d0)
-    lp = cert["lp"]
-    if not isinstance(lp, Mapping) or (lp.get("q"), lp.get("n"), lp.get("d")) != (2, n, d):
-        return False, None, f"the LP certificate must be for A({n},{d})"
+    if n > 64:
+        return False, None, f"distance enumeration is for n <= 64, got {n}"
     ok, top, why = check_certificate(lp)
     if not ok or top is None:
         return False, None, f"LP certificate: {why}"

@@ -971,4 +971,5 @@ from codesearch import _cert_integral, _cert_qary_threepoint, _cert_relation  # 
 CERTIFICATE_CHECKERS.update({"relation-chain": _cert_relation.check_relation_chain,
                              "theorem": _cert_relation.check_theorem,
                              "qary-three-point-sdp": _cert_qary_threepoint.check_qary_three_point,
-                             "distance-enumeration": _cert_integral.check_distance_enumeration})
+                             "distance-enumeration": _cert_integral.check_distance_enumeration,
+                             "lp-odd-size": _cert_integral.check_odd_size})

@@ -140,3 +140,25 @@ def test_distance_enumeration_never_below_known_codes():
     for n, d, m in [(8, 4, 16), (10, 4, 40), (12, 6, 24), (13, 6, 32), (16, 8, 32),
                     (10, 6, 6)]:
         assert size_is_impossible(n, d, m, _caps(n, d)) is False, (n, d)
+
+
+def test_odd_size_cut():
+    from codesearch.bounds.integral import odd_size
+
+    # Published A(24,6) <= 24106 and A(17,6) <= 340 (Best et al. 1978 / Brouwer's table, from
+    # memory); the LP gives 24107 and 341, both odd sizes.
+    for n, d, want in [(24, 6, 24106), (17, 6, 340), (23, 5, 24106)]:
+        res = odd_size(Params(2, n, d))
+        assert res is not None and res.value == want
+        ok, bound, reason = verify.check_certificate(res.certificate)
+        assert ok and bound == want, reason
+        assert not verify.check_certificate(dict(res.certificate, value=want - 1))[0]
+    # an even LP floor gains nothing: A(16,8) = 32 (RM(1,4) with complements)
+    assert odd_size(Params(2, 16, 8)) is None
+    res = odd_size(Params(2, 24, 6))
+    bad = copy.deepcopy(res.certificate)
+    bad["lp"]["y"][0] = "0/1"
+    try:
+        assert not verify.check_certificate(bad)[0]
+    except InputError:
+        pass

@@ -36,12 +36,15 @@ BOUNDS: dict[str, tuple[str, str]] = {
     "elias": ("codesearch.bounds.classical", "elias"),
     "delsarte-lp": ("codesearch.bounds.delsarte", "delsarte_lp"),
     "delsarte-lp-plus": ("codesearch.bounds.delsarte", "delsarte_lp_plus"),
+    "lp-odd-size": ("codesearch.bounds.integral", "odd_size"),
     "distance-enumeration": ("codesearch.bounds.integral", "distance_enumeration"),
     "griesmer": ("codesearch.bounds.classical", "griesmer"),
 }
 
 #: Bounds computed by solving an optimisation problem (skipped when ``lp=False``).
-_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "distance-enumeration"})
+_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "lp-odd-size", "distance-enumeration"})
+#: Computed bounds that take no solver options.
+_PLAIN = frozenset({"lp-odd-size", "distance-enumeration"})
 
 #: Longest codes the front end accepts (closed forms stay exact far beyond; this only keeps
 #: a typo such as n = 10**9 from hanging the process).
@@ -106,7 +109,7 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
             continue
         func = _function(name)
         result = (func(params, exact_fallback=lp_fallback)
-                  if name in _COMPUTED - {"distance-enumeration"} else func(params))
+                  if name in _COMPUTED - _PLAIN else func(params))
         if result is not None:
             out[name] = result
     if sdp and params.d >= 3:

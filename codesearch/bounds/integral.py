@@ -25,6 +25,13 @@ interval (every ``b_k`` is then linear in it, the congruences depend on its resi
 a partial assignment is cut when even the most favourable completion (remaining pairs put
 greedily on the largest ``K_k``) misses some ``b_k``. The work is announced (nodes) and capped.
 
+Odd sizes (:func:`odd_size`, any binary cell): the LP dual ``(y, z)`` that proves ``A <= V``
+also proves, with ``b_k >= C(n,k)`` in place of ``b_k >= 0``, that an odd-size code has
+``M - 1 <= V - 1 - Y / M`` where ``Y = sum_k y_k C(n,k)`` (multiply the dual constraints by
+the ``A_i`` and sum, as in weak duality). So ``M = floor(V)`` is impossible when it is odd
+and ``M^2 - V M + Y > 0``; the bound is then ``floor(V) - 1`` (A(24,6) <= 24106,
+A(17,6) <= 340). Certificate kind ``lp-odd-size``: the cell, the value and the LP certificate.
+
 The certificate (kind ``distance-enumeration``) holds the cell, the claimed ``U`` and the
 Delsarte LP certificate that bounds every size above ``V``;
 :mod:`codesearch._cert_integral` redoes the whole search with its own code.
@@ -47,7 +54,8 @@ from math import comb
 from codesearch.model import Params
 from codesearch.results import BoundResult
 
-__all__ = ["distance_enumeration", "size_is_impossible", "MAX_NODES", "enumeration_bound"]
+__all__ = ["distance_enumeration", "size_is_impossible", "MAX_NODES", "enumeration_bound",
+           "odd_size", "odd_size_excluded"]
 
 #: Search nodes allowed per size M (about a second of Python per 100 000 on this machine).
 MAX_NODES = 100_000
@@ -191,3 +199,34 @@ def distance_enumeration(params: Params) -> BoundResult | None:
     via = "" if (n, d) == (params.n, params.d) else f" via A({n},{d})"
     return BoundResult(params, M, "distance-enumeration", certificate=cert,
                        note=f"no integral distance distribution for sizes {M + 1}..{top}{via}")
+
+
+def odd_size_excluded(M: int, bound: "Fraction", y_weight: "Fraction") -> bool:
+    """True when an odd size ``M`` is ruled out by an LP dual of value ``bound`` whose
+    ``sum_k y_k C(n,k)`` is ``y_weight`` (see the module notes)."""
+    return M % 2 == 1 and M * M - bound * M + y_weight > 0
+
+
+def odd_size(params: Params) -> BoundResult | None:
+    """Delsarte's LP with the odd-size parity cut (binary); None when it gains nothing."""
+    from fractions import Fraction
+
+    from codesearch.bounds import best_lp_certificate
+
+    if params.q != 2 or params.d < 3:
+        return None
+    n, d = (params.n + 1, params.d + 1) if params.d % 2 else (params.n, params.d)
+    lp = best_lp_certificate(Params(2, n, d))
+    if lp is None:
+        return None
+    cert = lp.certificate
+    bound = Fraction(cert["bound"])
+    y_weight = sum(Fraction(v) * comb(n, k) for k, v in enumerate(cert["y"], start=1))
+    top = lp.value
+    if not odd_size_excluded(top, bound, y_weight):
+        return None
+    out = {"kind": "lp-odd-size", "q": 2, "n": params.n, "d": params.d, "value": top - 1,
+           "lp": dict(cert)}
+    return BoundResult(params, top - 1, "lp-odd-size", certificate=out,
+                       note=f"LP gives {top}, odd size {top} excluded by the parity of the "
+                       f"transform" + ("" if (n, d) == (params.n, params.d) else f" via A({n},{d})"))

@@ -29,6 +29,7 @@ _SHORT = {
     "elias": "elias",
     "delsarte-lp": "lp",
     "delsarte-lp-plus": "lp+",
+    "lp-odd-size": "lp-odd",
     "distance-enumeration": "lp-int",
     "three-point-sdp": "sdp",
     "qary-three-point-sdp": "sdp-q",
@@ -123,7 +124,7 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
 
 def _print_table(grid: list[Params], summaries: dict, *, lp: bool, sdp: bool,
                  out: TextIO) -> None:
-    names = [k for k in _SHORT if (lp or not (k.startswith("delsarte") or k.startswith("dist")))
+    names = [k for k in _SHORT if (lp or not k.startswith(("delsarte", "dist", "lp-")))
              and (sdp or "sdp" not in k)]
     header = (["q", "n", "d", "upper", "by", "kind", "gv"] + [_SHORT[k] for k in names]
               + ["griesmer*"])
