@@ -4,8 +4,8 @@ References (outside the project):
 - MacWilliams and Sloane (1977), Ch. 1 and Ch. 17 section 1: A(n,d) <= 2 A(n-1,d),
   A(n,2t-1) = A(n+1,2t), monotonicity in n and d.
 - Published lower values in data/published_binary.csv (sources named per row there).
-- Best et al., IEEE Trans. Inform. Theory 24 (1978), and the tables after them: A(17,4) <= 3276
-  and A(18,4) <= 6552 (from memory), the latter being twice the former.
+- Best et al., IEEE Trans. Inform. Theory 24 (1978), and the tables after them: A(18,4) <= 6552
+  and A(19,4) <= 13104 (from memory), the latter being twice the former.
 """
 
 from __future__ import annotations
@@ -37,40 +37,40 @@ def _published_lower() -> dict[tuple[int, int], int]:
 
 @pytest.fixture(scope="module")
 def grid_16_18():
-    cells = [Params(2, n, 4) for n in (16, 17, 18)]
+    cells = [Params(2, n, 4) for n in (17, 18, 19)]
     return grid_bounds(cells, all_bounds)
 
 
-def test_doubling_reaches_the_published_a18_4(grid_16_18):
-    cell = grid_16_18[Params(2, 18, 4)]
-    assert cell.upper.value == 6552  # published (from memory), = 2 * 3276
+def test_doubling_reaches_the_published_a19_4(grid_16_18):
+    cell = grid_16_18[Params(2, 19, 4)]
+    assert cell.upper.value == 13104  # published (from memory), = 2 * 6552
     assert cell.upper.method == "relation:times-q-shorter"
     assert cell.kind == "relation-chain"
-    assert [(p.n, p.d, v) for p, v in cell.cites] == [(17, 4, 3276)]
+    assert [(p.n, p.d, v) for p, v in cell.cites] == [(18, 4, 6552)]
     cert = certificate_of(cell, grid_16_18)
     ok, bound, reason = verify.check_certificate(cert)
-    assert ok and bound == 6552, reason
+    assert ok and bound == 13104, reason
 
 
 def _tampered(cert):
     c = copy.deepcopy(cert)
-    yield "lower claim", dict(c, value=6551)
+    yield "lower claim", dict(c, value=13103)
     bad = copy.deepcopy(c)
-    bad["cites"][0]["value"] = 3275
+    bad["cites"][0]["value"] = 6551
     yield "cited value below its proof", bad
     bad = copy.deepcopy(c)
     bad["rule"] = "longer"
     yield "wrong rule", bad
     bad = copy.deepcopy(c)
-    bad["cites"][0]["certificate"]["y"][0] = "0/1"
+    bad["cites"][0]["certificate"]["lp"]["y"][0] = "0/1"
     yield "nested certificate altered", bad
     bad = copy.deepcopy(c)
-    bad["cites"][0]["n"] = 16
+    bad["cites"][0]["n"] = 17
     yield "wrong cited cell", bad
 
 
 def test_tampered_relation_certificates_are_rejected(grid_16_18):
-    cert = certificate_of(grid_16_18[Params(2, 18, 4)], grid_16_18)
+    cert = certificate_of(grid_16_18[Params(2, 19, 4)], grid_16_18)
     for what, bad in _tampered(cert):
         try:
             ok, _, _ = verify.check_certificate(bad)
@@ -103,15 +103,16 @@ def test_grid_never_below_published_lower_values():
 
 def test_cli_grid_names_rule_and_cells(tmp_path, capsys):
     pattern = str(tmp_path / "c_{n}_{d}.json")
-    assert main(["bounds", "17..18", "4", "--certificate", pattern]) == 0
+    assert main(["bounds", "18..19", "4", "--certificate", pattern]) == 0
     out = capsys.readouterr().out
     assert "relation:times-q-shorter" in out and "relation-chain" in out
-    assert "A(18,4) <= 6552: times-q-shorter from A(17,4) <= 3276" in out
+    assert "A(19,4) <= 13104: times-q-shorter from A(18,4) <= 6552" in out
+    assert main(["check", str(tmp_path / "c_19_4.json")]) == 0
     assert main(["check", str(tmp_path / "c_18_4.json")]) == 0
-    assert main(["bounds", "17..18", "4", "--json", "--no-relations"]) == 0
+    assert main(["bounds", "18..19", "4", "--json", "--no-relations"]) == 0
     rows = [json.loads(line) for line in capsys.readouterr().out.splitlines()
             if line.startswith("{")]
-    assert rows[-1]["upper"] == 6553 and "relation" not in rows[-1]
+    assert rows[-1]["upper"] > 13104 and "relation" not in rows[-1]
 
 
 # ------------------------------------------------------ integral distance distributions
