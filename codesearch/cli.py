@@ -162,6 +162,9 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--certificate", metavar="FILE",
                    help="write the certificate of the upper bound (any kind) as JSON; for a "
                    "grid FILE must contain {n} and {d}; re-check with 'codesearch check FILE'")
+    p.add_argument("--four-point", action="store_true",
+                   help="ask for the four-point SDP bound (binary): prints its estimated size "
+                   "and refuses (not built in this version)")
     p.add_argument("--no-relations", action="store_true",
                    help="each cell on its own (no A(n,d) <= 2 A(n-1,d) etc. across the grid)")
     _COMMANDS["bounds"] = _cmd_bounds
@@ -170,6 +173,11 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
 def _cmd_bounds(args: argparse.Namespace) -> int:
     from codesearch.bounds import report
 
+    if args.four_point:
+        from codesearch.bounds.fourpoint import check_four_point_fits
+
+        for p in report.cells(args.q, args.n, args.d):
+            check_four_point_fits(p)  # raises ParameterError naming the size
     return report.run_bounds_command(args.q, args.n, args.d, as_json=args.json,
                                      lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
                                      certificate=args.certificate,

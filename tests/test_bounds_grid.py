@@ -163,3 +163,16 @@ def test_odd_size_cut():
         assert not verify.check_certificate(bad)[0]
     except InputError:
         pass
+
+
+def test_four_point_request_is_refused_with_its_size(capsys):
+    from codesearch.bounds.fourpoint import four_point_size
+
+    # C(n+7,7)/24 orbits at least: n = 24 gives C(31,7) = 2 629 575 -> 109 565 variables
+    assert four_point_size(24).variables == 2629575 // 24
+    assert four_point_size(21).fits and not four_point_size(22).fits
+    with pytest.raises(SystemExit) as exc:
+        raise SystemExit(main(["bounds", "24", "8", "--four-point"]))
+    assert exc.value.code == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and "109,565 variables" in err and "GB" in err
