@@ -145,9 +145,12 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
         "bounds",
         help="upper bounds on A_q(n,d) with exact certificates",
-        description="Every closed-form bound, Delsarte's LP with an exact certificate, the "
-        "least one (upper) and the Gilbert-Varshamov existential lower bound, per cell. "
-        "Python: codesearch.bounds.cell_summary(Params(q, n, d)).",
+        description="Every closed-form bound, Delsarte's LP with an exact certificate and its "
+        "integer refinements, the least one (upper, with its certificate kind; relations "
+        "between the cells of the grid included) and the Gilbert-Varshamov existential lower "
+        "bound, per cell. "
+        "Python: codesearch.bounds.cell_summary(Params(q, n, d)); a grid with its relations: "
+        "codesearch.bounds.grid_bounds(cells, all_bounds).",
     )
     p.add_argument("n", type=_int_range, help="length N or range A..B")
     p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
@@ -155,7 +158,8 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
     p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
     p.add_argument("--sdp", action="store_true",
-                   help="also Schrijver's three-point SDP bound (binary, d >= 3; slow)")
+                   help="also the three-point SDP bound (d >= 3; Schrijver's for binary codes, "
+                   "Gijswijt-Schrijver-Tanaka's for q >= 3; seconds per cell)")
     p.add_argument("--fast", action="store_true",
                    help="double-precision LP only: no high-precision fallback for cells "
                    "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
