@@ -29,67 +29,44 @@ import math
 from fractions import Fraction
 from typing import Any, Mapping
 
-__all__ = ["check_qary_three_point", "exact_psd", "parse_rational"]
+__all__ = ["check_qary_three_point", "exact_psd", "parse_rational", "read_psd_block"]
 
 #: Longest code accepted (keeps a hostile file from asking for astronomically large work).
 MAX_N = 64
 
 
 def parse_rational(text: Any) -> Fraction:
-    """``"p/q"`` or an integer; floats and decimal points are refused."""
-    if isinstance(text, bool) or isinstance(text, float):
-        raise ValueError(f"expected an exact rational, got {text!r}")
-    if isinstance(text, int):
-        return Fraction(text)
-    if not isinstance(text, str) or any(c in text for c in ".eE"):
-        raise ValueError(f"expected an exact rational 'p/q', got {text!r}")
-    return Fraction(text)
+    """``"p/q"`` or an integer; floats are refused (the checkers' common parser)."""
+    from codesearch.verify import parse_fraction
 
-
-def _int_positive_definite(a: list[list[int]]) -> bool:
-    """Sylvester's criterion by Bareiss's fraction-free elimination (exact divisions)."""
-    a = [row[:] for row in a]
-    m, prev = len(a), 1
-    for k in range(m):
-        piv = a[k][k]
-        if piv <= 0:
-            return False
-        for i in range(k + 1, m):
-            aik, row_i, row_k = a[i][k], a[i], a[k]
-            for j in range(k + 1, m):
-                row_i[j] = (row_i[j] * piv - aik * row_k[j]) // prev
-        prev = piv
-    return True
+    return parse_fraction(text)
 
 
 def exact_psd(mat: list[list[Fraction]]) -> bool:
-    """True iff the symmetric rational matrix is positive semidefinite (exact).
+    """True iff the symmetric rational matrix is positive semidefinite, exactly (the test of
+    the binary three-point checker: Sylvester/Bareiss, then an LDL^T allowing zero rows)."""
+    from codesearch.verify import _tp_psd
 
-    Positive definite through integers first; otherwise an LDL^T in rationals where a zero
-    pivot must come with a zero row.
+    return _tp_psd(mat)
+
+
+def read_psd_block(rows: Any, m: int, name: str) -> tuple[list[list[Fraction]], int] | str:
+    """Parse an ``m x m`` dual block of ``"p/q"`` strings and check it is symmetric and PSD.
+
+    Returns ``(matrix, common denominator)``, or the reason it fails (a string).
     """
+    mat = [[parse_rational(v) for v in row] for row in rows]
+    if len(mat) != m or any(len(row) != m for row in mat):
+        return f"{name} is not {m}x{m}"
+    if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
+        return f"{name} is not symmetric"
+    if not exact_psd(mat):
+        return f"{name} is not positive semidefinite"
     den = 1
     for row in mat:
         for z in row:
             den = math.lcm(den, z.denominator)
-    if _int_positive_definite([[int(z * den) for z in row] for row in mat]):
-        return True
-    a = [row[:] for row in mat]
-    m = len(a)
-    for p in range(m):
-        piv = a[p][p]
-        if piv < 0:
-            return False
-        if piv == 0:
-            if any(a[p][s] != 0 for s in range(p + 1, m)):
-                return False
-            continue
-        for r in range(p + 1, m):
-            f = a[r][p] / piv
-            if f:
-                for s in range(p + 1, m):
-                    a[r][s] -= f * a[p][s]
-    return True
+    return mat, den
 
 
 def _binom(a: int, b: int) -> int:
@@ -173,18 +150,10 @@ def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
         weights = [int(w) for w in block["weights"]]
         if len(set(weights)) != len(weights) or any(not k <= w <= n + a - k for w in weights):
             return False, None, f"bad weights in block ({family},{a},{k})"
-        mat = [[parse_rational(v) for v in row] for row in block["matrix"]]
-        m = len(weights)
-        if len(mat) != m or any(len(row) != m for row in mat):
-            return False, None, f"block ({family},{a},{k}) is not {m}x{m}"
-        if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
-            return False, None, f"block ({family},{a},{k}) is not symmetric"
-        if not exact_psd(mat):
-            return False, None, f"block ({family},{a},{k}) is not positive semidefinite"
-        den = 1
-        for row in mat:
-            for z in row:
-                den = math.lcm(den, z.denominator)
+        read = read_psd_block(block["matrix"], len(weights), f"block ({family},{a},{k})")
+        if isinstance(read, str):
+            return False, None, read
+        mat, den = read
         acc: dict = {}
 
         def put(triangle: tuple | None, value: int) -> None:

@@ -162,6 +162,7 @@ def qary_variable_count(q: int, n: int, d: int) -> int:
 def qary_three_point_data(q: int, n: int, d: int) -> QaryThreePointData:
     """Build the exact q-ary three-point program of the cell ``(q, n, d)`` (q >= 3)."""
     from codesearch.bounds.delsarte import qary_constant_weight_bound
+    from codesearch.bounds.terwilliger import RowCollector, add_terms
 
     if q < 3:
         raise ParameterError("the q-ary three-point program needs q >= 3 (binary: sdp.py)")
@@ -200,13 +201,7 @@ def qary_three_point_data(q: int, n: int, d: int) -> QaryThreePointData:
                                 terms = [(var(i, j, t, p), 1)]
                                 if family == 1:
                                     terms = [(var(i + j - t - p, 0, 0, 0), 1), (terms[0][0], -1)]
-                                for v, sign in terms:
-                                    if v is None:
-                                        continue
-                                    if v == -1:
-                                        c0 += sign * al
-                                    else:
-                                        cv[v] = cv.get(v, 0) + sign * al
+                                c0 += add_terms(cv, terms, al)
                         cv = {v: c for v, c in cv.items() if c}
                         if c0:
                             const[(r, s_)] = c0
@@ -214,26 +209,8 @@ def qary_three_point_data(q: int, n: int, d: int) -> QaryThreePointData:
                             coef[(r, s_)] = cv
                 blocks.append((family, (a, k), size, const, coef))
 
-    rows: list = []
-    seen: set = set()
-
-    def add(name: tuple, terms: list, rhs: int) -> None:
-        cv: dict[int, int] = {}
-        for v, c in terms:
-            if v is None:
-                continue
-            if v == -1:
-                rhs -= c
-            else:
-                cv[v] = cv.get(v, 0) + c
-        cv = {v: c for v, c in cv.items() if c}
-        if not cv:
-            return
-        key = (tuple(sorted(cv.items())), rhs)
-        if key not in seen:
-            seen.add(key)
-            rows.append((name, cv, rhs))
-
+    collector = RowCollector()
+    add = collector.add
     for i, j, t, p in _indices(q, n):
         x = var(i, j, t, p)
         if x is None or x == -1:
@@ -247,7 +224,7 @@ def qary_three_point_data(q: int, n: int, d: int) -> QaryThreePointData:
         add(("delsarte", k), [(var(i, 0, 0, 0), -_binom(n, i) * (q - 1) ** i
                                * _krawtchouk(q, n, k, i)) for i in range(n + 1)], 0)
     return QaryThreePointData(q=q, n=n, d=d, triangles=tuple(tris), objective=tuple(objective),
-                              blocks=tuple(blocks), rows=tuple(rows))
+                              blocks=tuple(blocks), rows=tuple(collector.rows))
 
 
 def qary_variable_cap(q: int, n: int, d: int, tri: Triangle) -> Fraction:
@@ -270,7 +247,6 @@ def qary_three_point_cost(params: Params) -> float:
 
 
 def _program(q: int, n: int, d: int):
-    from codesearch.bounds.delsarte import qary_constant_weight_bound  # noqa: F401 (cached)
     from codesearch.bounds.sdp import SdpProgram, _pow2_exponent
 
     data = qary_three_point_data(q, n, d)
