@@ -119,9 +119,12 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
         "bounds",
         help="upper bounds on A_q(n,d) with exact certificates",
-        description="Every closed-form bound, Delsarte's LP with an exact certificate, the "
-        "least one (upper) and the Gilbert-Varshamov existential lower bound, per cell. "
-        "Python: codesearch.bounds.cell_summary(Params(q, n, d)).",
+        description="Every closed-form bound, Delsarte's LP with an exact certificate and its "
+        "integer refinements, the least one (upper, with its certificate kind; relations "
+        "between the cells of the grid included) and the Gilbert-Varshamov existential lower "
+        "bound, per cell. "
+        "Python: codesearch.bounds.cell_summary(Params(q, n, d)); a grid with its relations: "
+        "codesearch.bounds.grid_bounds(cells, all_bounds).",
     )
     p.add_argument("n", type=_int_range, help="length N or range A..B")
     p.add_argument("d", type=_int_range, help="minimum distance D or range A..B")
@@ -129,12 +132,19 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--json", action="store_true", help="one JSON object per cell")
     p.add_argument("--no-lp", action="store_true", help="closed forms only (skip the LPs)")
     p.add_argument("--sdp", action="store_true",
-                   help="also Schrijver's three-point SDP bound (binary, d >= 3; slow)")
+                   help="also the three-point SDP bound (d >= 3; Schrijver's for binary codes, "
+                   "Gijswijt-Schrijver-Tanaka's for q >= 3; seconds per cell)")
     p.add_argument("--fast", action="store_true",
                    help="double-precision LP only: no high-precision fallback for cells "
                    "whose LP value is beyond ~2^40 (such cells may stay uncertified)")
     p.add_argument("--certificate", metavar="FILE",
-                   help="write the LP certificate of the (single) cell as JSON")
+                   help="write the certificate of the upper bound (any kind) as JSON; for a "
+                   "grid FILE must contain {n} and {d}; re-check with 'codesearch check FILE'")
+    p.add_argument("--four-point", action="store_true",
+                   help="ask for the four-point SDP bound (binary): prints its estimated size "
+                   "and refuses (not built in this version)")
+    p.add_argument("--no-relations", action="store_true",
+                   help="each cell on its own (no A(n,d) <= 2 A(n-1,d) etc. across the grid)")
     _COMMANDS["bounds"] = _cmd_bounds
 
 
@@ -144,24 +154,38 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
     from codesearch.report import text
 
     cells = grid(args.q, args.n, args.d, max_n=bounds.MAX_N, limit="bounds limit")
-    if args.certificate is not None and len(cells) != 1:
-        raise InputError("--certificate needs a single cell (N and D, not ranges)")
+    pattern = args.certificate
+    if pattern is not None and len(cells) != 1 and not ("{n}" in pattern and "{d}" in pattern):
+        raise InputError("--certificate for a grid needs {n} and {d} in the file name")
+    if args.four_point:
+        from codesearch.bounds.fourpoint import check_four_point_fits
+
+        for p in cells:
+            check_four_point_fits(p)  # raises, naming the program's estimated size
     if args.sdp:
         _require_sdp_solver()
     options = dict(lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp)
+    result = bounds.grid_bounds(cells, lambda p: bounds.all_bounds(p, **options),
+                                relations=not args.no_relations)
+    summaries = [bounds.summarize(p, result[p].bounds, result[p].upper, result[p].cites)
+                 for p in cells]
     if args.json:
-        for p in cells:
-            _print_json(bounds.cell_summary(p, **options))
+        for s in summaries:
+            _print_json(s)
     else:
-        print(text.bounds_table([bounds.cell_summary(p, **options) for p in cells],
-                                lp=options["lp"], sdp=args.sdp))
-    if args.certificate is not None:
+        print(text.bounds_table(summaries, lp=options["lp"], sdp=args.sdp))
+    if pattern is not None:
         from codesearch.codefile import write_certificate
 
-        best = bounds.best_lp_certificate(cells[0])
-        if best is None:
-            raise InputError(f"no certified LP bound for {cells[0]}")
-        write_certificate(args.certificate, best.certificate)
+        for p in cells:
+            cert = bounds.certificate_of(result[p], result)
+            if cert is None:
+                if len(cells) == 1:
+                    raise InputError(f"the upper bound of {p} is the closed form "
+                                     f"{result[p].upper.method}: no certificate file")
+                continue
+            name = pattern.replace("{n}", str(p.n)).replace("{d}", str(p.d))
+            write_certificate(name.replace("{q}", str(p.q)), cert)
     return 0
 
 

@@ -23,7 +23,8 @@ from codesearch.results import BoundResult
 
 __all__ = ["BOUNDS", "MAX_N", "bound_names", "compute_bound", "upper_bound", "all_bounds",
            "gv_lower_bound", "least_usable",
-           "cell_summary", "best_lp_certificate", "finite_points"]
+           "cell_summary", "summarize", "best_lp_certificate", "finite_points", "grid_bounds",
+           "CellBound", "certificate_of"]
 
 #: Canonical bound name -> (module, function). Order is the tie-break for the winning bound:
 #: simpler theorems first, so a cell names the plainest argument that reaches its value.
@@ -35,11 +36,15 @@ BOUNDS: dict[str, tuple[str, str]] = {
     "elias": ("codesearch.bounds.classical", "elias"),
     "delsarte-lp": ("codesearch.bounds.delsarte", "delsarte_lp"),
     "delsarte-lp-plus": ("codesearch.bounds.delsarte", "delsarte_lp_plus"),
+    "lp-odd-size": ("codesearch.bounds.integral", "odd_size"),
+    "distance-enumeration": ("codesearch.bounds.integral", "distance_enumeration"),
     "griesmer": ("codesearch.bounds.classical", "griesmer"),
 }
 
 #: Bounds computed by solving an optimisation problem (skipped when ``lp=False``).
-_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus"})
+_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "lp-odd-size", "distance-enumeration"})
+#: Computed bounds that take no solver options.
+_PLAIN = frozenset({"lp-odd-size", "distance-enumeration"})
 
 #: Longest codes the front end accepts (closed forms stay exact far beyond; this only keeps
 #: a typo such as n = 10**9 from hanging the process).
@@ -80,8 +85,10 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
     params : Params
         The cell.
     sdp : bool
-        Also compute Schrijver's three-point semidefinite bound (binary, d >= 3; seconds
-        to minutes per cell, see :func:`codesearch.bounds.sdp.three_point_cost`).
+        Also compute the three-point semidefinite bound (d >= 3): Schrijver's for binary
+        codes, Gijswijt-Schrijver-Tanaka's for q >= 3 (seconds to minutes per cell, see
+        :func:`codesearch.bounds.sdp.three_point_cost` and
+        :func:`codesearch.bounds.qary_sdp.qary_three_point_cost`).
     lp : bool
         Include the Delsarte linear programs (the slow part of a grid run).
     lp_fallback : bool
@@ -101,19 +108,20 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         if not lp and name in _COMPUTED:
             continue
         func = _function(name)
-        result = func(params, exact_fallback=lp_fallback) if name in _COMPUTED else func(params)
+        result = (func(params, exact_fallback=lp_fallback)
+                  if name in _COMPUTED - _PLAIN else func(params))
         if result is not None:
             out[name] = result
-    if sdp and params.q == 2 and params.d >= 3:
-        # Schrijver's bound is binary and needs d >= 3 (A(n,1), A(n,2) are known exactly).
-        try:
-            from codesearch.bounds.sdp import three_point_bound
-        except ImportError:
-            three_point_bound = None
-        if three_point_bound is not None:
-            result = three_point_bound(params)
-            if result is not None:
-                out[result.method] = result
+    if sdp and params.d >= 3:
+        # Schrijver's bound (binary) and Gijswijt-Schrijver-Tanaka's (q >= 3); both need
+        # d >= 3 (A_q(n,1), A_q(n,2) are known exactly).
+        if params.q == 2:
+            from codesearch.bounds.sdp import three_point_bound as semidefinite
+        else:
+            from codesearch.bounds.qary_sdp import qary_three_point_bound as semidefinite
+        result = semidefinite(params)
+        if result is not None:
+            out[result.method] = result
     return out
 
 
@@ -152,18 +160,46 @@ def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
     whose solver answer failed its exact check; never used).
     """
     found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback)
-    best = least_usable(found)
-    return {
+    return summarize(params, found)
+
+
+def summarize(params: Params, found: dict[str, BoundResult], upper: BoundResult | None = None,
+              cites: tuple = ()) -> dict:
+    """The :func:`cell_summary` dictionary from bounds already computed.
+
+    ``upper`` (default: the least usable of ``found``) may be a bound derived from other
+    cells (:func:`grid_bounds`); ``cites`` are then its ``(cell, value)`` pairs, listed under
+    ``relation``. ``upper_kind`` is the certificate kind of the upper bound (``"theorem"``
+    for a closed form).
+    """
+    best = upper if upper is not None else least_usable(found)
+    bounds = {k: b.value for k, b in found.items() if b.usable}
+    if best.method not in bounds:
+        bounds[best.method] = best.value
+    out = {
         "q": params.q,
         "n": params.n,
         "d": params.d,
-        "bounds": {k: b.value for k, b in found.items() if b.usable},
+        "bounds": bounds,
         "upper": best.value,
         "upper_method": best.method,
+        "upper_kind": ("theorem" if best.certificate is None
+                       else str(best.certificate.get("kind", "certificate"))),
         "gv": gv_lower_bound(params),
         "linear": {k: b.value for k, b in found.items() if b.scope == "linear" and b.certified},
         "uncertified": sorted(k for k, b in found.items() if not b.certified),
     }
+    if cites:
+        out["relation"] = {"rule": best.method.partition(":")[2],
+                           "cites": [[c.q, c.n, c.d, v] for c, v in cites]}
+    return out
+
+
+def __getattr__(name: str):
+    # the grid helpers load on first use
+    if name in ("grid_bounds", "CellBound", "certificate_of"):
+        return getattr(importlib.import_module("codesearch.bounds.grid_relations"), name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def finite_points(q: int, ns: Iterable[int], *, lp: bool = True

@@ -67,6 +67,7 @@ from __future__ import annotations
 
 import math
 import time
+from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
 from typing import Any
@@ -76,7 +77,8 @@ from codesearch.model import Params
 from codesearch.bounds.terwilliger import shape_count
 from codesearch.results import BoundResult
 
-__all__ = ["three_point_bound", "three_point_cost", "solve_three_point", "SOLVERS"]
+__all__ = ["three_point_bound", "three_point_cost", "solve_three_point", "SOLVERS",
+           "SdpProgram", "solve_program"]
 
 #: Solvers understood by :func:`three_point_bound`.
 SOLVERS = ("clarabel", "scs")
@@ -197,8 +199,6 @@ def solve_three_point(
     summaries), ``seconds``, ``check_seconds`` (the independent re-check in
     :mod:`codesearch.verify`, run before returning) and ``reason``.
     """
-    import numpy as np
-
     from codesearch.bounds.terwilliger import three_point_data, variable_cap
 
     t0 = time.perf_counter()
@@ -207,19 +207,96 @@ def solve_three_point(
     radius = (d - 1) // 2
     # M0: the sphere-packing size, the unit in which the solver sees the objective.
     m0 = 2.0**n / sum(math.comb(n, i) for i in range(radius + 1))
-    cap = np.array([float(variable_cap(n, d, tri)) for tri in data.triangles])
-    shape = np.array([float(shape_count(n, *tri)) for tri in data.triangles])
-    # Pass 1: x_v = w_v / sv_v with sv the geometric mean of 1/cap (w <= 1) and the count of
-    # word pairs of the triangle's shape over M0 (w ~ codeword pairs of that shape / M0);
-    # either alone left Clarabel stalling far from the optimum on some cells.
-    sv = np.sqrt(shape / m0 / cap)
     exps = {}
     for family, k, size, const, coef in data.blocks:
         e = [_pow2_exponent(math.comb(n - 2 * k, r)) // 2 for r in range(size)]
         mult = math.comb(n, k) - (math.comb(n, k - 1) if k else 0)
         # block scale 2**-g: the blocks' traces, weighted by multiplicity, add up to |C| / M0
         exps[(family, k)] = (e, _pow2_exponent(m0 / mult))
-    best = _delsarte_pass(data, m0)
+    prog = SdpProgram(
+        data=data,
+        caps=tuple(variable_cap(n, d, tri) for tri in data.triangles),
+        shapes=tuple(shape_count(n, *tri) for tri in data.triangles),
+        m0=m0, kind="three-point-sdp", exps=exps,
+        offsets={k: k for _f, k, *_ in data.blocks},
+        labels={k: {"k": k} for _f, k, *_ in data.blocks},
+    )
+    best = solve_program(prog, time_limit=time_limit, solver=solver)
+    best["seconds"] = time.perf_counter() - t0
+    if best["certificate"] is not None:
+        best["certificate"]["sdp_n"] = n
+        best["certificate"]["sdp_d"] = d
+        best["certificate"]["even"] = even
+        # The independent checker re-derives everything; disagreement is a bug here.
+        from codesearch.errors import VerificationError
+        from codesearch.verify import check_certificate
+
+        t_check = time.perf_counter()
+        valid, bound, reason = check_certificate(dict(best["certificate"], q=2, n=n, d=d))
+        best["check_seconds"] = time.perf_counter() - t_check
+        if not valid or bound != best["value"]:
+            raise VerificationError(f"three-point certificate for ({n},{d}) rejected: {reason}")
+    return best
+
+
+@dataclass(frozen=True)
+class SdpProgram:
+    """A symmetry-reduced semidefinite program of the three-point kind, ready to solve.
+
+    Attributes
+    ----------
+    data : object
+        The exact program: ``n, d, triangles, objective, blocks, rows`` as in
+        :class:`codesearch.bounds.terwilliger.ThreePointData`; a block is
+        ``(family, key, size, const, coef)`` with any hashable ``key``.
+    caps : tuple of Fraction
+        Proven upper bounds on each variable for every code (they absorb rounding residuals).
+    shapes : tuple of int
+        Number of word pairs of each variable's shape around a fixed word (scaling only).
+    m0 : float
+        Unit of the objective seen by the solver (about the expected optimum).
+    kind : str
+        Certificate kind written.
+    exps : dict
+        ``(family, key) -> (row exponents, block exponent)``: the first scaling.
+    offsets : dict
+        ``key -> weight of the block's first row`` (row r has weight ``offset + r``).
+    labels : dict
+        ``key -> fields naming the block in the certificate``.
+    """
+
+    data: Any
+    caps: tuple
+    shapes: tuple
+    m0: float
+    kind: str
+    exps: dict = field(hash=False)
+    offsets: dict = field(hash=False)
+    labels: dict = field(hash=False)
+
+
+def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
+                  solver: str = "clarabel") -> dict[str, Any]:
+    """Solve ``prog`` in floating point and certify the best dual pass exactly.
+
+    The Delsarte-rows LP dual is certified first (never weaker than the LP); then up to
+    ``_PASSES`` semidefinite passes, each rounded and bounded exactly (see
+    :func:`solve_three_point`). Returns the result dict of the best certified pass (the
+    certificate carries ``kind``, ``blocks``, ``multipliers``, ``bound``, ``value``,
+    ``settings``; the caller adds the cell).
+    """
+    import numpy as np
+
+    t0 = time.perf_counter()
+    data, m0 = prog.data, prog.m0
+    cap = np.array([float(c) for c in prog.caps])
+    shape = np.array([float(c) for c in prog.shapes])
+    # Pass 1: x_v = w_v / sv_v with sv the geometric mean of 1/cap (w <= 1) and the count of
+    # word pairs of the triangle's shape over M0 (w ~ codeword pairs of that shape / M0);
+    # either alone left Clarabel stalling far from the optimum on some cells.
+    sv = np.sqrt(shape / m0 / cap)
+    exps = dict(prog.exps)
+    best = _delsarte_pass(prog)
     passes = [{k_: best[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
     if not best["certified"]:
         best = None
@@ -227,7 +304,7 @@ def solve_three_point(
     for attempt in range(_PASSES):
         t_pass = time.perf_counter()
         sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
-        res = _certify(data, m0, sol)
+        res = _certify(prog, sol)
         res["seconds"] = time.perf_counter() - t_pass
         passes.append({k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")})
         if res["certified"] and (best is None or res["exact"] < best["exact"]):
@@ -244,27 +321,15 @@ def solve_three_point(
     best["passes"] = passes
     best["seconds"] = time.perf_counter() - t0
     if best["certificate"] is not None:
-        best["certificate"]["sdp_n"] = n
-        best["certificate"]["sdp_d"] = d
-        best["certificate"]["even"] = even
         best["certificate"]["settings"] = {
             "tolerance": _TOL,
             "passes": len(passes),
             "round_bits": _ROUND_BITS,
         }
-        # The independent checker re-derives everything; disagreement is a bug here.
-        from codesearch.errors import VerificationError
-        from codesearch.verify import check_certificate
-
-        t_check = time.perf_counter()
-        valid, bound, reason = check_certificate(dict(best["certificate"], q=2, n=n, d=d))
-        best["check_seconds"] = time.perf_counter() - t_check
-        if not valid or bound != best["value"]:
-            raise VerificationError(f"three-point certificate for ({n},{d}) rejected: {reason}")
     return best
 
 
-def _delsarte_pass(data: Any, m0: float) -> dict:
+def _delsarte_pass(prog: SdpProgram) -> dict:
     """Certify Delsarte's LP inside the same program (no PSD blocks; the Delsarte rows and
     the constant-weight rows ``A_i <= A(n,d,i)``, i.e. the LP strengthened as usual).
 
@@ -277,6 +342,7 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     from scipy.optimize import linprog
 
     t0 = time.perf_counter()
+    data, m0 = prog.data, prog.m0
     kinds = ("delsarte", "weight")
     rows = [a for a, (label, _cv, _rhs) in enumerate(data.rows) if label[0] in kinds]
     single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
@@ -292,7 +358,7 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
     # x[i,0,0] <= 1 helps HiGHS; its multipliers are not needed (absorbed by the caps)
     res = linprog(cvec, A_ub=a_ub, b_ub=b_ub, bounds=[(0, 1)] * len(single), method="highs")
     sol = {"status": f"lp:{res.status}", "float_value": float("nan"), "gap": 0.0}
-    out = _certify_parts(data, [], [], sol)
+    out = _certify_parts(prog, [], [], sol)
     if res.status == 0:
         out["float_value"] = 1.0 - res.fun * m0
         mus = []
@@ -300,7 +366,7 @@ def _delsarte_pass(data: Any, m0: float) -> dict:
             mu = -float(res.ineqlin.marginals[r])  # >= 0 for a minimisation with <= rows
             if mu > 0.0:
                 mus.append((a, Fraction(mu)))
-        out = _certify_parts(data, [], mus, dict(sol, float_value=out["float_value"]))
+        out = _certify_parts(prog, [], mus, dict(sol, float_value=out["float_value"]))
     out["seconds"] = time.perf_counter() - t0
     return out
 
@@ -489,8 +555,9 @@ def _rescale(data: Any, sol: dict, sv: Any, exps: dict, cap: Any) -> tuple[Any, 
     return new_sv, new_exps
 
 
-def _certify(data: Any, m0: float, sol: dict) -> dict:
+def _certify(prog: SdpProgram, sol: dict) -> dict:
     """Round one pass's dual to an exactly feasible one and bound |C| exactly."""
+    data, m0 = prog.data, prog.m0
     out: dict[str, Any] = {
         "float_value": sol["float_value"],
         "gap": sol["gap"],
@@ -516,7 +583,7 @@ def _certify(data: Any, m0: float, sol: dict) -> dict:
             return out
         # Z_B = 2**-g D zt D, D = diag(2**-e_r): entry (r, s) is
         # zint[r][s] / 2**(_ROUND_BITS + g + e_r + e_s).
-        zmats.append((family, k, [keep[r] + k for r in range(m)], zint,
+        zmats.append((family, k, [keep[r] + prog.offsets[k] for r in range(m)], zint,
                       [e[keep[r]] for r in range(m)], g))
     zl = z[sol["lin_row0"] : sol["lin_row0"] + len(data.rows)]
     mus = []
@@ -524,10 +591,10 @@ def _certify(data: Any, m0: float, sol: dict) -> dict:
         mu = float(zl[a]) * m0 / sol["row_scale"][a]  # x-space multiplier of row a
         if mu > 0.0:
             mus.append((a, Fraction(mu)))  # exact dyadic value of the float
-    return _certify_parts(data, zmats, mus, sol)
+    return _certify_parts(prog, zmats, mus, sol)
 
 
-def _certify_parts(data: Any, zmats: list, mus: list, sol: dict) -> dict:
+def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
     """Exact bound and certificate from rounded dual blocks and multipliers."""
     out: dict[str, Any] = {
         "float_value": sol["float_value"],
@@ -535,14 +602,15 @@ def _certify_parts(data: Any, zmats: list, mus: list, sol: dict) -> dict:
         "status": sol["status"],
         "reason": "",
     }
-    exact = _exact_bound(data, zmats, mus)
+    data = prog.data
+    exact = _exact_bound(prog, zmats, mus)
     blocks_cert = []
     for family, k, weights, zint, es, g in zmats:
         m = len(weights)
         blocks_cert.append(
             {
                 "family": family,
-                "k": k,
+                **prog.labels[k],
                 "weights": weights,
                 "matrix": [
                     [
@@ -562,7 +630,7 @@ def _certify_parts(data: Any, zmats: list, mus: list, sol: dict) -> dict:
         exact=exact,
         exact_float=float(exact),
         certificate={
-            "kind": "three-point-sdp",
+            "kind": prog.kind,
             "blocks": blocks_cert,
             "multipliers": [
                 {"row": list(data.rows[a][0]), "value": _frac_str(mu)} for a, mu in mus
@@ -623,10 +691,9 @@ def _is_positive_definite(mat: list[list[int]]) -> bool:
     return True
 
 
-def _exact_bound(data: Any, zmats: list, mus: list) -> Fraction:
+def _exact_bound(prog: SdpProgram, zmats: list, mus: list) -> Fraction:
     """Exact upper bound on |C| from rounded duals (see the module docstring)."""
-    from codesearch.bounds.terwilliger import variable_cap
-
+    data = prog.data
     q_exp = _ROUND_BITS + max(
         [g + 2 * max(es) for _, _, _, _, es, g in zmats] + [0]
     ) + 4
@@ -647,7 +714,8 @@ def _exact_bound(data: Any, zmats: list, mus: list) -> Fraction:
                     raise AssertionError("scale exponent too small")
                 if ri != si:
                     zval *= 2
-                key = (weights[ri] - k, weights[si] - k)
+                off = prog.offsets[k]
+                key = (weights[ri] - off, weights[si] - off)
                 c0 = const.get(key)
                 if c0:
                     total += zval * c0
@@ -660,6 +728,6 @@ def _exact_bound(data: Any, zmats: list, mus: list) -> Fraction:
         total += total_f
         for v, c in cv.items():
             r[v] -= mu_s * c
-    caps = [variable_cap(data.n, data.d, tri) for tri in data.triangles]
+    caps = prog.caps
     absorbed = sum((r[v] * caps[v] for v in range(nv) if r[v] > 0), Fraction(0))
     return Fraction(total + absorbed) / scale

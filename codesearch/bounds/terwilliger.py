@@ -47,6 +47,8 @@ __all__ = [
     "constant_weight_cap",
     "shape_count",
     "variable_cap",
+    "add_terms",
+    "RowCollector",
 ]
 
 
@@ -159,6 +161,44 @@ def _free_triangles(n: int, d: int, even: bool) -> list[Triangle]:
     return out
 
 
+def add_terms(cv: dict[int, int], terms: list[tuple[int | None, int]], weight: int) -> int:
+    """Add ``weight * c`` for each ``(variable, c)`` of ``terms`` to ``cv``; return the part
+    on the constant ``x[0..] = 1`` (variable ``-1``). Variables forced to zero (None) drop."""
+    const = 0
+    for v, c in terms:
+        if v is None:
+            continue
+        if v == -1:
+            const += c * weight
+        else:
+            cv[v] = cv.get(v, 0) + c * weight
+    return const
+
+
+class RowCollector:
+    """Linear rows ``sum c_v y_v <= rhs`` of a three-point program, deduplicated.
+
+    :meth:`add` moves the constant variable (index -1) to the right-hand side and drops
+    variables forced to zero; rows left without a variable are trivially true (checked:
+    ``rhs >= 0`` for every row built here) and dropped.
+    """
+
+    def __init__(self) -> None:
+        self.rows: list[tuple[tuple, dict[int, int], int]] = []
+        self._seen: set[tuple] = set()
+
+    def add(self, name: tuple, terms: list[tuple[int | None, int]], rhs: int) -> None:
+        cv: dict[int, int] = {}
+        rhs -= add_terms(cv, terms, 1)
+        cv = {v: c for v, c in cv.items() if c}
+        if not cv:
+            return
+        key = (tuple(sorted(cv.items())), rhs)
+        if key not in self._seen:
+            self._seen.add(key)
+            self.rows.append((name, cv, rhs))
+
+
 def _krawtchouk(n: int, k: int, i: int) -> int:
     return sum((-1) ** s * _binom(i, s) * _binom(n - i, k - s) for s in range(k + 1))
 
@@ -218,13 +258,7 @@ def three_point_data(n: int, d: int, even: bool, delsarte: bool = True) -> Three
                         terms = [(var(i, j, t), 1)]
                         if family == 1:
                             terms = [(var(i + j - 2 * t, 0, 0), 1), (terms[0][0], -1)]
-                        for v, sign in terms:
-                            if v is None:
-                                continue
-                            if v == -1:
-                                c0 += sign * bt
-                            else:
-                                cv[v] = cv.get(v, 0) + sign * bt
+                        c0 += add_terms(cv, terms, bt)
                     cv = {v: c for v, c in cv.items() if c}
                     if c0:
                         const[(r, s)] = c0
@@ -232,28 +266,8 @@ def three_point_data(n: int, d: int, even: bool, delsarte: bool = True) -> Three
                         coef[(r, s)] = cv
             blocks.append((family, k, size, const, coef))
 
-    rows: list[tuple[tuple, dict[int, int], int]] = []
-    seen: set[tuple] = set()
-
-    def add(name: tuple, terms: list[tuple[int | None, int]], rhs: int) -> None:
-        # Move the constant x[0,0,0] = 1 to the right-hand side; rows touching a variable
-        # forced to zero keep the remaining terms (the zero variable drops out).
-        cv: dict[int, int] = {}
-        for v, c in terms:
-            if v is None:
-                continue
-            if v == -1:
-                rhs -= c
-            else:
-                cv[v] = cv.get(v, 0) + c
-        cv = {v: c for v, c in cv.items() if c}
-        if not cv:
-            return  # trivially true (checked: rhs >= 0 for every row built here)
-        key = (tuple(sorted(cv.items())), rhs)
-        if key in seen:
-            return
-        seen.add(key)
-        rows.append((name, cv, rhs))
+    collector = RowCollector()
+    add = collector.add
 
     for i in range(n + 1):
         for j in range(n + 1):
@@ -283,7 +297,7 @@ def three_point_data(n: int, d: int, even: bool, delsarte: bool = True) -> Three
         triangles=tuple(tris),
         objective=tuple(objective),
         blocks=tuple(blocks),
-        rows=tuple(rows),
+        rows=tuple(collector.rows),
     )
 
 

@@ -22,7 +22,10 @@ BOUND_LABELS = {
     "elias": "elias",
     "delsarte-lp": "lp",
     "delsarte-lp-plus": "lp+",
+    "lp-odd-size": "lp-odd",
+    "distance-enumeration": "lp-int",
     "three-point-sdp": "sdp",
+    "qary-three-point-sdp": "sdp-q",
 }
 
 
@@ -83,19 +86,34 @@ def table_summary(summary: Any, store: str) -> str:
 
 def bounds_table(summaries: Sequence[Mapping[str, Any]], *, lp: bool = True,
                  sdp: bool = False) -> str:
-    """The aligned table of :func:`codesearch.bounds.cell_summary` rows, one line a cell."""
-    names = [k for k in BOUND_LABELS if (lp or not k.startswith("delsarte"))
-             and (sdp or k != "three-point-sdp")]
-    names += sorted({k for s in summaries for k in s["bounds"]} - set(names))
-    header = ["q", "n", "d", "upper", "by", "gv"] + [BOUND_LABELS.get(k, k) for k in names]
+    """The aligned table of :func:`codesearch.bounds.summarize` rows, one line a cell.
+
+    ``kind`` is the certificate kind of the upper bound (``theorem`` for a closed form);
+    bounds derived from other cells of the grid are listed under the table with the rule and
+    the cells they cite.
+    """
+    names = [k for k in BOUND_LABELS if (lp or not k.startswith(("delsarte", "dist", "lp-")))
+             and (sdp or "sdp" not in k)]
+    names += sorted({k for s in summaries for k in s["bounds"]
+                     if ":" not in k} - set(names))
+    header = ["q", "n", "d", "upper", "by", "kind", "gv"] + [BOUND_LABELS.get(k, k)
+                                                              for k in names]
     rows = [header + ["griesmer*"]]
+    notes = []
     for s in summaries:
         row = [str(s["q"]), str(s["n"]), str(s["d"]), str(s["upper"]), s["upper_method"],
-               format_value(s["gv"])]
+               s.get("upper_kind", "-"), format_value(s["gv"])]
         row += ["-" if s["bounds"].get(k) is None else format_value(s["bounds"][k])
                 for k in names]
         g = s["linear"].get("griesmer")
         rows.append(row + ["-" if g is None else format_value(g)])
-    return "\n".join(_aligned(rows) + [
+        if "relation" in s:
+            cited = ", ".join(f"A({c[1]},{c[2]}) <= {c[3]}" for c in s["relation"]["cites"])
+            notes.append(f"  A({s['n']},{s['d']}) <= {s['upper']}: {s['relation']['rule']} "
+                         f"from {cited}")
+    lines = _aligned(rows) + [
         "* griesmer bounds linear codes only; gv is an existential lower bound; "
-        "'-' = not applicable or not certified"])
+        "'-' = not applicable or not certified"]
+    if notes:
+        lines += ["relations between cells of the grid:"] + notes
+    return "\n".join(lines)

@@ -12,7 +12,10 @@ from __future__ import annotations
 from typing import Any, Callable, Mapping
 
 from codesearch.errors import InputError
+from codesearch.verify.integral import check_distance_enumeration, check_odd_size
 from codesearch.verify.lp import check_delsarte_lp, check_delsarte_lp_qcw
+from codesearch.verify.qary_three_point import check_qary_three_point
+from codesearch.verify.relation_chain import check_relation_chain, check_theorem
 from codesearch.verify.three_point import check_three_point_certificate
 
 __all__ = ["CERTIFICATE_CHECKERS", "Checker", "check_certificate"]
@@ -25,6 +28,12 @@ CERTIFICATE_CHECKERS: dict[str, Checker] = {
     "delsarte-lp": check_delsarte_lp,
     "delsarte-lp-qcw": check_delsarte_lp_qcw,
     "three-point-sdp": check_three_point_certificate,
+    "qary-three-point-sdp": check_qary_three_point,
+    # these three nest certificates of any kind, re-checked through the table's entry point
+    "lp-odd-size": lambda cert: check_odd_size(cert, check_certificate),
+    "distance-enumeration": lambda cert: check_distance_enumeration(cert, check_certificate),
+    "relation-chain": lambda cert: check_relation_chain(cert, check_certificate),
+    "theorem": check_theorem,
 }
 
 
