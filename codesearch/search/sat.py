@@ -26,8 +26,10 @@ default solver. Time limits: python-sat's CaDiCaL bindings ignore ``interrupt()`
 in a forked worker process that reports every answer through a pipe and is terminated at the
 deadline; without one it runs in this process. With ``proof``
 the solver's DRAT proof of each refuted branch is written next to the DIMACS formula it
-refutes, for an outside checker (e.g. drat-trim). The proof covers the *reduced* formula:
-its soundness for the cell rests on the symmetry-breaking arguments above.
+refutes, with a manifest binding them to the claim (:mod:`codesearch.proofbundle`), which
+``codesearch check`` re-checks with the project's own checker (:mod:`codesearch.drat`). The
+proof covers the *reduced* formula: its soundness for the cell rests on the
+symmetry-breaking arguments above.
 
 References
 ----------
@@ -512,7 +514,9 @@ def run(
         and raise M while satisfiable; a refutation then proves the best code optimal.
     proof : str, optional
         With ``size``: write the DIMACS formula and DRAT proof of each refuted branch to
-        ``PROOF[.wW].cnf`` and ``PROOF[.wW]``.
+        ``PROOF[.wW].cnf`` and ``PROOF[.wW]``; when every branch is refuted, also the
+        manifest ``PROOF.json`` that binds them to the claim
+        (:mod:`codesearch.proofbundle`; re-check with ``codesearch check PROOF.json``).
     symmetry : {"lex", "pair", "zero", "none"}
         Symmetry-breaking level.
     encoding : str
@@ -569,6 +573,14 @@ def run(
         elif answer is False:
             upper = target - 1
             status = Status.INFEASIBLE
+            if proof is not None:  # every branch refuted: bind the proofs to the claim
+                from codesearch import proofbundle
+
+                settings["proof_bundle"] = proofbundle.write_manifest(
+                    proof, q, params.n, params.d, target, symmetry, encoding,
+                    info["proof_files"], info["branches_refuted"],
+                    {"codesearch": settings["version"], "pysat": settings["pysat"],
+                     "solver": solver})
         else:
             status = Status.UNKNOWN
     else:
