@@ -1510,6 +1510,15 @@ def _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, w
 
 
 @nb.njit(cache=True)
+def _drat_push(stack, top, v):
+    """``stack[top] = v``, doubling the array when full; returns the (possibly new) array."""
+    if top == stack.size:
+        stack = np.concatenate((stack, np.empty(stack.size, np.int64)))
+    stack[top] = v
+    return stack
+
+
+@nb.njit(cache=True)
 def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
     """Mark as core the clause ``cc`` (if >= 0) and the reasons of every literal the conflict
     depends on (``clit``: a literal whose truth is the conflict, or -1). Returns the number of
@@ -1527,15 +1536,11 @@ def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
             v = lits[i] >> 1
             if seen[v] != stamp:
                 seen[v] = stamp
-                if top == stack.size:
-                    stack = np.concatenate((stack, np.empty(stack.size, np.int64)))
-                stack[top] = v
+                stack = _drat_push(stack, top, v)
                 top += 1
     if clit >= 0 and seen[clit >> 1] != stamp:
         seen[clit >> 1] = stamp
-        if top == stack.size:
-            stack = np.concatenate((stack, np.empty(stack.size, np.int64)))
-        stack[top] = clit >> 1
+        stack = _drat_push(stack, top, clit >> 1)
         top += 1
     while top > 0:
         top -= 1
@@ -1550,9 +1555,7 @@ def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
             u = lits[i] >> 1
             if seen[u] != stamp:
                 seen[u] = stamp
-                if top == stack.size:
-                    stack = np.concatenate((stack, np.empty(stack.size, np.int64)))
-                stack[top] = u
+                stack = _drat_push(stack, top, u)
                 top += 1
     return marked
 

@@ -81,7 +81,7 @@ from codesearch.errors import InputError
 
 __all__ = ["MAX_CNF_BYTES", "MAX_PROOF_BYTES", "MAX_MEMORY", "MAX_VARS", "Cnf", "Proof",
            "ProofCheck", "parse_cnf", "parse_proof", "read_cnf", "read_proof", "check_proof",
-           "check_files", "estimate_memory"]
+           "check_files", "estimate_memory", "read_bytes"]
 
 #: Largest formula file read (bytes).
 MAX_CNF_BYTES = 256 * 2**20
@@ -308,14 +308,14 @@ def parse_proof(data: bytes, what: str = "proof") -> Proof:
     return Proof(raw, start, isdel)
 
 
-def _read(path: str, cap: int, what: str) -> bytes:
+def read_bytes(path: str, cap: int, what: str) -> bytes:
+    """The bytes of ``path``, refused with one line when larger than ``cap``."""
     try:
         size = os.path.getsize(path)
     except OSError as exc:
         raise InputError(f"{path}: cannot read: {exc.strerror}") from None
     if size > cap:
-        raise InputError(f"{path}: {size} bytes is past the checker's cap for a {what} "
-                         f"({cap} bytes)")
+        raise InputError(f"{path}: {size} bytes is past the cap for a {what} ({cap} bytes)")
     try:
         with open(path, "rb") as fh:
             return fh.read()
@@ -325,12 +325,12 @@ def _read(path: str, cap: int, what: str) -> bytes:
 
 def read_cnf(path: str) -> Cnf:
     """Read a DIMACS CNF file (see :func:`parse_cnf`)."""
-    return parse_cnf(_read(path, MAX_CNF_BYTES, "formula"), path)
+    return parse_cnf(read_bytes(path, MAX_CNF_BYTES, "formula"), path)
 
 
 def read_proof(path: str) -> Proof:
     """Read a text DRAT proof file (see :func:`parse_proof`)."""
-    return parse_proof(_read(path, MAX_PROOF_BYTES, "proof"), path)
+    return parse_proof(read_bytes(path, MAX_PROOF_BYTES, "proof"), path)
 
 
 def check_proof(cnf: Cnf, proof: Proof) -> ProofCheck:

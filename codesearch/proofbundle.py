@@ -244,22 +244,15 @@ def _digest(obj: Mapping[str, Any], key: str, where: str) -> str:
 
 
 def _load(path: str) -> tuple[dict, list[dict]]:
+    from codesearch.drat import read_bytes
+
+    data = read_bytes(path, MAX_MANIFEST_BYTES, "manifest")
     try:
-        size = os.path.getsize(path)
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read: {exc.strerror}") from None
-    if size > MAX_MANIFEST_BYTES:
-        raise InputError(f"{path}: {size} bytes is too large for a manifest "
-                         f"(cap {MAX_MANIFEST_BYTES})")
-    try:
-        with open(path, "rb") as fh:
-            obj = json.loads(fh.read().decode("utf-8"),
-                             parse_constant=lambda c: (_ for _ in ()).throw(ValueError(c)))
+        obj = json.loads(data.decode("utf-8"),
+                         parse_constant=lambda c: (_ for _ in ()).throw(ValueError(c)))
     except (UnicodeDecodeError, ValueError, RecursionError) as exc:
         msg = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
         raise InputError(f"{path}: not a JSON manifest: {msg[:80]}") from None
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read: {exc.strerror}") from None
     if not isinstance(obj, dict) or obj.get("format") != FORMAT:
         raise InputError(f"{path}: not a {FORMAT} manifest")
     claim, enc, branches = obj.get("claim"), obj.get("encoding"), obj.get("branches")

@@ -13,7 +13,7 @@ import random
 
 import numpy as np
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given, settings, strategies as st
 
 from codesearch import _reference as R
 from codesearch import drat
@@ -246,9 +246,11 @@ def _kernel_tokens(data: bytes, allow_delete: bool):
 _VALID = (b"c a comment\n1 -2 0\nd 1 -2 0\n  3\t4 0 -5 0\n0\nc end\n")
 
 
-@given(st.data())
-def test_tokens_kernel_equals_twin_on_mutated_text(data):
-    raw = bytearray(_VALID)
+_VALID_CNF = b"c made by hand\np cnf 5 3\n1 -2 0\n3 4\n0 -5 0\n"
+
+
+def _tokens_case(data) -> None:
+    raw = bytearray(data.draw(st.sampled_from([_VALID, _VALID_CNF])))
     for _ in range(data.draw(st.integers(0, 4))):
         op = data.draw(st.integers(0, 2))
         pos = data.draw(st.integers(0, len(raw)))
@@ -262,6 +264,15 @@ def test_tokens_kernel_equals_twin_on_mutated_text(data):
     text = bytes(raw)
     for allow in (True, False):
         assert _kernel_tokens(text, allow) == R.drat_tokens(text, allow)
+        try:
+            (drat.parse_proof if allow else drat.parse_cnf)(text)
+        except InputError as exc:
+            assert "\n" not in str(exc)
+
+
+@given(st.data())
+def test_tokens_kernel_equals_twin_on_mutated_text(data):
+    _tokens_case(data)
 
 
 @given(st.binary(max_size=80))
@@ -313,3 +324,11 @@ def test_checker_imports_no_solver():
     names = [a.name for node in ast.walk(tree) if isinstance(node, ast.Import) for a in node.names]
     names += [node.module for node in ast.walk(tree) if isinstance(node, ast.ImportFrom)]
     assert not any(n.startswith(("pysat", "codesearch.search")) for n in names if n)
+
+
+@pytest.mark.slow
+@settings(max_examples=3000)
+@given(st.data())
+def test_tokens_kernel_equals_twin_many(data):
+    # the slow suite's share of the fuzzing target: 3000 mutated formula / proof texts
+    _tokens_case(data)
