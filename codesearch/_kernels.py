@@ -1519,6 +1519,23 @@ def _drat_push(stack, top, v):
 
 
 @nb.njit(cache=True)
+def _drat_mark(c, lits, start, seen, stamp, core, stack, top):
+    """Mark clause c core and push its variables not yet seen; returns (stack, top, 1 if c
+    was newly marked else 0)."""
+    new = 0
+    if core[c] == 0:
+        core[c] = 1
+        new = 1
+    for i in range(start[c], start[c + 1]):
+        u = lits[i] >> 1
+        if seen[u] != stamp:
+            seen[u] = stamp
+            stack = _drat_push(stack, top, u)
+            top += 1
+    return stack, top, new
+
+
+@nb.njit(cache=True)
 def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
     """Mark as core the clause ``cc`` (if >= 0) and the reasons of every literal the conflict
     depends on (``clit``: a literal whose truth is the conflict, or -1). Returns the number of
@@ -1529,34 +1546,17 @@ def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
     top = 0
     marked = 0
     if cc >= 0:
-        if core[cc] == 0:
-            core[cc] = 1
-            marked += 1
-        for i in range(start[cc], start[cc + 1]):
-            v = lits[i] >> 1
-            if seen[v] != stamp:
-                seen[v] = stamp
-                stack = _drat_push(stack, top, v)
-                top += 1
+        stack, top, marked = _drat_mark(cc, lits, start, seen, stamp, core, stack, top)
     if clit >= 0 and seen[clit >> 1] != stamp:
         seen[clit >> 1] = stamp
         stack = _drat_push(stack, top, clit >> 1)
         top += 1
     while top > 0:
         top -= 1
-        v = stack[top]
-        r = reason[v]
-        if r < 0:
-            continue
-        if core[r] == 0:
-            core[r] = 1
-            marked += 1
-        for i in range(start[r], start[r + 1]):
-            u = lits[i] >> 1
-            if seen[u] != stamp:
-                seen[u] = stamp
-                stack = _drat_push(stack, top, u)
-                top += 1
+        r = reason[stack[top]]
+        if r >= 0:
+            stack, top, new = _drat_mark(r, lits, start, seen, stamp, core, stack, top)
+            marked += new
     return marked
 
 
