@@ -1184,3 +1184,691 @@ def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj):
                     ok = 0
                     break
             adj[i, j] = ok
+
+
+# ======================================================================= DRAT proof checking
+# Used by codesearch.verify.drat (see its docstring for the algorithm and references). Literals are
+# encoded as ``2 * (v - 1) + (1 if negative else 0)`` so that ``l ^ 1`` is the negation.
+# Clauses live in one flat array ``lits`` with offsets ``start``; the formula's clauses come
+# first, then one clause per proof line (additions and deletions alike), in proof order.
+
+
+@nb.njit(cache=True)
+def drat_tokens(buf, allow_delete, max_lits, max_clauses):
+    """Split DIMACS clause text into clauses.
+
+    ``buf`` is the text (uint8). Integers separated by white space, each clause closed by 0;
+    a line starting with ``c`` is a comment (only between clauses); with ``allow_delete`` a
+    token ``d`` opens a deletion. Returns ``(raw, start, isdel, err)``: the literals (int64,
+    zeros dropped), clause offsets, deletion flags, and ``err = [code, byte offset]`` with
+    code 0 (fine), 1 (unexpected character), 2 (number too large: |lit| >= 2^31),
+    3 (``d`` or a comment inside a clause), 4 (clause not closed by 0 at the end),
+    5 (a lone ``-``), 6 (more than ``max_lits`` literals or ``max_clauses`` clauses: nothing
+    is allocated; ``err[1]`` is then the offset where the count passed the cap).
+    """
+    n = buf.size
+    err = np.zeros(2, np.int64)
+    # pass 1: count literals and clauses
+    nlits = 0
+    ncl = 0
+    i = 0
+    pending = 0
+    while i < n:
+        ch = buf[i]
+        if ch == 32 or ch == 9 or ch == 10 or ch == 13:
+            i += 1
+            continue
+        if ch == 99:  # 'c'
+            if pending > 0:
+                err[0], err[1] = 3, i
+                return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8),
+                        err)
+            while i < n and buf[i] != 10:
+                i += 1
+            continue
+        if ch == 100 and allow_delete:  # 'd'
+            if pending > 0 or i + 1 >= n or not (buf[i + 1] == 32 or buf[i + 1] == 9
+                                                 or buf[i + 1] == 10 or buf[i + 1] == 13):
+                err[0], err[1] = 3, i
+                return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8),
+                        err)
+            pending = 1
+            i += 1
+            continue
+        neg = False
+        if ch == 45:  # '-'
+            neg = True
+            i += 1
+            if i >= n or buf[i] < 48 or buf[i] > 57:
+                err[0], err[1] = 5, i - 1
+                return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8),
+                        err)
+        if buf[i] < 48 or buf[i] > 57:
+            err[0], err[1] = 1, i
+            return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8), err)
+        val = 0
+        s = i
+        while i < n and buf[i] >= 48 and buf[i] <= 57:
+            val = val * 10 + (buf[i] - 48)
+            if val >= 2147483648:
+                err[0], err[1] = 2, s
+                return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8),
+                        err)
+            i += 1
+        if i < n and not (buf[i] == 32 or buf[i] == 9 or buf[i] == 10 or buf[i] == 13):
+            err[0], err[1] = 1, i
+            return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8), err)
+        if val == 0:
+            if neg:
+                err[0], err[1] = 1, s
+                return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8),
+                        err)
+            ncl += 1
+            pending = 0
+        else:
+            nlits += 1
+            pending = 1
+        if nlits > max_lits or ncl > max_clauses:
+            err[0], err[1] = 6, s
+            return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8), err)
+    if pending > 0:
+        err[0], err[1] = 4, n
+        return (np.empty(0, np.int64), np.zeros(1, np.int64), np.empty(0, np.uint8), err)
+    # pass 2: fill (the text is known to be well formed)
+    raw = np.empty(nlits, np.int64)
+    start = np.empty(ncl + 1, np.int64)
+    isdel = np.zeros(ncl, np.uint8)
+    k = 0
+    c = 0
+    start[0] = 0
+    i = 0
+    while i < n:
+        ch = buf[i]
+        if ch == 32 or ch == 9 or ch == 10 or ch == 13:
+            i += 1
+            continue
+        if ch == 99:
+            while i < n and buf[i] != 10:
+                i += 1
+            continue
+        if ch == 100:
+            isdel[c] = 1
+            i += 1
+            continue
+        sign = 1
+        if ch == 45:
+            sign = -1
+            i += 1
+        val = 0
+        while i < n and buf[i] >= 48 and buf[i] <= 57:
+            val = val * 10 + (buf[i] - 48)
+            i += 1
+        if val == 0:
+            c += 1
+            start[c] = k
+        else:
+            raw[k] = sign * val
+            k += 1
+    return raw, start, isdel, err
+
+
+@nb.njit(cache=True)
+def drat_encode(raw, start, nvars):
+    """Encode literals (``v -> 2(v-1)``, ``-v -> 2(v-1)+1``) and drop repeated literals in
+    each clause, keeping the first occurrence (the RAT pivot is a clause's first literal).
+    Returns ``(lits int32, start int64)``."""
+    out = np.empty(raw.size, np.int32)
+    st = np.empty(start.size, np.int64)
+    stamp = np.zeros(2 * nvars, np.int64)
+    k = 0
+    for c in range(start.size - 1):
+        st[c] = k
+        for i in range(start[c], start[c + 1]):
+            v = raw[i]
+            code = 2 * (v - 1) if v > 0 else 2 * (-v - 1) + 1
+            if stamp[code] != c + 1:
+                stamp[code] = c + 1
+                out[k] = code
+                k += 1
+    st[start.size - 1] = k
+    return out[:k].copy(), st
+
+
+@nb.njit(cache=True)
+def _drat_mix(x):
+    z = np.uint64(x) + np.uint64(0x9E3779B97F4A7C15)
+    z = (z ^ (z >> np.uint64(30))) * np.uint64(0xBF58476D1CE4E5B9)
+    z = (z ^ (z >> np.uint64(27))) * np.uint64(0x94D049BB133111EB)
+    return z ^ (z >> np.uint64(31))
+
+
+@nb.njit(cache=True)
+def drat_match_deletions(lits, start, nform, isdel, nlits):
+    """For each proof line: the clause a deletion removes (-1 for additions and for
+    deletions of a clause not present). Clauses are compared as literal sets; of several
+    equal present clauses the most recently added is removed."""
+    ncl = start.size - 1
+    S = ncl - nform
+    target = np.full(S, -1, np.int64)
+    hashes = np.empty(ncl, np.uint64)
+    for c in range(ncl):
+        h = _drat_mix(start[c + 1] - start[c])
+        for i in range(start[c], start[c + 1]):
+            h += _drat_mix(lits[i] + 1)
+        hashes[c] = h
+    size = 1
+    while size < 2 * ncl + 2:
+        size *= 2
+    mask = np.uint64(size - 1)
+    bhead = np.full(size, -1, np.int64)
+    bnext = np.full(ncl, -1, np.int64)
+    mark = np.zeros(nlits, np.int64)
+    for c in range(nform):
+        b = np.int64(hashes[c] & mask)
+        bnext[c] = bhead[b]
+        bhead[b] = c
+    for s in range(S):
+        c = nform + s
+        b = np.int64(hashes[c] & mask)
+        if isdel[s] == 0:
+            bnext[c] = bhead[b]
+            bhead[b] = c
+            continue
+        for i in range(start[c], start[c + 1]):
+            mark[lits[i]] = c + 1
+        length = start[c + 1] - start[c]
+        prev = -1
+        e = bhead[b]
+        while e != -1:
+            if hashes[e] == hashes[c] and start[e + 1] - start[e] == length:
+                same = True
+                for i in range(start[e], start[e + 1]):
+                    if mark[lits[i]] != c + 1:
+                        same = False
+                        break
+                if same:
+                    if prev == -1:
+                        bhead[b] = bnext[e]
+                    else:
+                        bnext[prev] = bnext[e]
+                    target[s] = e
+                    break
+            prev = e
+            e = bnext[e]
+    return target
+
+
+@nb.njit(cache=True)
+def _drat_assign(l, c, val, reason, tpos, trail, st):
+    v = l >> 1
+    val[l] = 1
+    val[l ^ 1] = -1
+    reason[v] = c
+    tpos[v] = st[0]
+    trail[st[0]] = l
+    st[0] += 1
+
+
+@nb.njit(cache=True)
+def _drat_unassign_to(t0, val, reason, trail, st):
+    for i in range(t0, st[0]):
+        l = trail[i]
+        val[l] = 0
+        val[l ^ 1] = 0
+        reason[l >> 1] = -1
+    st[0] = t0
+    if st[1] > t0:
+        st[1] = t0
+
+
+@nb.njit(cache=True)
+def _drat_link(e, lit, wlit, nxt, prv, whead):
+    wlit[e] = lit
+    h = whead[lit]
+    nxt[e] = h
+    prv[e] = -1
+    if h != -1:
+        prv[h] = e
+    whead[lit] = e
+
+
+@nb.njit(cache=True)
+def _drat_unlink(e, wlit, nxt, prv, whead):
+    p = prv[e]
+    q = nxt[e]
+    if p == -1:
+        whead[wlit[e]] = q
+    else:
+        nxt[p] = q
+    if q != -1:
+        prv[q] = p
+
+
+@nb.njit(cache=True)
+def _drat_attach(c, lits, start, val, tpos, wlit, nxt, prv, whead):
+    """Watch clause c (length >= 2) on its two best literals (true, then unassigned, then the
+    most recently falsified). Returns 0 (fine), 1 (unit: first watch is implied), 2 (all
+    literals false)."""
+    best0 = -1
+    best1 = -1
+    r0 = -1
+    r1 = -1
+    for i in range(start[c], start[c + 1]):
+        l = lits[i]
+        x = val[l]
+        if x == 1:
+            r = 1 << 62
+        elif x == 0:
+            r = (1 << 62) - 1
+        else:
+            r = tpos[l >> 1]
+        if r > r0:
+            best1, r1 = best0, r0
+            best0, r0 = l, r
+        elif r > r1:
+            best1, r1 = l, r
+    _drat_link(2 * c, best0, wlit, nxt, prv, whead)
+    _drat_link(2 * c + 1, best1, wlit, nxt, prv, whead)
+    if val[best0] == -1:
+        return 2
+    if val[best0] == 0 and val[best1] == -1:
+        return 1
+    return 0
+
+
+@nb.njit(cache=True)
+def _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, whead):
+    """Unit propagation from the trail head; returns a falsified clause or -1. On a conflict
+    the head stays on the literal being processed, so the next call finds it again."""
+    while st[1] < st[0]:
+        fl = trail[st[1]] ^ 1  # the literal made false
+        st[1] += 1
+        e = whead[fl]
+        while e != -1:
+            en = nxt[e]
+            c = e >> 1
+            other = wlit[e ^ 1]
+            if val[other] == 1:
+                e = en
+                continue
+            found = -1
+            for i in range(start[c], start[c + 1]):
+                l2 = lits[i]
+                if l2 != fl and l2 != other and val[l2] != -1:
+                    found = l2
+                    break
+            if found != -1:
+                _drat_unlink(e, wlit, nxt, prv, whead)
+                _drat_link(e, found, wlit, nxt, prv, whead)
+            elif val[other] == 0:
+                _drat_assign(other, c, val, reason, tpos, trail, st)
+            else:
+                st[1] -= 1
+                return c
+            e = en
+    return -1
+
+
+@nb.njit(cache=True)
+def _drat_push(stack, top, v):
+    """``stack[top] = v``, doubling the array when full; returns the (possibly new) array."""
+    if top == stack.size:
+        stack = np.concatenate((stack, np.empty(stack.size, np.int64)))
+    stack[top] = v
+    return stack
+
+
+@nb.njit(cache=True)
+def _drat_mark(c, lits, start, seen, stamp, core, stack, top):
+    """Mark clause c core and push its variables not yet seen; returns (stack, top, 1 if c
+    was newly marked else 0)."""
+    new = 0
+    if core[c] == 0:
+        core[c] = 1
+        new = 1
+    for i in range(start[c], start[c + 1]):
+        u = lits[i] >> 1
+        if seen[u] != stamp:
+            seen[u] = stamp
+            stack = _drat_push(stack, top, u)
+            top += 1
+    return stack, top, new
+
+
+@nb.njit(cache=True)
+def _drat_analyze(cc, clit, lits, start, reason, seen, core, st):
+    """Mark as core the clause ``cc`` (if >= 0) and the reasons of every literal the conflict
+    depends on (``clit``: a literal whose truth is the conflict, or -1). Returns the number of
+    clauses newly marked."""
+    st[3] += 1
+    stamp = st[3]
+    stack = np.empty(16, np.int64)
+    top = 0
+    marked = 0
+    if cc >= 0:
+        stack, top, marked = _drat_mark(cc, lits, start, seen, stamp, core, stack, top)
+    if clit >= 0 and seen[clit >> 1] != stamp:
+        seen[clit >> 1] = stamp
+        stack = _drat_push(stack, top, clit >> 1)
+        top += 1
+    while top > 0:
+        top -= 1
+        r = reason[stack[top]]
+        if r >= 0:
+            stack, top, new = _drat_mark(r, lits, start, seen, stamp, core, stack, top)
+            marked += new
+    return marked
+
+
+@nb.njit(cache=True)
+def _drat_rup(clause, lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, whead,
+              seen, core):
+    """Is ``clause`` (encoded literals) implied by unit propagation? Marks what it used."""
+    cc = _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, whead)
+    if cc >= 0:  # the formula itself is in conflict at the top level
+        _drat_analyze(cc, -1, lits, start, reason, seen, core, st)
+        return True
+    t0 = st[0]
+    clit = -1
+    for l in clause:
+        if val[l] == 1:
+            clit = l
+            break
+        if val[l] == 0:
+            _drat_assign(l ^ 1, -1, val, reason, tpos, trail, st)
+    if clit < 0:
+        cc = _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, whead)
+    ok = clit >= 0 or cc >= 0
+    if ok:
+        _drat_analyze(cc, clit, lits, start, reason, seen, core, st)
+    _drat_unassign_to(t0, val, reason, trail, st)
+    return ok
+
+
+@nb.njit(cache=True)
+def _drat_reprocess(nunits, units, active, lits, start, val, reason, tpos, trail, st, wlit,
+                    nxt, prv, whead):
+    """Restore the full top-level closure (after literals were withdrawn); returns a
+    falsified clause or -1."""
+    st[2] = 0
+    for k in range(nunits):
+        u = units[k]
+        if active[u] == 0:
+            continue
+        l = lits[start[u]]
+        if val[l] == -1:
+            return u
+        if val[l] == 0:
+            _drat_assign(l, u, val, reason, tpos, trail, st)
+    st[1] = 0
+    return _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv, whead)
+
+
+@nb.njit(cache=True)
+def _drat_withdraw(c, lits, start, val, reason, tpos, trail, st, seen):
+    """If clause c is the reason of a trail literal, take that literal off the trail with
+    every later literal whose reason depends on a withdrawn one. Returns True if it was."""
+    v0 = -1
+    for i in range(start[c], start[c + 1]):
+        l = lits[i]
+        if val[l] == 1 and reason[l >> 1] == c:
+            v0 = l >> 1
+            break
+    if v0 < 0:
+        return False
+    st[3] += 1
+    stamp = st[3]
+    p = tpos[v0]
+    j = p
+    for i in range(p, st[0]):
+        l = trail[i]
+        v = l >> 1
+        drop = v == v0
+        if not drop:
+            r = reason[v]
+            if r >= 0:
+                for k in range(start[r], start[r + 1]):
+                    u = lits[k] >> 1
+                    if u != v and seen[u] == stamp:
+                        drop = True
+                        break
+        if drop:
+            seen[v] = stamp
+            val[l] = 0
+            val[l ^ 1] = 0
+            reason[v] = -1
+        else:
+            trail[j] = l
+            tpos[v] = j
+            j += 1
+    st[0] = j
+    if st[1] > p:
+        st[1] = p
+    st[2] = 1
+    return True
+
+
+@nb.njit(cache=True)
+def _drat_rat(c, lits, start, active, nactive, val, reason, tpos, trail, st, wlit, nxt, prv,
+              whead, seen, core, mark):
+    """RAT on the first literal p of lemma c: every resolvent with an active clause holding
+    -p is a tautology or implied by unit propagation."""
+    if start[c + 1] == start[c]:
+        return False
+    p = lits[start[c]]
+    np_ = p ^ 1
+    length = start[c + 1] - start[c]
+    buf = np.empty(16, np.int32)
+    for d in range(nactive):
+        if active[d] == 0:
+            continue
+        has = False
+        for i in range(start[d], start[d + 1]):
+            if lits[i] == np_:
+                has = True
+                break
+        if not has:
+            continue
+        st[3] += 1
+        stamp = st[3]
+        need = length + (start[d + 1] - start[d])
+        if buf.size < need:
+            buf = np.empty(need, np.int32)
+        k = 0
+        for i in range(start[c], start[c + 1]):
+            mark[lits[i]] = stamp
+            buf[k] = lits[i]
+            k += 1
+        taut = False
+        for i in range(start[d], start[d + 1]):
+            l = lits[i]
+            if l == np_:
+                continue
+            if mark[l ^ 1] == stamp:
+                taut = True
+                break
+            if mark[l] != stamp:
+                mark[l] = stamp
+                buf[k] = l
+                k += 1
+        if taut:
+            continue
+        if not _drat_rup(buf[:k], lits, start, val, reason, tpos, trail, st, wlit, nxt, prv,
+                         whead, seen, core):
+            return False
+        core[d] = 1
+    return True
+
+
+@nb.njit(cache=True)
+def drat_check(lits, start, nform, isdel, target, nvars, core, stats):
+    """Backward DRAT check of the proof lines against the formula (clauses ``0..nform-1``).
+
+    ``core`` (uint8, one per clause) receives the clauses the refutation uses. ``stats``
+    (int64, 10) receives: [0] status (0 refuted, 1 a needed lemma fails, 2 no empty clause,
+    3 no conflict reached), [1] the failing proof line (0-based) or -1, [2] the line where
+    the conflict was reached (-1: the formula alone), [3] lemmas, [4] lemmas checked,
+    [5] lemmas accepted by RAT, [6] deletions of a clause not present, [7] deletions of a
+    reason clause, [8] full re-propagations, [9] deletions.
+    """
+    ncl = start.size - 1
+    S = ncl - nform
+    val = np.zeros(2 * nvars, np.int8)
+    reason = np.full(nvars, -1, np.int64)
+    tpos = np.zeros(nvars, np.int64)
+    trail = np.empty(nvars, np.int32)
+    st = np.zeros(4, np.int64)  # trail length, head, dirty flag, stamp counter
+    wlit = np.zeros(2 * ncl, np.int32)
+    nxt = np.full(2 * ncl, -1, np.int64)
+    prv = np.full(2 * ncl, -1, np.int64)
+    whead = np.full(2 * nvars, -1, np.int64)
+    seen = np.zeros(nvars, np.int64)
+    mark = np.zeros(2 * nvars, np.int64)
+    active = np.zeros(ncl, np.uint8)
+    units = np.empty(ncl, np.int64)
+    nunits = 0
+    for k in range(10):
+        stats[k] = 0
+    stats[1] = -1
+    stats[2] = -1
+    has_empty = False
+    for s in range(S):
+        if isdel[s] == 0:
+            stats[3] += 1
+            if start[nform + s + 1] == start[nform + s]:
+                has_empty = True
+        else:
+            stats[9] += 1
+            if target[s] < 0:
+                stats[6] += 1
+    # ---- forward: the formula, then the proof lines until unit propagation conflicts
+    cc = -1
+    clit = -1
+    conflict_step = -2
+    for c in range(nform):
+        active[c] = 1
+        length = start[c + 1] - start[c]
+        if length == 0:
+            if cc < 0:
+                cc = c
+                has_empty = True
+        elif length == 1:
+            units[nunits] = c
+            nunits += 1
+        else:
+            _drat_link(2 * c, lits[start[c]], wlit, nxt, prv, whead)
+            _drat_link(2 * c + 1, lits[start[c] + 1], wlit, nxt, prv, whead)
+    if not has_empty:
+        stats[0] = 2
+        return
+    if cc < 0:
+        cc = _drat_reprocess(nunits, units, active, lits, start, val, reason, tpos, trail, st,
+                             wlit, nxt, prv, whead)
+    if cc >= 0:
+        conflict_step = -1
+    else:
+        for s in range(S):
+            c = nform + s
+            if isdel[s] == 1:
+                d = target[s]
+                if d < 0:
+                    continue
+                active[d] = 0
+                if start[d + 1] - start[d] >= 2:
+                    _drat_unlink(2 * d, wlit, nxt, prv, whead)
+                    _drat_unlink(2 * d + 1, wlit, nxt, prv, whead)
+                if _drat_withdraw(d, lits, start, val, reason, tpos, trail, st, seen):
+                    stats[7] += 1
+                continue
+            active[c] = 1
+            length = start[c + 1] - start[c]
+            if length == 0:
+                cc = _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt,
+                                     prv, whead)
+                if cc < 0 and st[2] == 1:
+                    stats[8] += 1
+                    cc = _drat_reprocess(nunits, units, active, lits, start, val, reason,
+                                         tpos, trail, st, wlit, nxt, prv, whead)
+                if cc < 0:
+                    stats[0] = 1
+                    stats[1] = s
+                    return
+                conflict_step = s
+                break
+            if length == 1:
+                units[nunits] = c
+                nunits += 1
+                l = lits[start[c]]
+                if val[l] == -1:
+                    cc = c
+                    conflict_step = s
+                    break
+                if val[l] == 0:
+                    _drat_assign(l, c, val, reason, tpos, trail, st)
+                else:
+                    reason[l >> 1] = c  # a unit clause is the simplest reason
+            else:
+                state = _drat_attach(c, lits, start, val, tpos, wlit, nxt, prv, whead)
+                if state == 2:
+                    cc = c
+                    conflict_step = s
+                    break
+                if state == 1:
+                    _drat_assign(wlit[2 * c], c, val, reason, tpos, trail, st)
+            cc = _drat_propagate(lits, start, val, reason, tpos, trail, st, wlit, nxt, prv,
+                                 whead)
+            if cc >= 0:
+                conflict_step = s
+                break
+    if conflict_step == -2:
+        stats[0] = 3
+        return
+    stats[2] = conflict_step
+    # ---- backward: undo the lines from the conflict down, checking each lemma marked core
+    _drat_analyze(cc, clit, lits, start, reason, seen, core, st)
+    for s in range(conflict_step, -1, -1):
+        c = nform + s
+        if isdel[s] == 1:
+            d = target[s]
+            if d < 0:
+                continue
+            active[d] = 1
+            length = start[d + 1] - start[d]
+            if length >= 2:
+                if _drat_attach(d, lits, start, val, tpos, wlit, nxt, prv, whead) != 0:
+                    st[2] = 1
+            elif length == 1 and val[lits[start[d]]] != 1:
+                st[2] = 1
+            continue
+        active[c] = 0
+        length = start[c + 1] - start[c]
+        if length >= 2:
+            _drat_unlink(2 * c, wlit, nxt, prv, whead)
+            _drat_unlink(2 * c + 1, wlit, nxt, prv, whead)
+        _drat_withdraw(c, lits, start, val, reason, tpos, trail, st, seen)
+        if core[c] == 0:
+            continue
+        stats[4] += 1
+        clause = lits[start[c]:start[c + 1]]
+        ok = _drat_rup(clause, lits, start, val, reason, tpos, trail, st, wlit, nxt, prv,
+                       whead, seen, core)
+        if not ok and st[2] == 1:
+            stats[8] += 1
+            cc = _drat_reprocess(nunits, units, active, lits, start, val, reason, tpos, trail,
+                                 st, wlit, nxt, prv, whead)
+            if cc >= 0:  # the formula at this line is itself in conflict
+                _drat_analyze(cc, -1, lits, start, reason, seen, core, st)
+                ok = True
+            else:
+                ok = _drat_rup(clause, lits, start, val, reason, tpos, trail, st, wlit, nxt,
+                               prv, whead, seen, core)
+        if not ok:
+            ok = _drat_rat(c, lits, start, active, c, val, reason, tpos, trail, st, wlit, nxt,
+                           prv, whead, seen, core, mark)
+            if ok:
+                stats[5] += 1
+        if not ok:
+            stats[0] = 1
+            stats[1] = s
+            return
+    stats[0] = 0

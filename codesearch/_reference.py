@@ -287,3 +287,124 @@ def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj) -> None:
                     diff |= int(planes[p, r]) ^ int(planes[p, w])
                 dists.append(bin(diff).count("1"))
             adj[i, j] = 1 if min(dists) >= d else 0
+
+
+# ======================================================================= DRAT proof checking
+
+
+def drat_tokens(data: bytes, allow_delete: bool) -> list[tuple[bool, list[int]]] | None:
+    """Twin of :func:`codesearch._kernels.drat_tokens`: the clauses of DIMACS text as
+    ``(is_deletion, literals)``, or None when the text is malformed."""
+    out: list[tuple[bool, list[int]]] = []
+    cur: list[int] = []
+    deleting = False
+    import re
+
+    text = data.decode("latin-1")
+    for line in text.split("\n"):
+        toks = [t for t in re.split("[ \t\r]+", line) if t]
+        for tok in toks:
+            if tok.startswith("c") and not cur and not deleting:
+                break  # comment to the end of the line
+            if tok == "d" and allow_delete and not cur and not deleting:
+                deleting = True
+                continue
+            body = tok[1:] if tok.startswith("-") else tok
+            if not body or any(ch not in "0123456789" for ch in body) or tok == "-0":
+                return None
+            v = int(tok)
+            if abs(v) >= 2**31:
+                return None
+            if v == 0:
+                out.append((deleting, cur))
+                cur, deleting = [], False
+            else:
+                cur.append(v)
+    if cur or deleting:
+        return None
+    return out
+
+
+def _dedupe(clause: list[int]) -> list[int]:
+    out: list[int] = []
+    for lit in clause:
+        if lit not in out:
+            out.append(lit)
+    return out
+
+
+def _propagates_to_conflict(clauses: list[list[int]], assign: dict[int, bool]) -> bool:
+    """Unit propagation by repeated scans; True when some clause becomes false."""
+    changed = True
+    while changed:
+        changed = False
+        for c in clauses:
+            free = []
+            sat = False
+            for lit in c:
+                v = assign.get(abs(lit))
+                if v is None:
+                    free.append(lit)
+                elif v == (lit > 0):
+                    sat = True
+                    break
+            if sat:
+                continue
+            if not free:
+                return True
+            if len(free) == 1:
+                assign[abs(free[0])] = free[0] > 0
+                changed = True
+    return False
+
+
+def drat_rup(clauses: list[list[int]], lemma: list[int]) -> bool:
+    """Does unit propagation refute "every literal of ``lemma`` is false"?"""
+    assign: dict[int, bool] = {}
+    for lit in lemma:
+        if assign.get(abs(lit)) == (lit > 0):
+            return True  # the lemma holds a literal and its negation
+        assign[abs(lit)] = lit < 0
+    return _propagates_to_conflict(clauses, assign)
+
+
+def drat_rat(clauses: list[list[int]], lemma: list[int]) -> bool:
+    """RAT on the first literal: every resolvent is a tautology or RUP."""
+    if not lemma:
+        return False
+    p = lemma[0]
+    for d in clauses:
+        if -p not in d:
+            continue
+        res = _dedupe(lemma + [x for x in d if x != -p])
+        if any(-x in res for x in res):
+            continue
+        if not drat_rup(clauses, res):
+            return False
+    return True
+
+
+def drat_check(formula: list[list[int]], proof: list[tuple[bool, list[int]]]) -> bool:
+    """Slow forward DRAT checker with the semantics of :mod:`codesearch.verify.drat`, checking every
+    lemma up to the first empty clause (so it accepts a subset of what the backward kernel
+    accepts: the kernel skips lemmas no conflict depends on)."""
+    active = [_dedupe(c) for c in formula]
+    if any(not c for c in active):
+        return True
+    if not any(not isdel and not c for isdel, c in proof):
+        return False
+    for isdel, clause in proof:
+        clause = _dedupe(clause)
+        if isdel:
+            key = set(clause)
+            for i in range(len(active) - 1, -1, -1):
+                if set(active[i]) == key:
+                    del active[i]
+                    break
+            continue
+        if not (drat_rup(active, clause) or drat_rat(active, clause)):
+            return False
+        if not clause:
+            return True
+        active.append(clause)
+    return False

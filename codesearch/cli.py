@@ -72,6 +72,10 @@ def _cmd_check(args: argparse.Namespace) -> int:
         report = verify.check_generator(rows, q, args.d,
                                         "information-sets" if args.min_only else "auto")
         return _print_code_report(args, report, None)
+    from codesearch import proofbundle  # a SAT refutation bundle (manifest + DRAT proofs)
+
+    if proofbundle.is_bundle(args.file):
+        return proofbundle.check_command(args.file, args.json)
     cert = codefile.read_certificate(args.file)
     if cert is not None:
         valid, bound, reason = verify.check_certificate(cert)

@@ -26,8 +26,10 @@ default solver. Time limits: python-sat's CaDiCaL bindings ignore ``interrupt()`
 in a forked worker process that reports every answer through a pipe and is terminated at the
 deadline; without one it runs in this process. With ``proof``
 the solver's DRAT proof of each refuted branch is written next to the DIMACS formula it
-refutes, for an outside checker (e.g. drat-trim). The proof covers the *reduced* formula:
-its soundness for the cell rests on the symmetry-breaking arguments above.
+refutes, with a manifest binding them to the claim (:mod:`codesearch.proofbundle`), which
+``codesearch check`` re-checks with the project's own checker (:mod:`codesearch.verify.drat`). The
+proof covers the *reduced* formula: its soundness for the cell rests on the
+symmetry-breaking arguments above.
 
 References
 ----------
@@ -45,19 +47,23 @@ expressive clausal proofs", SAT 2014.
 
 from __future__ import annotations
 
+import hashlib
+import json
+import os
 import time
 from dataclasses import dataclass, field
-from typing import Any, Callable
+from typing import Any, Callable, Mapping, Sequence
 
 import numpy as np
 
-from codesearch.errors import ParameterError
+from codesearch.errors import InputError, ParameterError
 from codesearch.model import Params
 from codesearch.search import _wordspace as ws
 from codesearch.search.base import Context, Outcome
 
 __all__ = ["OPTIONS", "SEEDING", "SYMMETRY", "ENCODINGS", "Encoding", "encode_base", "encode_card",
-           "encode", "run", "solve_size"]
+           "encode", "run", "solve_size", "write_manifest", "rests_on", "MANIFEST_FORMAT",
+           "REDUCTION_THEOREMS"]
 
 OPTIONS = frozenset({"size", "proof", "symmetry", "encoding", "solver"})
 SEEDING = "none"
@@ -73,6 +79,22 @@ ENCODINGS = ("seqcounter", "totalizer", "kmtotalizer", "mtotalizer", "sortnetwrk
 #: 14.2 s, sorting / cardinality networks 13.9 s, modulo totalizer 11.0 s; medians of 3).
 DEFAULT_ENCODING = "seqcounter"
 DEFAULT_SOLVER = "cadical195"
+
+#: Format of the refutation manifest written beside the DRAT proofs (read by
+#: :mod:`codesearch.proofbundle`).
+MANIFEST_FORMAT = "codesearch-refutation/1"
+
+#: The statements each symmetry level rests on (cumulative, by level).
+REDUCTION_THEOREMS = {
+    "zero": "zero: every code has an isometric copy (a translate) containing the zero word",
+    "pair": "pair: a code of >= 2 words with minimum distance w >= d has an isometric copy "
+            "containing 0 and 1^w0^(n-w) with all distances >= w, so the branches w = d..n "
+            "cover every code",
+    "lex": "lex: the lexicographic leader of an orbit of branch solutions under the "
+           "generated isometries satisfies x >=_lex g(x) for each generator g",
+    "card": "cardinality: the auxiliary-variable encoding of sum x_v >= M extends exactly "
+            "the assignments with at least M true word variables",
+}
 
 #: Largest space encoded (one variable per word).
 MAX_SPACE = 2**15
@@ -504,7 +526,9 @@ def run(ctx: Context, *, proof: str | None = None, symmetry: str = "lex",
         refutation then proves the best code optimal.
     proof : str, optional
         With a target: write the DIMACS formula and DRAT proof of each refuted branch to
-        ``PROOF[.wW].cnf`` and ``PROOF[.wW]``.
+        ``PROOF[.wW].cnf`` and ``PROOF[.wW]``; when every branch is refuted, also the
+        manifest ``PROOF.json`` that binds them to the claim
+        (:mod:`codesearch.proofbundle`; re-check with ``codesearch check PROOF.json``).
     symmetry : {"lex", "pair", "zero", "none"}
         Symmetry-breaking level.
     encoding : str
@@ -535,6 +559,15 @@ def run(ctx: Context, *, proof: str | None = None, symmetry: str = "lex",
                                        deadline=ctx.deadline, proof=proof)
         settings["proof_files"] = info["proof_files"]
         settings["branches_refuted"] = info["branches_refuted"]
+        if answer is False and proof is not None:
+            # every branch refuted: bind the proofs to the claim
+            from codesearch import __version__
+
+            p = ctx.params
+            settings["proof_bundle"] = write_manifest(
+                proof, p.q, p.n, p.d, ctx.target, symmetry, encoding, info["proof_files"],
+                info["branches_refuted"],
+                {"codesearch": __version__, "pysat": settings["pysat"], "solver": solver})
         return Outcome(ws.code_of_indices(idx, ctx.params) if answer else None,
                        ctx.target - 1 if answer is False else None, info["decisions"],
                        settings)
@@ -601,3 +634,53 @@ def _pysat_version() -> str:
     import pysat
 
     return str(getattr(pysat, "__version__", "unknown"))
+
+
+# ------------------------------------------------------------------------------ manifest
+def _sha256(path: str) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for block in iter(lambda: fh.read(1 << 20), b""):
+            h.update(block)
+    return h.hexdigest()
+
+
+def rests_on(symmetry: str) -> list[str]:
+    """The statements a refutation at this symmetry level rests on."""
+    level = SYMMETRY.index(symmetry)
+    return ([REDUCTION_THEOREMS[k] for k in ("zero", "pair", "lex")[:level]]
+            + [REDUCTION_THEOREMS["card"]])
+
+
+def write_manifest(proof: str, q: int, n: int, d: int, size: int, symmetry: str,
+                   cardinality: str, files: Sequence[str], weights: Sequence[int | None],
+                   produced_by: Mapping[str, str]) -> str:
+    """Write ``proof + ".json"`` for the refuted branches (``files`` alternates formula and
+    proof paths, as the SAT search lists them). Returns the manifest's path."""
+    path = proof + ".json"
+    cell = f"A({n},{d})" if q == 2 else f"A_{q}({n},{d})"
+    base = os.path.dirname(os.path.abspath(path))
+    branches = []
+    for w, cnf, prf in zip(weights, files[0::2], files[1::2]):
+        for f in (cnf, prf):
+            if os.path.dirname(os.path.abspath(f)) != base:
+                raise InputError(f"{f}: proof files must sit next to the manifest {path}")
+        branches.append({"weight": w, "formula": os.path.basename(cnf),
+                         "formula_sha256": _sha256(cnf), "proof": os.path.basename(prf),
+                         "proof_sha256": _sha256(prf)})
+    manifest = {
+        "format": MANIFEST_FORMAT,
+        "claim": {"q": q, "n": n, "d": d, "size": size},
+        "statement": f"no code of {size} words with minimum distance >= {d} in length {n} "
+                     f"over {q} symbols, so {cell} <= {size - 1}",
+        "encoding": {"symmetry": symmetry, "cardinality": cardinality},
+        "branches": branches,
+        "rests_on": rests_on(symmetry),
+        "produced_by": dict(produced_by),
+    }
+    tmp = path + ".tmp"
+    with open(tmp, "w", encoding="utf-8") as fh:
+        json.dump(manifest, fh, indent=1)
+        fh.write("\n")
+    os.replace(tmp, path)
+    return path
