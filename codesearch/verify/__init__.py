@@ -28,7 +28,9 @@ from codesearch.verify.codes import (
     CodeReport,
     assert_code,
     assert_code_by_balls,
+    assert_large_binary,
     ball_check_cost,
+    check_cost,
     assert_min_distance,
     check_code,
     distance_distribution,
@@ -70,4 +72,6 @@ __all__ = [
     "check_additive_generator",
     "assert_code_by_balls",
     "ball_check_cost",
+    "check_cost",
+    "assert_large_binary",
 ]
