@@ -135,4 +135,5 @@ def test_bad_outcome_rolls_back_the_whole_cell(tmp_path):
     with Store(tmp_path / "s.sqlite") as s:
         with pytest.raises(VerificationError):
             _store_outcome(s, task, out)
-        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0}
+        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0,
+                              "improvements": 0, "cell_log": 0}

@@ -30,6 +30,7 @@ from codesearch.verify.codes import (
     assert_code_by_balls,
     assert_large_binary,
     ball_check_cost,
+    binary_linear_basis,
     check_cost,
     assert_min_distance,
     check_code,
@@ -74,4 +75,5 @@ __all__ = [
     "ball_check_cost",
     "check_cost",
     "assert_large_binary",
+    "binary_linear_basis",
 ]

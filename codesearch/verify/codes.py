@@ -28,7 +28,7 @@ from codesearch.model import Code, Params
 
 __all__ = ["CodeReport", "check_code", "assert_code", "assert_min_distance", "min_distance",
            "distance_distribution", "first_close_pair", "is_prime", "prepare",
-           "ball_check_cost", "assert_code_by_balls", "check_cost", "assert_large_binary",
+           "ball_check_cost", "assert_code_by_balls", "check_cost", "assert_large_binary", "binary_linear_basis",
            "PAIR_CHECK_WORDS", "BITMAP_MAX_N"]
 
 
@@ -290,6 +290,29 @@ def _bitmap_cost(m: int, n: int, d: int) -> tuple[str, int, int] | None:
     return ("bitmap", ops, (1 << n) // 8) if ops < m * (m - 1) // 2 else None
 
 
+def _span(words: np.ndarray, n: int) -> tuple[np.ndarray | None, int]:
+    """(basis as a (k, n) uint8 array, least nonzero weight) when the packed binary words are
+    exactly a linear space, else (None, least nonzero weight or 65)."""
+    m = words.shape[0]
+    if m == 0 or m & (m - 1):
+        return None, 65
+    out = np.zeros(64, dtype=np.uint64)
+    rank, distinct, minw = (int(v) for v in _kernels().binary_span_check(words, out))
+    if not distinct:
+        return None, minw
+    bits = (out[:rank, None] >> np.arange(n, dtype=np.uint64)[None, :]) & np.uint64(1)
+    return bits.astype(np.uint8), minw
+
+
+def binary_linear_basis(code: Code) -> np.ndarray | None:
+    """A basis of ``code`` as a (k, n) uint8 array when its words are exactly a binary linear
+    space (n <= 64), else None. Time linear in the number of words; no distance is checked."""
+    if code.q != 2 or code.n > 64:
+        return None
+    words = np.ascontiguousarray(_kernels().pack_words(code.words, 2)[:, 0])
+    return _span(words, code.n)[0]
+
+
 def assert_large_binary(code: Code, d: int) -> tuple[str, np.ndarray | None]:
     """Check a binary code (n <= 64) at distance ``d`` in time linear in its size when it is
     linear or fits the bitmap (see the comment above), by pairs otherwise.
@@ -310,15 +333,12 @@ def assert_large_binary(code: Code, d: int) -> tuple[str, np.ndarray | None]:
     if m < 2:
         return "pairs", None
     words = np.ascontiguousarray(k.pack_words(code.words, 2)[:, 0])
-    if m & (m - 1) == 0:
-        basis = np.zeros(64, dtype=np.uint64)
-        rank, distinct, minw = (int(v) for v in k.binary_span_check(words, basis))
-        if distinct:
-            if minw < d:
-                raise VerificationError(
-                    f"linear code of dimension {rank} has a word of weight {minw} < d={d}")
-            bits = (basis[:rank, None] >> np.arange(n, dtype=np.uint64)[None, :]) & np.uint64(1)
-            return "linear", bits.astype(np.uint8)
+    basis, minw = _span(words, n)
+    if basis is not None:
+        if minw < d:
+            raise VerificationError(
+                f"linear code of dimension {basis.shape[0]} has a word of weight {minw} < d={d}")
+        return "linear", basis
     if _bitmap_cost(m, n, d) is None:
         assert_min_distance(code, d)
         return "pairs", None
