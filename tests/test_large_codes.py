@@ -164,3 +164,20 @@ def test_improvements_are_logged(tmp_path):
         s.add_code(kc.hamming_7_4(), p, method="exact")
         assert s.log_improvements(before, seconds=2.0) == [("lower", 8, 16)]
         assert [r["method"] for r in s.improvements(p)] == ["greedy", "exact"]
+
+
+def test_export_generator_form(tmp_path):
+    from codesearch.cli import main
+    from codesearch.codefile import read_generator
+
+    lin = _shortened_hamming(20)
+    path = str(tmp_path / "s.sqlite")
+    with Store(path) as s:
+        s.add_code(lin, Params(2, 20, 3), method="construction")
+    out = tmp_path / "g.code"
+    assert main(["export", "20", "3", "--store", path, "--out", str(out), "--generator"]) == 0
+    rows, q, _ = read_generator(str(out))
+    assert rows.shape == (15, 20) and verify.check_generator(rows, q, 3).valid
+    words = tmp_path / "w.code"
+    assert main(["export", "20", "3", "--store", path, "--out", str(words)]) == 0
+    assert len([ln for ln in words.read_text().splitlines() if not ln.startswith("#")]) == 2**15
