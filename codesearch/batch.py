@@ -61,6 +61,9 @@ SHIP_WORDS = 4096
 #: Seconds per word set aside for checking a code a search may return (the linear-time
 #: checks of :mod:`codesearch.verify` run at roughly 10^7 words per second; twice that is kept).
 VERIFY_SECONDS_PER_WORD = 2e-7
+#: Largest best stored code a record hunt hands its searches to start from
+#: (:attr:`codesearch.search.base.Context.incumbent`).
+INCUMBENT_WORDS = 1 << 16
 #: Least time limit a search is given, even when the budget is spent (so that every search
 #: named runs once per budget; a cell may overrun by this much per search).
 MIN_SEARCH_SECONDS = 0.05
@@ -106,6 +109,7 @@ class CellTask:
     sdp: bool = False
     constructions: bool = False
     hunt: bool = False
+    incumbent: Code | None = None
 
 
 @dataclass(frozen=True)
@@ -312,11 +316,12 @@ def run_cell(task: CellTask) -> CellOutcome:
         remaining = deadline - time.perf_counter()
         share = max((remaining - reserve) / (len(task.methods) - i), MIN_SEARCH_SECONDS)
         options = {}
-        if task.hunt and lower > 0 and "size" in _options_of(spec):
+        if task.hunt and lower > 0 and spec.exhaustive and "size" in _options_of(spec):
             options["size"] = lower + 1  # a record hunt asks for one word more than held
         t0 = time.perf_counter()
         try:
-            res = run_method(spec, p, time_limit=share, seed=task.seed, options=options, **known)
+            res = run_method(spec, p, time_limit=share, seed=task.seed, options=options,
+                             incumbent=task.incumbent, **known)
         except Exception as exc:
             stages[f"search:{spec.name}"] = time.perf_counter() - t0
             errors.append((spec.name, _one_line(exc)))
@@ -531,7 +536,9 @@ class _Plan:
     def task(self, st: Any, p: Params) -> CellTask | None:
         """The work left on cell ``p`` (None when nothing is left): only open cells
         (lower < upper) run, and only the stages not yet run at this budget or a larger one.
-        A search that ran before with a smaller budget runs again as a record hunt."""
+        A search that ran before with a smaller budget runs again as a record hunt: it gets
+        the best stored code to start from (methods declaring ``INCUMBENT``) and, for an
+        exhaustive method taking a target size, the question "one word more?"."""
         s = st.summary(p)
         if s.exact:
             return None
@@ -542,8 +549,11 @@ class _Plan:
         if not run_bounds and not todo and not build:
             return None
         hunt = any(b is not None for b in before.values())
+        incumbent = None
+        if hunt and todo and s.code_id is not None and 2 <= s.lower <= INCUMBENT_WORDS:
+            incumbent = st.get_code(s.code_id)[1]
         return CellTask(p, float(self.budget), todo, run_bounds, cell_seed(self.seed, p),
-                        s.lower, s.upper, self.sdp, build, hunt)
+                        s.lower, s.upper, self.sdp, build, hunt, incumbent)
 
 
 class _Driver:
@@ -617,7 +627,12 @@ class _Driver:
         self.summary.errors += [f"{task.params} {stage}: {msg}" for stage, msg in out.errors]
         self.summary.ran += 1
         t1 = time.perf_counter()
-        self.derive()
+        # Relations first (they may settle the next cells before they are submitted), then
+        # the workers get new cells, then the library's chains from the codes found, which
+        # may take seconds when a search beat the constructions.
+        self.derive(chains=False)
+        self.fill()
+        self.derive(chains=True)
         derived = time.perf_counter() - t1
         stages = {**out.stages, "store": stored, "propagate": derived}
         self.st.log_cell(task.params, budget=task.budget, seconds=out.seconds, stages=stages)
@@ -650,7 +665,7 @@ class _Driver:
         self.summary.errors.append(msg.splitlines()[0])
         self.emit({"event": "error", "cell": p, "error": msg})
 
-    def derive(self) -> None:
+    def derive(self, chains: bool = True) -> None:
         """Propagate between the cells of each alphabet (:mod:`codesearch.propagate`)."""
         from codesearch.propagate import propagate
 
@@ -660,7 +675,7 @@ class _Driver:
         for p in self.cells:
             by_q.setdefault(p.q, []).append(p)
         for group in by_q.values():
-            out = propagate(self.st, group, progress=self.emit)
+            out = propagate(self.st, group, chains=chains, progress=self.emit)
             self.summary.derived_codes += out.codes
             self.summary.derived_bounds += out.bounds
 

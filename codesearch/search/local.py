@@ -51,6 +51,8 @@ __all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
 SEEDING = "random"
+#: Starts from ``ctx.incumbent`` when it is larger than the greedy start (a record hunt).
+INCUMBENT = True
 
 #: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
 MAX_COUNT_SPACE = 2**24
@@ -189,6 +191,10 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     # random greedy code it reaches 144 in a second)
     init, _, _ = greedy.greedy_indices(cell, "random", seed=ctx.seed, stream=0,
                                        deadline=ctx.deadline)
+    if ctx.incumbent is not None and ctx.incumbent.size > init.size:
+        # a verified code of the cell; punctured for the parity cell (distance d - 1 there)
+        words = ctx.incumbent.words[:, :n].astype(np.int64)
+        init = np.unique(words @ ws.powers(q, n))
     floor = np.empty(0, dtype=np.int64)
     if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
         floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=ctx.deadline)
@@ -226,4 +232,6 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     return Outcome(code, nodes=moves, settings={
         "steps": steps, "tenure": int(tenure), "parity": extended, "searched_cell": [q, n, d],
         "scoring": "ball-counts" if st.mode == 1 else "pairwise", "start_size": int(init.size),
-        "returned": returned, "moves_per_size": levels[-50:], "stopped_by_time": out_of_time})
+        "returned": returned, "moves_per_size": levels[-50:], "stopped_by_time": out_of_time,
+        "started_from": "incumbent" if ctx.incumbent is not None and int(init.size)
+        == ctx.incumbent.size else "greedy"})
