@@ -460,11 +460,50 @@ def _part_instances(q: int, nmax: int) -> Iterator[Instance]:
             yield best
 
 
+# ------------------------------------------------------------------------------ sporadic
+def _julin_describe() -> Instance:
+    # balanced on coordinates 0, 1 (a pair of the partition): see sporadic.py
+    return _inst("julin", {}, 2, 12, 4, 144, "Julin(12,144,4)", False, balanced=2)
+
+
+def _orbit40_describe() -> Instance:
+    return _inst("orbit40", {}, 2, 10, 4, 40, "(10,40,4) orbit code", False, balanced=1)
+
+
+def _single(describe: Callable[[], Instance]) -> Callable[[int, int], Iterator[Instance]]:
+    def gen(q: int, nmax: int) -> Iterator[Instance]:
+        inst = describe()
+        if q == inst.q and inst.n <= nmax:
+            yield inst
+    return gen
+
+
+# ------------------------------------------------------------------------------ searched
+def _searched_describe(key: str) -> Instance:
+    from codesearch.constructions.searched import RECORDS
+
+    _need(key in RECORDS, f"searched codes: key one of {', '.join(RECORDS)}")
+    rec = RECORDS[key]
+    return _lin("searched", {"key": key}, 2, rec.n, rec.k, rec.d, rec.label)
+
+
+def _searched_instances(q: int, nmax: int) -> Iterator[Instance]:
+    from codesearch.constructions.searched import RECORDS
+
+    if q != 2:
+        return
+    for key, rec in RECORDS.items():
+        if rec.n <= nmax:
+            yield _searched_describe(key)
+
+
 # ------------------------------------------------------------------------------ registry
 def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
     from codesearch.constructions import algebraic as al
     from codesearch.constructions import hadamard as hd
     from codesearch.constructions import partition as pt
+    from codesearch.constructions import searched as sr
+    from codesearch.constructions import sporadic as sp
     from codesearch.constructions import z4
 
     return {
@@ -482,6 +521,9 @@ def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
         "preparata": lambda m=3: z4.preparata_code(m),
         "partition": lambda a, b, kind_a="syndrome", kind_b="syndrome":
             pt.glued_code(a, b, kind_a, kind_b),
+        "julin": lambda: sp.julin_code(),
+        "orbit40": lambda: sp.orbit40_code(),
+        "searched": lambda key: sr.searched_code(key),
     }
 
 
@@ -529,6 +571,13 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
     Family("partition", "distance-4 code glued from partitions of even-weight words "
            "(kind_a, kind_b: syndrome or weight)", ("a", "b", "kind_a", "kind_b"),
            _part_describe, _lazy("partition"), _part_instances),
+    Family("julin", "Julin's (12,144,4) code: hexads of S(5,6,12), six pairs, their complements",
+           (), _julin_describe, _lazy("julin"), _single(_julin_describe)),
+    Family("orbit40", "a (10,40,4) code (Best's parameters): 8 recorded orbits of a "
+           "permutation of order 5", (), _orbit40_describe, _lazy("orbit40"),
+           _single(_orbit40_describe)),
+    Family("searched", "binary linear code found by a recorded seeded search (key: the record)",
+           ("key",), _searched_describe, _lazy("searched"), _searched_instances),
 ]}
 
 
