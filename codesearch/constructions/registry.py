@@ -466,8 +466,21 @@ def _julin_describe() -> Instance:
     return _inst("julin", {}, 2, 12, 4, 144, "Julin(12,144,4)", False, balanced=2)
 
 
-def _orbit40_describe() -> Instance:
-    return _inst("orbit40", {}, 2, 10, 4, 40, "(10,40,4) orbit code", False, balanced=1)
+def _orbit_describe(key: str) -> Instance:
+    from codesearch.constructions.sporadic import ORBITS
+
+    _need(key in ORBITS, f"orbit codes: key one of {', '.join(ORBITS)}")
+    r = ORBITS[key]
+    return _inst("orbit", {"key": key}, r.q, r.n, r.d, r.size, r.label, False,
+                 balanced=r.balanced)
+
+
+def _orbit_instances(q: int, nmax: int) -> Iterator[Instance]:
+    from codesearch.constructions.sporadic import ORBITS
+
+    for key, r in ORBITS.items():
+        if r.q == q and r.n <= nmax:
+            yield _orbit_describe(key)
 
 
 def _single(describe: Callable[[], Instance]) -> Callable[[int, int], Iterator[Instance]]:
@@ -522,7 +535,7 @@ def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
         "partition": lambda a, b, kind_a="syndrome", kind_b="syndrome":
             pt.glued_code(a, b, kind_a, kind_b),
         "julin": lambda: sp.julin_code(),
-        "orbit40": lambda: sp.orbit40_code(),
+        "orbit": lambda key: sp.orbit_code(key),
         "searched": lambda key: sr.searched_code(key),
     }
 
@@ -573,9 +586,9 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
            _part_describe, _lazy("partition"), _part_instances),
     Family("julin", "Julin's (12,144,4) code: hexads of S(5,6,12), six pairs, their complements",
            (), _julin_describe, _lazy("julin"), _single(_julin_describe)),
-    Family("orbit40", "a (10,40,4) code (Best's parameters): 8 recorded orbits of a "
-           "permutation of order 5", (), _orbit40_describe, _lazy("orbit40"),
-           _single(_orbit40_describe)),
+    Family("orbit", "union of recorded orbits under a coordinate permutation (key: the "
+           "record; (10,40,4) binary, (6,18,4) ternary)", ("key",), _orbit_describe,
+           _lazy("orbit"), _orbit_instances),
     Family("searched", "binary linear code found by a recorded seeded search (key: the record)",
            ("key",), _searched_describe, _lazy("searched"), _searched_instances),
 ]}
