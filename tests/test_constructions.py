@@ -364,6 +364,25 @@ def test_orbit_codes_meet_the_published_values(key, q, n, d, size):
         assert len(counts) == q**lead and len(set(counts.tolist())) == 1
 
 
+def test_nordstrom_robinson_translates_with_tails():
+    # The span of NR is a [16,11,4] code split by 8 translates of NR (MacWilliams-Sloane
+    # Ch. 15 s. 5: NR is a union of 8 cosets of RM(1,4) in RM(2,4)); with even-weight tails
+    # (Construction X, Sloane-Reddy-Chen 1972, from memory) this gives the published
+    # A(19,6) >= 1024 and A(20,6) >= 2048 (data/published_binary.csv).
+    from codesearch.constructions import sporadic
+
+    nr, shifts = sporadic.nr_translates()
+    assert shifts.shape == (8, 16)
+    for a, size in ((3, 1024), (4, 2048)):
+        b = build_family("nr-tails", a=a)
+        assert (b.code.n, b.size, b.d) == (16 + a, size, 6)
+        assert verify.min_distance(b.code) == 6
+    assert candidates(Params(2, 18, 5))[0].size >= 1024  # punctured, A(18,5) = 1024
+    assert candidates(Params(2, 19, 5))[0].size >= 2048  # A(19,5) = 2048
+    with pytest.raises(ParameterError, match="1 <= a <= 4"):
+        build_family("nr-tails", a=5)
+
+
 def test_searched_codes_verify_and_satisfy_macwilliams():
     # every record builds and verifies at its distance; the weight distribution of its dual
     # (enumerated) equals the MacWilliams transform (MacWilliams-Sloane Ch. 5 Thm 1); the
@@ -451,4 +470,4 @@ def test_public_api_is_pinned():
     assert set(FAMILIES) >= {"hamming", "golay", "reed-muller", "bch", "qr", "mds", "cyclic",
                              "hadamard", "levenshtein", "conference", "nordstrom-robinson",
                              "kerdock", "preparata", "partition", "julin", "orbit",
-                             "searched"}
+                             "searched", "nr-tails"}

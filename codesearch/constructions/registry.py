@@ -466,6 +466,18 @@ def _julin_describe() -> Instance:
     return _inst("julin", {}, 2, 12, 4, 144, "Julin(12,144,4)", False, balanced=2)
 
 
+def _nrtail_describe(a: int) -> Instance:
+    _need(isinstance(a, int) and 1 <= a <= 4, "the Nordstrom-Robinson tail code needs 1 <= a <= 4")
+    return _inst("nr-tails", {"a": a}, 2, 16 + a, 6, 256 * 2 ** (a - 1),
+                 f"Nordstrom-Robinson translates with {a}-bit tails", False)
+
+
+def _nrtail_instances(q: int, nmax: int) -> Iterator[Instance]:
+    if q == 2:
+        for a in range(1, min(4, nmax - 16) + 1):
+            yield _nrtail_describe(a)
+
+
 def _orbit_describe(key: str) -> Instance:
     from codesearch.constructions.sporadic import ORBITS
 
@@ -536,6 +548,7 @@ def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
             pt.glued_code(a, b, kind_a, kind_b),
         "julin": lambda: sp.julin_code(),
         "orbit": lambda key: sp.orbit_code(key),
+        "nr-tails": lambda a: sp.nr_tail_code(a),
         "searched": lambda key: sr.searched_code(key),
     }
 
@@ -589,6 +602,9 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
     Family("orbit", "union of recorded orbits under a coordinate permutation (key: the "
            "record; (10,40,4) binary, (6,18,4) ternary)", ("key",), _orbit_describe,
            _lazy("orbit"), _orbit_instances),
+    Family("nr-tails", "Construction X on the translates of the Nordstrom-Robinson code: "
+           "(16+a, 256*2^(a-1), 6), a = 1..4", ("a",), _nrtail_describe, _lazy("nr-tails"),
+           _nrtail_instances),
     Family("searched", "binary linear code found by a recorded seeded search (key: the record)",
            ("key",), _searched_describe, _lazy("searched"), _searched_instances),
 ]}
