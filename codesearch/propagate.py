@@ -280,6 +280,7 @@ class _StoreView:
     def add_code(self, p: Params, code: AnyCode, rule: str, label: str,
                  sources: tuple[Params, ...], method: str | None = None) -> None:
         ids = [self.summary(s).code_id for s in sources]
+        before = self.summary(p)
         self.store.add_code(
             code, p, method=method or f"derived:{rule}", status="feasible",
             settings={"rule": rule},
@@ -287,18 +288,26 @@ class _StoreView:
                         "cells": [[s.q, s.n, s.d] for s in sources]},
         )
         self._summary.pop(p, None)
+        self._log(before)
         self.codes += 1
         self._told(p, "code", rule, code.size, label)
 
     def add_bound(self, p: Params, rule: str, value: int, cert: dict[str, Any],
                   srcs: list[Params]) -> None:
+        before = self.summary(p)
         bid = self.store.add_bound(
             BoundResult(p, value, f"relation:{rule}", certificate=cert,
                         note=f"{rule} from " + ", ".join(str(s) for s in srcs)),
         )
         self._upper[p] = (bid, value)
+        self._summary.pop(p, None)
+        self._log(before)
         self.bounds += 1
         self._told(p, "bound", rule, value, None)
+
+    def _log(self, before: Any) -> None:
+        """Record the improvement in the store's log (derivations take no search time)."""
+        self.store.log_improvements(before, seconds=0.0)
 
     def _told(self, p: Params, kind: str, rule: str, value: int, label: str | None) -> None:
         if self.progress is not None:

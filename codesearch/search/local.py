@@ -113,9 +113,12 @@ def _setup(cell: Params, init: np.ndarray, tenure: int, seed: int) -> _State:
     # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
     # conflict, typically a few) x candidates x M distances: take the cheaper
     use_counts = space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
+    if M > 65534:
+        use_counts = False  # a start this large (a greedy code at n >= 22) overflows the counts
     mode = 1 if use_counts else 2
     if mode == 1:
         cap = min(cap, 65534)  # counts are uint16 and never exceed the code size
+    cap = max(cap, M)  # the start is a code: never more words than the packing bound allows
     empty = np.empty(0, dtype=np.int64)
     masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
     if mode == 1:
