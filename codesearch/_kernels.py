@@ -590,6 +590,47 @@ def binary_ball_clash(words, nbits, ball, probe):
     return -1
 
 
+@nb.njit(nb.int64(nb.int64[::1], nb.int64, nb.int64, nb.int64[::1], nb.int64[::1],
+                  nb.int64[::1], nb.int64), cache=True)
+def qary_ball_clash(idx, q, n, pat_ptr, pat_pos, pat_add, probe_from):
+    """First row whose ball meets another row's ball, or -1; words given by their base-q
+    index (digit j = coordinate j), a bitmap of q^n bits.
+
+    Pattern t changes the digits ``pat_pos[pat_ptr[t]:pat_ptr[t+1]]`` by adding
+    ``pat_add[...]`` mod q. Patterns ``0..probe_from-1`` (the radius-r ball) are marked, a
+    word found marked means two rows within 2r; patterns ``probe_from..`` (the radius-(r+1)
+    sphere, for even d) are then probed: a marked word there means two rows within 2r + 1.
+    """
+    m = idx.shape[0]
+    total = 1
+    for _ in range(n):
+        total *= q
+    pw = np.ones(n, dtype=np.int64)
+    for j in range(1, n):
+        pw[j] = pw[j - 1] * q
+    bitmap = np.zeros((total + 63) >> 6, dtype=np.uint64)
+    one = np.uint64(1)
+    npat = pat_ptr.shape[0] - 1
+    for phase in range(2):
+        lo = 0 if phase == 0 else probe_from
+        hi = probe_from if phase == 0 else npat
+        for i in range(m):
+            x = idx[i]
+            for t in range(lo, hi):
+                y = x
+                for e in range(pat_ptr[t], pat_ptr[t + 1]):
+                    j = pat_pos[e]
+                    dig = (x // pw[j]) % q
+                    y += (((dig + pat_add[e]) % q) - dig) * pw[j]
+                slot = y >> 6
+                bit = one << np.uint64(y & 63)
+                if bitmap[slot] & bit:
+                    return i
+                if phase == 0:
+                    bitmap[slot] |= bit
+    return -1
+
+
 # ======================================================================= clique engine (exact search)
 #
 # Bitset branch and bound for the maximum (weight) clique, after BBMC (San Segundo, Rodriguez-Losada

@@ -94,6 +94,14 @@ def binary_span_check(words: list[int]) -> tuple[int, int, int]:
     return r, distinct, minw
 
 
+def qary_ball_clash(words: np.ndarray, r: int, probe: bool) -> bool:
+    """Twin of the q-ary kernel's verdict: two rows within 2r (2r + 1 with ``probe``)?"""
+    limit = 2 * r + (1 if probe else 0)
+    rows = [tuple(int(s) for s in w) for w in words]
+    return any(hamming(rows[i], rows[j]) <= limit
+               for i in range(len(rows)) for j in range(i + 1, len(rows)))
+
+
 def binary_ball_clash(words: list[int], r: int, probe: bool) -> bool:
     """Twin of the kernel's verdict: do two rows lie within 2r (2r + 1 with ``probe``)?"""
     limit = 2 * r + (1 if probe else 0)

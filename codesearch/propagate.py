@@ -64,8 +64,12 @@ __all__ = [
 AnyCode = Code | LinearCode
 
 #: Largest derived code that is materialised as explicit words (a linear one, kept as a
-#: generator matrix, has no cap). Building and checking cost O(M n) each.
+#: generator matrix, has no cap). Binary codes are built and checked in O(M n) each
+#: (:func:`codesearch.verify.assert_large_binary`); other alphabets are checked pair by pair,
+#: so they stop at :data:`MAX_DERIVED_QARY_WORDS`.
 MAX_DERIVED_WORDS = 1 << 20
+#: Largest explicit derived code over q > 2 (M^2 / 2 pair distances to check).
+MAX_DERIVED_QARY_WORDS = 1 << 13
 
 #: Methods whose codes seed the construction library's chains (codes found by searches).
 _NOT_SEEDS = re.compile(r"^(construction|derived:)")
@@ -202,7 +206,8 @@ def propagate(
         The table: only these cells receive derived entries.
     max_words : int
         Derived codes held as explicit words are not built past this size (linear codes,
-        held as generator matrices, have no cap).
+        held as generator matrices, have no cap; over q > 2 at most
+        :data:`MAX_DERIVED_QARY_WORDS`).
     chains : bool
         Also run the construction library's chains seeded with the stored codes found by
         searches (:func:`codesearch.constructions.table` with ``seeds``).
@@ -222,6 +227,8 @@ def propagate(
     table = sorted(set(cells))
     if not table:
         return PropagationSummary(0, 0, 0)
+    if table[0].q > 2:
+        max_words = min(max_words, MAX_DERIVED_QARY_WORDS)
     view = _StoreView(store, progress)
     rounds = 0
     changed = True

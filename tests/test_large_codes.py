@@ -181,3 +181,42 @@ def test_export_generator_form(tmp_path):
     words = tmp_path / "w.code"
     assert main(["export", "20", "3", "--store", path, "--out", str(words)]) == 0
     assert len([ln for ln in words.read_text().splitlines() if not ln.startswith("#")]) == 2**15
+
+
+@st.composite
+def qary_sets(draw):
+    q = draw(st.integers(3, 5))
+    n = draw(st.integers(1, 5))
+    m = draw(st.integers(1, 30))
+    rng = np.random.default_rng(draw(st.integers(0, 2**31)))
+    return Code(rng.integers(0, q, (m, n)), q)
+
+
+@given(qary_sets(), st.integers(1, 5))
+def test_qary_ball_clash_equals_twin(code, d):
+    from codesearch.verify.codes import _qary_patterns
+
+    q, n = code.q, code.n
+    r = (d - 1) // 2
+    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
+    probe_from = ptr.size - 1
+    if d % 2 == 0:
+        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
+        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
+        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
+    idx = np.ascontiguousarray(code.words.astype(np.int64) @ (q ** np.arange(n, dtype=np.int64)))
+    clash = int(_kernels.qary_ball_clash(idx, q, n, ptr, pos, add, probe_from)) >= 0
+    assert clash == ref.qary_ball_clash(code.words, r, d % 2 == 0)
+
+
+def test_large_qary_code_on_the_bitmap():
+    # The ternary Hamming [13,10,3] code shortened to length 9 (MacWilliams-Sloane Ch. 6):
+    # 3^6 = 729 words, too few; its direct sum with the full space GF(3)^2 of distance 1
+    # would have d = 1. Instead: all 3^9 words of GF(3)^9 with digit sum 0 mod 3 form a
+    # [9,8,2] code (6561 words), past the pair limit.
+    words = np.array([w for w in np.ndindex(*(3,) * 9) if sum(w) % 3 == 0], dtype=np.uint8)
+    code = Code(words, 3)
+    assert verify.check_cost(code, 2)[0] == "bitmap"
+    verify.assert_code(code, Params(3, 9, 2))
+    with pytest.raises(VerificationError):
+        verify.assert_code(code, Params(3, 9, 3))

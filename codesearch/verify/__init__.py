@@ -29,6 +29,7 @@ from codesearch.verify.codes import (
     assert_code,
     assert_code_by_balls,
     assert_large_binary,
+    assert_large_qary,
     ball_check_cost,
     binary_linear_basis,
     check_cost,
@@ -76,4 +77,5 @@ __all__ = [
     "check_cost",
     "assert_large_binary",
     "binary_linear_basis",
+    "assert_large_qary",
 ]

@@ -28,7 +28,7 @@ from codesearch.model import Code, Params
 
 __all__ = ["CodeReport", "check_code", "assert_code", "assert_min_distance", "min_distance",
            "distance_distribution", "first_close_pair", "is_prime", "prepare",
-           "ball_check_cost", "assert_code_by_balls", "check_cost", "assert_large_binary", "binary_linear_basis",
+           "ball_check_cost", "assert_code_by_balls", "check_cost", "assert_large_binary", "binary_linear_basis", "assert_large_qary",
            "PAIR_CHECK_WORDS", "BITMAP_MAX_N"]
 
 
@@ -241,6 +241,9 @@ def assert_code(code: Code, params: Params) -> None:
     if code.q == 2 and code.n <= 64 and code.size > PAIR_CHECK_WORDS:
         assert_large_binary(code, params.d)
         return
+    if code.q > 2 and code.size > PAIR_CHECK_WORDS and _qary_bitmap_cost(code, params.d):
+        assert_large_qary(code, params.d)
+        return
     assert_min_distance(code, params.d)
 
 
@@ -250,7 +253,8 @@ def assert_code(code: Code, params: Params) -> None:
 # space are the whole space); its distances are then the weights of its words. A nonlinear
 # code is checked on a bitmap of all 2^n words: each word marks its radius-r ball
 # (r = floor((d-1)/2)), a word found marked twice means two words within 2r; for even d each
-# word also probes its radius-(r+1) sphere, which finds two words within 2r + 1.
+# word also probes its radius-(r+1) sphere, which finds two words within 2r + 1. Codes over
+# q > 2 letters are checked the same way on a bitmap of the q^n words indexed in base q.
 
 #: Codes up to this many words are checked pair by pair.
 PAIR_CHECK_WORDS = 4096
@@ -265,6 +269,67 @@ def _ball_masks(n: int, weights: range) -> np.ndarray:
     return np.array(out, dtype=np.uint64)
 
 
+#: Largest q^n checked on a bitmap for q > 2 (2^32 bits = 512 MiB).
+QARY_BITMAP_MAX_WORDS = 1 << 32
+
+
+def _qary_patterns(q: int, n: int, radii: range) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    import itertools
+
+    ptr, pos, add = [0], [], []
+    for w in radii:
+        for support in itertools.combinations(range(n), w):
+            for adds in itertools.product(range(1, q), repeat=w):
+                pos.extend(support)
+                add.extend(adds)
+                ptr.append(len(pos))
+    return (np.array(ptr, dtype=np.int64), np.array(pos, dtype=np.int64),
+            np.array(add, dtype=np.int64))
+
+
+def _qary_bitmap_cost(code: Code, d: int) -> tuple[str, int, int] | None:
+    q, n, m = code.q, code.n, code.size
+    if q**n > QARY_BITMAP_MAX_WORDS:
+        return None
+    r = max(0, (d - 1) // 2)
+    sphere = [math.comb(n, i) * (q - 1) ** i for i in range(r + 2)]
+    per = sum(sphere[: r + 1]) + (sphere[r + 1] if d % 2 == 0 else 0)
+    ops = m * per * (r + 1) + q**n // 64
+    return ("bitmap", ops, q**n // 8) if ops < m * (m - 1) // 2 else None
+
+
+def assert_large_qary(code: Code, d: int) -> str:
+    """Check a code over q > 2 letters at distance ``d`` on a bitmap of the q^n words (each
+    word marks its radius-r ball, probes its radius-(r+1) sphere for even d; see the comment
+    above :data:`PAIR_CHECK_WORDS`), when that is cheaper than the pairs. Returns the method
+    used ("bitmap" or "pairs").
+
+    Raises
+    ------
+    VerificationError
+        When two words are closer than ``d``.
+    """
+    if code.size < 2 or _qary_bitmap_cost(code, d) is None:
+        assert_min_distance(code, d)
+        return "pairs"
+    q, n = code.q, code.n
+    r = max(0, (d - 1) // 2)
+    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
+    probe_from = ptr.size - 1
+    if d % 2 == 0:
+        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
+        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
+        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
+    idx = code.words.astype(np.int64) @ (q ** np.arange(n, dtype=np.int64))
+    bad = int(_kernels().qary_ball_clash(np.ascontiguousarray(idx), q, n, ptr, pos, add,
+                                         probe_from))
+    if bad >= 0:
+        raise VerificationError(
+            f"row {bad} lies within distance {d - 1} of another row; the code does not have "
+            f"minimum distance {d}")
+    return "bitmap"
+
+
 def check_cost(code: Code, d: int) -> tuple[str, int, int]:
     """How :func:`assert_code` will check ``code`` at distance ``d``, before it does.
 
@@ -274,6 +339,8 @@ def check_cost(code: Code, d: int) -> tuple[str, int, int]:
     """
     m, n = code.size, code.n
     pairs = ("pairs", m * (m - 1) // 2, 0)
+    if code.q > 2 and m > PAIR_CHECK_WORDS:
+        return _qary_bitmap_cost(code, d) or pairs
     if code.q != 2 or n > 64 or m <= PAIR_CHECK_WORDS:
         return pairs
     if m & (m - 1) == 0:
