@@ -23,6 +23,7 @@ Usage::
     PYTHONPATH=. python benchmarks/bench_table.py --q 2 --n 4..28 --d 3..10 --budget 10 \
         [--workers 2] [--executor local|dask|both] [--repeat 1] [--keep DIR]
     PYTHONPATH=. python benchmarks/bench_table.py --q 3 --n 3..12 --d 3..12 --budget 10
+    PYTHONPATH=. /usr/bin/time -v python benchmarks/bench_table.py --big-cell 29   # 2^24 words
 """
 
 from __future__ import annotations
@@ -164,8 +165,64 @@ def _one(kind: str, cells: list[Params], args, workdir: str, rep: int) -> dict:
     return out
 
 
+def big_cell(n: int, workdir: str) -> None:
+    """One 2^(n-5)-word cell, the worst case a table meets at d = 3: the shortened Hamming
+    code [n, n-5, 3] (MacWilliams-Sloane Ch. 1) listed as explicit words, as a search would
+    return it; then the same words minus one (no longer linear). Each is checked, shipped as
+    a worker would (pickled :class:`CellCode`), stored and read back; times and the peak
+    resident memory of this process (``resource.getrusage``) are printed. Run it under
+    ``/usr/bin/time -v`` for the external figure."""
+    import pickle
+    import resource
+
+    import numpy as np
+
+    from codesearch import verify
+    from codesearch.batch import CellCode, compact
+    from codesearch.model import Code, LinearCode
+
+    def rss() -> float:
+        return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+
+    k = n - 5
+    cols = [c for c in range(1, 32) if c & (c - 1)][:k]
+    gen = np.zeros((k, n), dtype=np.uint8)
+    for i, c in enumerate(cols):
+        gen[i, i] = 1
+        gen[i, k:] = [(c >> b) & 1 for b in range(5)]
+    p = Params(2, n, 3)
+    out = {"n": n, "words": 2**k, "load": _load()}
+    t = time.perf_counter()
+    code = LinearCode(gen, 2).words(1 << 30)
+    out["list_s"] = round(time.perf_counter() - t, 2)
+    out["rss_listed_MiB"] = round(rss())
+    for label, c in (("linear", code), ("nonlinear", Code(code.words[1:], 2))):
+        t = time.perf_counter()
+        verify.assert_code(c, p)
+        out[f"{label}_check_s"] = round(time.perf_counter() - t, 2)
+        out[f"{label}_check_method"] = verify.check_cost(c, 3)[0]
+        t = time.perf_counter()
+        shipped = pickle.dumps(CellCode(compact(c), "bench", "feasible"))
+        out[f"{label}_ship_bytes"] = len(shipped)
+        back = pickle.loads(shipped)
+        out[f"{label}_ship_s"] = round(time.perf_counter() - t, 2)
+        path = os.path.join(workdir, f"big-{label}.sqlite")
+        with Store(path) as st:
+            t = time.perf_counter()
+            cid = st.add_code(back.code, p, method="bench")
+            out[f"{label}_store_s"] = round(time.perf_counter() - t, 2)
+            t = time.perf_counter()
+            st.get_stored(cid)
+            out[f"{label}_reload_s"] = round(time.perf_counter() - t, 2)
+            out[f"{label}_form"] = st.rows("codes")[0][-1]
+        out[f"rss_after_{label}_MiB"] = round(rss())
+    print(json.dumps(out), flush=True)
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--big-cell", type=int, metavar="N",
+                    help="only measure one 2^(N-5)-word cell (see big_cell) and exit")
     ap.add_argument("--q", type=int, default=2)
     ap.add_argument("--n", type=_range, default=range(4, 29))
     ap.add_argument("--d", type=_range, default=range(3, 11))
@@ -182,6 +239,9 @@ def main() -> None:
     cells = table_cells(args.q, args.n, args.d)
     workdir = args.keep or tempfile.mkdtemp(prefix="bench-table-")
     os.makedirs(workdir, exist_ok=True)
+    if args.big_cell:
+        big_cell(args.big_cell, workdir)
+        return
     kinds = ["local", "dask"] if args.executor == "both" else [args.executor]
     print(f"codesearch {__version__} on {platform.node()} ({os.cpu_count()} CPUs): q={args.q}, "
           f"{len(cells)} cells, budget {args.budget:g} s, {args.workers} workers, "
