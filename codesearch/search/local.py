@@ -51,6 +51,8 @@ __all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
 SEEDING = "random"
+#: Tiny runs, binary (with the parity extension) and q-ary (:func:`codesearch.search.prepare_method`).
+WARM_UP = (((2, 7, 3), {"steps": 200}), ((2, 8, 4), {"steps": 200}), ((3, 4, 3), {"steps": 200}))
 
 #: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
 MAX_COUNT_SPACE = 2**24
