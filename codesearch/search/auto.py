@@ -18,11 +18,13 @@ size above the best code found (a "no" proves ``A_q(n,d) <= best``).
 
 *Large space*: the construction library first (:func:`codesearch.constructions.candidates`:
 the largest construction whose building and checking fit the time left), then the orbit
-searches, the lexicode and greedy scans and the local search where the space allows them.
+searches where the space allows them, the lexicode and greedy scans, and the local search
+with the time left (it beats the constructions on some cells: A(25,9), A(26,10)).
 
 Every step has a conservative estimate of the seconds it needs before it can return anything
-(:func:`step_need`: scans are linear in ``q^n`` plus the marked balls, the orbit graph is
-about ``(q^n)^2 / |G|`` distance evaluations, a code of M words costs its re-check). A step
+(:func:`step_need`: the scans are anytime and need their set-up, a bitmap of ``q^n`` bits
+and the masks of a Hamming ball; the orbit graph is about ``(q^n)^2 / |G|`` distance
+evaluations; a code of M words costs its re-check). A step
 never starts when the time left, less the re-check of the best code so far, cannot hold its
 estimate; it is logged as skipped. Each step runs under ``min(time left, its share of the
 budget)``; the front end owns the deadline (:class:`codesearch.search.base.Context`).
@@ -71,8 +73,14 @@ _ORBIT_MAX_WORDS = 1 << 22
 #: Admissible orbits an orbit search accepts (:data:`codesearch.search.orbit.DEFAULT_MAX_ORBITS`):
 #: a group expected to leave several times more is not tried.
 _ORBIT_MAX_ORBITS = 12000
-#: Largest q**n for the lexicode / greedy scans and the local search.
-_SCAN_MAX_WORDS = 1 << 26
+#: Largest q**n for the lexicode / greedy scans and the local search
+#: (:data:`codesearch.search.greedy.MAX_MARK_SPACE`).
+_SCAN_MAX_WORDS = 1 << 28
+#: Beyond this q**n the random greedy samples words instead of marking balls
+#: (:data:`codesearch.search.greedy.MAX_PERM_SPACE`).
+_SAMPLED_SPACE = 1 << 22
+#: Largest ball the scans mark (:data:`codesearch.search.greedy.MAX_BALL`).
+_MAX_BALL = 1 << 23
 
 # Rates for the cost estimates, measured on a loaded 2-core machine (benchmarks/
 # bench_portfolio.py) and divided by about two, so that estimates err on the long side.
@@ -82,6 +90,10 @@ _PAIRS_PER_S = 1.0e8
 _BALL_WORDS_PER_S = 2.0e7
 #: Word visits per second of the greedy scans (ball marking), measured about 1e8.
 _SCAN_PER_S = 5.0e7
+#: Seconds per XOR mask of a ball built for the scans (measured 4e-8).
+_MASK_S = 1.0e-7
+#: Words per second of the scans' bitmap set-up.
+_BITMAP_PER_S = 1.0e9
 #: Orbit-graph distance evaluations per second (measured 2e8 .. 5e8).
 _ORBIT_PER_S = 1.0e8
 #: Seconds to tabulate the construction library of one alphabet (measured 0.3 .. 0.8 s).
@@ -162,13 +174,6 @@ def recheck_seconds(params: Params, words: int) -> float:
     return pairs
 
 
-def _scan_seconds(params: Params) -> float:
-    """One lexicode / greedy pass: visit every word, mark the ball of radius d-1 around each
-    kept word (at most the packing cap of them)."""
-    marks = min(_packing_cap(params), params.space_size) * _ball(params.q, params.n, params.d - 1)
-    return (params.space_size + marks) / _SCAN_PER_S
-
-
 def _orbit_seconds(params: Params, order: int) -> float:
     """Orbit graph of a group of the given order: about q^n / |G| orbits, each compared with
     every word."""
@@ -217,11 +222,17 @@ def step_need(method: str, params: Params, *, order: int | None = None,
     if method == "exact":
         return 0.1 + 4 * recheck_seconds(params, _packing_cap(params)) if space <= 1 << 16 \
             else math.inf
-    if method in ("lexicode", "greedy"):
-        return math.inf if space > _SCAN_MAX_WORDS else _STEP_OVERHEAD + _scan_seconds(params)
-    if method == "local":
-        # a random greedy pass and the lexicode to start from, then a few moves
-        return math.inf if space > _SCAN_MAX_WORDS else 0.1 + 2 * _scan_seconds(params)
+    if method in ("lexicode", "greedy", "local"):
+        # anytime scans: a prefix of the scan is already a code, so what they need is the
+        # set-up (the marked-words bitmap and the XOR masks of the ball of radius d - 1)
+        if space > _SCAN_MAX_WORDS:
+            return math.inf
+        ball = _ball(params.q, params.n, params.d - 1)
+        sampled = method != "lexicode" and space > _SAMPLED_SPACE  # random order: no masks
+        if ball > _MAX_BALL and not sampled:
+            return math.inf
+        setup = _STEP_OVERHEAD + space / _BITMAP_PER_S + (0 if sampled else ball * _MASK_S)
+        return setup if method != "local" else 0.1 + 2 * setup
     if method == "orbit":
         if space > _ORBIT_MAX_WORDS or order is None:
             return math.inf
@@ -278,8 +289,10 @@ def plan(params: Params, *, groups: Sequence[tuple[str, int | None]] | None = No
         steps = [step("exact", 0.3), step("lexicode", 0.05), step("greedy", 0.05),
                  *orbit_share(0.3), step("local", 0.2), constructions, step("sat", 1.0)]
     else:
-        steps = [constructions, *orbit_share(0.5), step("lexicode", 0.05),
-                 step("greedy", 0.05), step("local", 0.2)]
+        # scans last: they are anytime, and the local search (which starts from the
+        # random greedy code and keeps the lexicode) takes whatever time is left
+        steps = [constructions, *orbit_share(0.4), step("lexicode", 0.2),
+                 step("greedy", 0.05), step("local", 1.0)]
     return [s for s in steps if s is not None and s.need < math.inf]
 
 
