@@ -196,9 +196,9 @@ def test_progress_reports_portfolio_totals(monkeypatch):
 
 
 # ------------------------------------------------------------------- the plan by the cell
-def test_plan_starts_with_exact_on_small_spaces():
+def test_plan_puts_exact_up_front_on_small_spaces():
     steps = auto.plan(Params(2, 8, 3))
-    assert steps[0].method == "exact"
+    assert [s.method for s in steps][:2] == ["lexicode", "exact"]
     assert [s.method for s in steps][-1] == "sat"
 
 
