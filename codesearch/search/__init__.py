@@ -6,7 +6,8 @@ declares ``OPTIONS`` and ``SEEDING`` and defines ``run(ctx, **options) -> Outcom
 (:mod:`codesearch.search.base` describes the contract).
 
 The front end validates the cell, the time limit, the options (unknown ones raise) and the
-target size; resolves the seed; hands the method a :class:`~codesearch.search.base.Context`
+target size; loads the method's kernels before its clock starts (:func:`prepare_method`, once
+per process); resolves the seed; hands the method a :class:`~codesearch.search.base.Context`
 with the clock and the cell's known upper bound (computed at most once, on demand); re-checks
 the returned code with :mod:`codesearch.verify`; applies the status rule (only exhaustive
 methods may prove bounds, so only they may claim OPTIMAL or INFEASIBLE); and stamps time,
