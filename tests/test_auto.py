@@ -258,3 +258,8 @@ def test_progress_reports_each_step(monkeypatch):
     ends = [e for e in seen if "size" in e and "step" in e]
     assert [e["step"] for e in ends][:2] == ["orbit[cyclic]", "orbit[cyclic*rev]"]
     assert all({"best", "upper", "seconds", "nodes", "elapsed"} <= set(e) for e in ends)
+
+
+def test_groups_given_by_the_user_are_always_planned():
+    steps = auto.plan(Params(2, 20, 10), groups=[("cyclic:0-18*rep", None)])
+    assert "orbit[cyclic:0-18*rep]" in [s.name for s in steps]

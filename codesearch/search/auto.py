@@ -94,8 +94,9 @@ _SCAN_PER_S = 5.0e7
 _MASK_S = 1.0e-7
 #: Words per second of the scans' bitmap set-up.
 _BITMAP_PER_S = 1.0e9
-#: Orbit-graph distance evaluations per second (measured 2e8 .. 5e8).
-_ORBIT_PER_S = 1.0e8
+#: Orbit-graph distance evaluations per second, counting every orbit as admissible
+#: (measured 1.7e8 .. 3e9: at larger d most orbits are not admissible).
+_ORBIT_PER_S = 2.0e8
 #: Seconds to tabulate the construction library of one alphabet (measured 0.3 .. 0.8 s).
 _TABLE_SECONDS = 1.5
 #: Fixed cost of any step (front end, result, logging).
@@ -220,8 +221,7 @@ def step_need(method: str, params: Params, *, order: int | None = None,
     """
     space = params.space_size
     if method == "exact":
-        return 0.1 + 4 * recheck_seconds(params, _packing_cap(params)) if space <= 1 << 16 \
-            else math.inf
+        return 0.1 + 4 * recheck_seconds(params, _packing_cap(params))
     if method in ("lexicode", "greedy", "local"):
         # anytime scans: a prefix of the scan is already a code, so what they need is the
         # set-up (the marked-words bitmap and the XOR masks of the ball of radius d - 1)
@@ -234,8 +234,10 @@ def step_need(method: str, params: Params, *, order: int | None = None,
         setup = _STEP_OVERHEAD + space / _BITMAP_PER_S + (0 if sampled else ball * _MASK_S)
         return setup if method != "local" else 0.1 + 2 * setup
     if method == "orbit":
-        if space > _ORBIT_MAX_WORDS or order is None:
+        if space > _ORBIT_MAX_WORDS:
             return math.inf
+        if order is None:  # a group given by the user: its order is not known here
+            return _STEP_OVERHEAD + _orbit_seconds(params, params.n)
         if space / order > 4 * _ORBIT_MAX_ORBITS:
             return math.inf  # far too many orbits: the search would refuse after the work
         return _STEP_OVERHEAD + _orbit_seconds(params, order)
@@ -255,9 +257,10 @@ def plan(params: Params, *, groups: Sequence[tuple[str, int | None]] | None = No
     params : Params
         The cell.
     groups : sequence of (spec, order or None), optional
-        Groups for the orbit steps (default :func:`natural_groups` with their orders); an
-        unknown order is estimated as n (a lower bound for the cyclic groups), which errs on
-        the long side.
+        Groups for the orbit steps (default :func:`natural_groups` with their orders). A
+        group of unknown order (given by the user) is always planned, its cost estimated
+        with order n (the cyclic group's, so the estimate errs on the long side); a natural
+        group expected to leave far more orbits than the orbit search accepts is left out.
     exact_max_words : int
         The exact search goes first when ``q**n`` is at most this.
     """
@@ -266,8 +269,7 @@ def plan(params: Params, *, groups: Sequence[tuple[str, int | None]] | None = No
     q, n = params.q, params.n
     groups = _natural_groups(q, n) if groups is None else list(groups)
     tabulated = q in _TABULATED
-    orbit_steps = [Step(f"orbit[{spec}]", "orbit", 0.0,
-                        step_need("orbit", params, order=order if order else n),
+    orbit_steps = [Step(f"orbit[{spec}]", "orbit", 0.0, step_need("orbit", params, order=order),
                         {"group": spec}) for spec, order in groups]
     orbit_steps = [s for s in orbit_steps if s.need < math.inf]
     constructions = Step("constructions", "constructions", 0.2,
