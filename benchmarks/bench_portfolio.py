@@ -8,6 +8,8 @@ Sections (choose with ``--section``; default all):
             right after it (the "fresh install" of the issue: install, prepare, run), of the
             same command as the very first run (it compiles first, after a one-line notice),
             and of ``codesearch --version``. Medians over ``--repeat`` runs.
+``peer``    the same first run on the main tree (the installed package, whose kernels compile
+            inside the search budget), empty cache each repeat: the peer of ``fresh``.
 ``small``   cells whose space is small: auto against the exact search alone with the same
             budget (a peer measured in the same process), and against the previous portfolio
             (the ``auto`` of the installed main tree, run in a process of its own, kernels
@@ -150,6 +152,39 @@ def _main_tree_auto(cells: list[tuple[int, int, int]], budget: float) -> list | 
     return json.loads(proc.stdout.splitlines()[-1])
 
 
+def section_peer(repeat: int) -> list[str]:
+    """The same fresh-machine command on the main tree (the installed package), empty cache."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+    cwd = tempfile.gettempdir()
+    probe = subprocess.run([sys.executable, "-c", "import codesearch; print(codesearch.__file__)"],
+                           env=env, cwd=cwd, capture_output=True, text=True)
+    where = probe.stdout.strip()
+    if probe.returncode != 0 or where.startswith(ROOT):
+        return ["## Peer: main tree on an empty cache", "", "not available (no other tree "
+                "installed)", ""]
+    walls, cpus, results = [], [], []
+    for _ in range(repeat):
+        cache = tempfile.mkdtemp(prefix="numba-cold-")
+        try:
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
+            t0 = time.perf_counter()
+            proc = subprocess.run([sys.executable, "-m", "codesearch", "find", "8", "3",
+                                   "--method", "auto", "--time", "2", "--json"],
+                                  env={**env, "NUMBA_CACHE_DIR": cache}, cwd=cwd,
+                                  capture_output=True, text=True, timeout=1800)
+            walls.append(time.perf_counter() - t0)
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
+            cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+            last = json.loads(proc.stdout.splitlines()[-1])
+            results.append(f"{last['size']} {last['status']} {last['seconds']:.2f} s")
+        finally:
+            shutil.rmtree(cache, ignore_errors=True)
+    return ["## Peer: the main tree's `find 8 3 --method auto --time 2` on an empty cache", "",
+            f"Package at `{os.path.dirname(where)}` (kernels compiled inside the search), "
+            f"{repeat} repeats: median wall {_median(walls):.2f} s, CPU {_median(cpus):.2f} s; "
+            f"results (size, status, search seconds): {', '.join(results)}.", ""]
+
+
 def section_small(budget: float) -> list[str]:
     from codesearch.model import Params
     from codesearch.search import prepare_method, search
@@ -220,7 +255,8 @@ def section_large(budget: float) -> list[str]:
 
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--section", choices=["fresh", "small", "large", "all"], default="all")
+    ap.add_argument("--section", choices=["fresh", "peer", "small", "large", "all"],
+                    default="all")
     ap.add_argument("--repeat", type=int, default=3)
     ap.add_argument("--budget", type=float, default=3.0, help="small section budget")
     ap.add_argument("--large-budget", type=float, default=5.0)
@@ -231,6 +267,8 @@ def main() -> int:
              f"Python {sys.version.split()[0]}; `{' '.join(sys.argv)}`.", ""]
     if args.section in ("fresh", "all"):
         lines += section_fresh(args.repeat)
+    if args.section in ("peer", "all"):
+        lines += section_peer(args.repeat)
     if args.section in ("small", "all"):
         lines += section_small(args.budget)
     if args.section in ("large", "all"):
