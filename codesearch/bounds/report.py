@@ -31,6 +31,7 @@ _SHORT = {
     "delsarte-lp-plus": "lp+",
     "lp-odd-size": "lp-odd",
     "distance-enumeration": "lp-int",
+    "profile-lp": "lp-prof",
     "three-point-sdp": "sdp",
     "qary-three-point-sdp": "sdp-q",
 }
@@ -124,7 +125,9 @@ def run_bounds_command(q: int, ns: Iterable[int], ds: Iterable[int], *, as_json:
 
 def _print_table(grid: list[Params], summaries: dict, *, lp: bool, sdp: bool,
                  out: TextIO) -> None:
-    names = [k for k in _SHORT if (lp or not k.startswith(("delsarte", "dist", "lp-")))
+    from codesearch.bounds import _COMPUTED
+
+    names = [k for k in _SHORT if (lp or k not in _COMPUTED)
              and (sdp or "sdp" not in k)]
     header = (["q", "n", "d", "upper", "by", "kind", "gv"] + [_SHORT[k] for k in names]
               + ["griesmer*"])

@@ -14,6 +14,7 @@ from typing import Any, Callable, Mapping
 from codesearch.errors import InputError
 from codesearch.verify.integral import check_distance_enumeration, check_odd_size
 from codesearch.verify.lp import check_delsarte_lp, check_delsarte_lp_qcw
+from codesearch.verify.profile_lp import check_profile_lp
 from codesearch.verify.qary_three_point import check_qary_three_point
 from codesearch.verify.relation_chain import check_relation_chain, check_theorem
 from codesearch.verify.three_point import check_three_point_certificate
@@ -29,10 +30,11 @@ CERTIFICATE_CHECKERS: dict[str, Checker] = {
     "delsarte-lp-qcw": check_delsarte_lp_qcw,
     "three-point-sdp": check_three_point_certificate,
     "qary-three-point-sdp": check_qary_three_point,
-    # these three nest certificates of any kind, re-checked through the table's entry point
+    # these nest certificates of any kind, re-checked through the table's entry point
     "lp-odd-size": lambda cert: check_odd_size(cert, check_certificate),
     "distance-enumeration": lambda cert: check_distance_enumeration(cert, check_certificate),
     "relation-chain": lambda cert: check_relation_chain(cert, check_certificate),
+    "profile-lp": lambda cert: check_profile_lp(cert, check_certificate),
     "theorem": check_theorem,
 }
 
