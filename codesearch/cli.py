@@ -38,8 +38,20 @@ def _int_range(text: str) -> range:
     return range(a, b + 1)
 
 
+#: Digits of the longest exact integer this tool prints (q^n at q = 36, n = 4096 has 6375).
+_JSON_DIGITS = 8000
+
+
 def _print_json(obj: Any) -> None:
-    print(json.dumps(obj, sort_keys=False))
+    # Exact integers are printed whole; Python refuses past 4300 digits unless told, so the
+    # limit is raised for this one dump of our own values (never while reading input).
+    old = sys.get_int_max_str_digits()
+    sys.set_int_max_str_digits(max(old, _JSON_DIGITS) if old else 0)
+    try:
+        text = json.dumps(obj, sort_keys=False)
+    finally:
+        sys.set_int_max_str_digits(old)
+    print(text)
 
 
 # ---------------------------------------------------------------------------------- check
