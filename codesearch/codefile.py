@@ -301,10 +301,18 @@ def parse_code_json(obj: Any, path: str = "<json>", q: int | None = None) -> Cod
     words = obj["words"]
     if not isinstance(words, list) or not all(isinstance(w, str) for w in words):
         raise InputError(f"{path}:1: 'words' must be a list of strings")
-    header = {k: str(v) for k, v in (obj.get("meta") or {}).items()}
+    meta = obj.get("meta") or {}
+    if not isinstance(meta, dict) or not all(
+            isinstance(v, (str, int, float, type(None))) for v in meta.values()):
+        raise InputError(f"{path}:1: 'meta' must be an object of plain values")
+    header = {str(k).lower(): str(v).replace("\n", " ") for k, v in meta.items()}
     for key in ("q", "n", "size", "d"):
-        if obj.get(key) is not None:
-            header[key] = str(obj[key])
+        value = obj.get(key)
+        if value is None:
+            continue
+        if isinstance(value, bool) or not isinstance(value, int):
+            raise InputError(f"{path}:1: {key!r} must be an integer, got {value!r:.40}")
+        header[key] = str(value)
     header["format"] = FORMAT
     text = "".join(f"# {k}: {v}\n" for k, v in header.items()) + "\n".join(words) + "\n"
     parsed = parse_code_text(text, path, q)

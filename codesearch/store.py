@@ -815,11 +815,11 @@ def read_published_file(path: str) -> list[PublishedRow]:
         raise InputError(f"{path}: cannot read ({getattr(exc, 'strerror', None) or exc})") from None
     default_source = os.path.basename(path)
     records: list[tuple[int, Mapping[str, Any]]] = []
-    if path.lower().endswith(".json"):
-        try:
-            data = json.loads(text)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"{path}:{exc.lineno}: not valid JSON ({exc.msg})") from None
+    is_json = path.lower().endswith(".json")
+    if is_json:
+        from codesearch.codefile import parse_json_text
+
+        data = parse_json_text(text, path)
         if not isinstance(data, list) or not all(isinstance(x, dict) for x in data):
             raise InputError(f"{path}:1: expected a JSON list of objects")
         records = [(i + 1, x) for i, x in enumerate(data)]
@@ -841,8 +841,8 @@ def read_published_file(path: str) -> list[PublishedRow]:
                 return None
             raise InputError(f"{path}:{line}: missing {name}")
         try:
-            if isinstance(value, bool):
-                raise ValueError
+            if isinstance(value, bool) or (is_json and not isinstance(value, int)):
+                raise ValueError  # JSON: exact types (no "16", 16.0 or true for 16)
             out = int(str(value).strip())
         except ValueError:
             raise InputError(f"{path}:{line}: {name} must be an integer, got {value!r}") from None
@@ -863,7 +863,10 @@ def read_published_file(path: str) -> list[PublishedRow]:
             raise InputError(f"{path}:{line}: neither lower nor upper given")
         if lower is not None and upper is not None and lower > upper:
             raise InputError(f"{path}:{line}: lower {lower} > upper {upper}")
-        source = str(rec.get("source") or "").strip() or default_source
+        source = rec.get("source")
+        if source is not None and not isinstance(source, str):
+            raise InputError(f"{path}:{line}: source must be text, got {source!r:.40}")
+        source = (source or "").strip() or default_source
         out.append(PublishedRow(q, n, d, lower, upper, source))
     if not out:
         raise InputError(f"{path}:1: no rows")
