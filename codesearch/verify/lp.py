@@ -139,12 +139,7 @@ def _lp_certificate_head(cert: Mapping[str, Any], more: tuple[str, ...]
 
 def _common_denominator(values: list[Fraction], q: int, n: int) -> int:
     """The lcm of the denominators, refused past the caps before the (n+1)^2 products."""
-    L = 1
-    for v in values:
-        L = math.lcm(L, v.denominator)
-        if L.bit_length() > strict.MAX_DENOMINATOR_BITS:
-            raise InputError(f"certificate: common denominator past "
-                             f"{strict.MAX_DENOMINATOR_BITS} bits")
+    L = strict.common_denominator(values, "certificate")
     strict.check_work(_work(q, n, L.bit_length()), f"certificate for q={q}, n={n}")
     return L
 

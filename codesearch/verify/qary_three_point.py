@@ -115,10 +115,12 @@ _ROW_SHAPES = {"upper": 4, "pair": 4, "weight": 1, "delsarte": 1}
 def _work(n: int, blocks: list, multipliers: list) -> int:
     """Elementary steps: per block entry the t, p and h/u loops of alpha (at most
     (n+1)^2 (n/2+1)), per block the exact PSD test, per Delsarte row n^2, the caps."""
+    from codesearch.verify.three_point import block_psd_work
+
     steps = n ** 4
-    for _, weights, _ in blocks:
+    for j, (_, weights, mat) in enumerate(blocks):
         m = len(weights)
-        steps += m * m * (n + 1) ** 2 * (n // 2 + 1) + m ** 3
+        steps += m * m * (n + 1) ** 2 * (n // 2 + 1) + block_psd_work(mat, j)
     steps += sum(n * n if name == "delsarte" else 1 for name, _, _ in multipliers)
     return steps
 

@@ -32,7 +32,7 @@ from codesearch.errors import InputError
 
 __all__ = ["MAX_CERTIFICATE_BYTES", "MAX_DIGITS", "MAX_DENOMINATOR_BITS", "MAX_WORK",
            "MAX_ROWS", "mapping", "field", "integer", "get_int", "get_bool", "get_str",
-           "get_list", "rational", "check_work", "short"]
+           "get_list", "rational", "check_work", "short", "common_denominator"]
 
 #: Largest certificate file read (bytes).
 MAX_CERTIFICATE_BYTES = 64 * 2**20
@@ -143,6 +143,19 @@ def rational(value: Any, what: str, *, allow_int: bool = True) -> Fraction:
     if q == 0:
         raise InputError(f"{what} needs a positive denominator: {short(value)}")
     return Fraction(int(num), q)
+
+
+def common_denominator(values: Any, what: str) -> int:
+    """The lcm of the denominators of exact rationals, refused past
+    :data:`MAX_DENOMINATOR_BITS` before any arithmetic on the scaled values."""
+    import math
+
+    den = 1
+    for v in values:
+        den = math.lcm(den, v.denominator)
+        if den.bit_length() > MAX_DENOMINATOR_BITS:
+            raise InputError(f"{what}: common denominator past {MAX_DENOMINATOR_BITS} bits")
+    return den
 
 
 def check_work(steps: int | float, what: str, cap: int = MAX_WORK) -> None:

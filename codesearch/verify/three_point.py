@@ -309,13 +309,24 @@ def _capped_total(obj: _Objective, johnson_memo: dict) -> Fraction:
     return total
 
 
+def block_psd_work(mat: list[list[Fraction]], j: int) -> int:
+    """Steps of the exact PSD test of one block: m^3 eliminations on integers of up to
+    m (log2 den + log2 max numerator) bits (fraction-free), one step per 64-bit limb; the
+    block's common denominator is refused past the cap first."""
+    m = len(mat)
+    den = strict.common_denominator((z for row in mat for z in row),
+                                    f"certificate: blocks[{j}]")
+    top = max((abs(z.numerator).bit_length() for row in mat for z in row), default=1)
+    return m ** 3 * (1 + m * (den.bit_length() + top) // 64)
+
+
 def _work(n: int, blocks: list, multipliers: list) -> int:
     """Elementary steps of the check: per block entry the t and u loops of beta (at most
-    (n/2+1)^2), per block the exact PSD test (m^3), per Delsarte row n^2, and the caps."""
+    (n/2+1)^2), per block the exact PSD test, per Delsarte row n^2, and the caps."""
     steps = n ** 3
-    for _, weights, _ in blocks:
+    for j, (_, weights, mat) in enumerate(blocks):
         m = len(weights)
-        steps += m * m * (n // 2 + 1) ** 2 + m ** 3
+        steps += m * m * (n // 2 + 1) ** 2 + block_psd_work(mat, j)
     steps += sum(n * n if name == "delsarte" else 1 for name, _, _ in multipliers)
     return steps
 
