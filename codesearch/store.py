@@ -777,11 +777,8 @@ def refutation_record(manifest: str, q: int, n: int, d: int, size: int, reason: 
 
 
 def _file_sha256(path: str) -> str:
-    h = hashlib.sha256()
     with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
+        return hashlib.file_digest(fh, "sha256").hexdigest()
 
 
 def _refutation_problem(record: Mapping[str, Any]) -> str | None:

@@ -112,7 +112,8 @@ def code_report(report: Any, file: str) -> str:
 
 def find_summary(result: Any) -> str:
     """One line for a :class:`~codesearch.results.SearchResult`."""
-    verdict = "proved optimal" if result.optimal else (
+    # an exhaustive search leaves nothing to re-check unless it wrote a refutation bundle
+    verdict = "proved optimal by exhaustive search" if result.optimal else (
         f"{result.status.value}; upper bound {result.upper}")
     return (f"{result.params}: code of size {result.size} ({verdict}) by {result.method} in "
             f"{result.seconds:.2f} s, {result.nodes} nodes")
