@@ -249,3 +249,20 @@ def test_sdp_and_lp_at_the_extremes_refuse_or_answer(capsys):
                  ["bounds", 64, 3, "--sdp", "--q", 36]):
         code, _, err = _run(argv, capsys)
         assert code in (0, 2) and "Traceback" not in err
+
+
+def test_fuzz_findings_stay_fixed(tmp_path):
+    # found by tests/test_fuzz_readers.py: "meta": true in a JSON code file (AttributeError)
+    from codesearch.codefile import parse_code_json
+    from codesearch.store import read_published_file
+
+    base = {"format": "codesearch-code/1", "q": 2, "n": 3, "words": ["000", "111"]}
+    for bad in ({"meta": True}, {"meta": {"x": [1]}}, {"q": 2.0}, {"n": "3"}, {"d": True}):
+        with pytest.raises(InputError):
+            parse_code_json({**base, **bad})
+    # published values in JSON: exact types (no "16", 16.0 or a list for the source)
+    for rec in ({"lower": "16"}, {"lower": 16.0}, {"source": ["MS77"]}):
+        path = tmp_path / "p.json"
+        path.write_text(json.dumps([{"q": 2, "n": 7, "d": 3, "lower": 16, **rec}]))
+        with pytest.raises(InputError):
+            read_published_file(str(path))
