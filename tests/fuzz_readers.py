@@ -245,6 +245,7 @@ def build_readers() -> list[Reader]:
             distance_enumeration(Params(2, 9, 4)).certificate)),
         "relation-chain": cert_of("relation-chain", [Params(2, n, d) for n in range(5, 10)
                                                      for d in range(3, 6)]),
+        "profile-lp": cert_of("profile-lp", [Params(2, 11, 4)]),
         "theorem": {"kind": "theorem", "theorem": "hamming", "q": 2, "n": 7, "d": 3,
                     "value": 16},
     }
@@ -302,7 +303,8 @@ def _manifest_reader(tmp: str) -> Reader:
     res = search(Params(2, 4, 3), "sat", size=3, proof=base)
     assert res.exists is False
     files = {}
-    manifest = json.load(open(base + ".json"))
+    with open(base + ".json") as fh:
+        manifest = json.load(fh)
     for b in manifest["branches"]:
         for key in ("formula", "proof"):
             with open(os.path.join(tmp, b[key]), "rb") as fh:

@@ -40,13 +40,18 @@ def _fuzz(reader: Reader, examples: int, outcomes: collections.Counter) -> None:
 READERS = ["certificate:delsarte-lp", "certificate:delsarte-lp-qcw",
            "certificate:three-point-sdp", "certificate:qary-three-point-sdp",
            "certificate:lp-odd-size", "certificate:distance-enumeration",
-           "certificate:relation-chain", "certificate:theorem", "code file (text)",
+           "certificate:relation-chain", "certificate:theorem", "certificate:profile-lp",
+           "code file (text)",
            "code file (JSON)", "generator matrix", "published values (CSV)",
            "published values (JSON)", "group spec", "store", "refutation manifest"]
 
 
 def test_every_reader_is_fuzzed(readers):
+    from codesearch.verify import CERTIFICATE_CHECKERS
+
     assert sorted(readers) == sorted(READERS)
+    # a new certificate kind must join the fuzzed readers
+    assert {f"certificate:{k}" for k in CERTIFICATE_CHECKERS} <= set(READERS)
     for r in readers.values():  # the seeds themselves read cleanly
         assert feed(r, r.seed) == "ok", r.name
 
