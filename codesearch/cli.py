@@ -38,8 +38,20 @@ def _int_range(text: str) -> range:
     return range(a, b + 1)
 
 
+#: Digits of the longest exact integer this tool prints (q^n at q = 36, n = 4096 has 6375).
+_JSON_DIGITS = 8000
+
+
 def _print_json(obj: Any) -> None:
-    print(json.dumps(obj, sort_keys=False))
+    # Exact integers are printed whole; Python refuses past 4300 digits unless told, so the
+    # limit is raised for this one dump of our own values (never while reading input).
+    old = sys.get_int_max_str_digits()
+    sys.set_int_max_str_digits(max(old, _JSON_DIGITS) if old else 0)
+    try:
+        text = json.dumps(obj, sort_keys=False)
+    finally:
+        sys.set_int_max_str_digits(old)
+    print(text)
 
 
 def _add_progress_option(p: argparse.ArgumentParser) -> None:
@@ -90,6 +102,12 @@ def _add_check(sub: argparse._SubParsersAction) -> None:
                    "found, by information sets")
     p.add_argument("--min-only", action="store_true",
                    help="with --generator: only the minimum distance, by information sets")
+    p.add_argument("--cell", nargs=3, type=int, metavar=("Q", "N", "D"),
+                   help="certificate or refutation bundle: the cell it is offered for; one "
+                   "stating another cell is refused (exit 1)")
+    p.add_argument("--store", metavar="STORE",
+                   help="certificate or refutation bundle: once re-checked, record the bound "
+                   "in this results store (the report then says 're-checked' for a bundle)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     _COMMANDS["check"] = _cmd_check
 
@@ -104,22 +122,46 @@ def _cmd_check(args: argparse.Namespace) -> int:
         return _print_code_report(args, report, None)
     from codesearch import proofbundle  # a SAT refutation bundle (manifest + DRAT proofs)
 
+    cell = None
+    if args.cell is not None:
+        from codesearch.model import Params
+
+        cell = Params(*args.cell)
     if proofbundle.is_bundle(args.file):
-        return proofbundle.check_command(args.file, args.json)
+        return proofbundle.check_command(args.file, args.json, cell=cell, store=args.store)
     cert = codefile.read_certificate(args.file)
     if cert is not None:
-        valid, bound, reason = verify.check_certificate(cert)
+        valid, bound, reason = verify.check_certificate(cert, cell)
+        if valid and args.store:
+            _store_certificate(args.store, cert, bound, cell)
+        kind = cert["kind"] if isinstance(cert["kind"], str) else "?"
         if args.json:
-            _print_json({"certificate": cert["kind"], "valid": valid, "bound": bound,
-                         "reason": reason})
+            _print_json({"certificate": kind, "valid": valid, "bound": bound,
+                         "reason": reason, "cell": None if cell is None else list(args.cell)})
         else:
             verdict = "valid" if valid else "INVALID"
-            print(f"{args.file}: {cert['kind']} certificate {verdict}: {reason}")
+            print(f"{args.file}: {kind} certificate {verdict}: {reason}")
         return 0 if valid else 1
+    if args.cell is not None or args.store is not None:
+        raise InputError(f"{args.file}: --cell and --store are for certificates and "
+                         f"refutation bundles, not code files")
     parsed = codefile.read_code(args.file, args.q)
     d = args.d if args.d is not None else parsed.claimed_d
     report = verify.check_code(parsed.code, d)
     return _print_code_report(args, report, parsed)
+
+
+def _store_certificate(store: str, cert: dict, bound: int, cell: Any) -> None:
+    """Record a re-checked certificate's bound in a store (which re-checks it again)."""
+    from codesearch.model import Params
+    from codesearch.results import BoundResult
+    from codesearch.store import Store
+    from codesearch.verify.certificates import certificate_cell
+
+    p = cell if cell is not None else Params(*certificate_cell(cert))
+    with Store(store) as st:
+        st.add_bound(BoundResult(p, bound, str(cert["kind"]), certificate=cert,
+                                 note="recorded by codesearch check"))
 
 
 def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> int:

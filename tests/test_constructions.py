@@ -319,6 +319,126 @@ def test_seeds_enter_the_chains():
     assert cs[0].size >= 5120
 
 
+# ----------------------------------------------------------------------------- sporadic / searched
+def test_hexads_form_the_steiner_system_s5_6_12():
+    # The supports of the weight-6 words of the extended ternary Golay code are the 132 blocks
+    # of S(5,6,12): every 5-set lies in exactly one block (MacWilliams-Sloane Ch. 20 s. 2).
+    from codesearch.constructions import sporadic
+
+    h = sporadic.hexads()
+    assert h.shape == (132, 12) and (h.sum(axis=1) == 6).all()
+    cover = {}
+    for row in h:
+        for five in itertools.combinations(np.nonzero(row)[0].tolist(), 5):
+            cover[five] = cover.get(five, 0) + 1
+    assert len(cover) == comb(12, 5) and set(cover.values()) == {1}
+
+
+def test_julin_code_meets_the_published_values():
+    # A(12,4) = 144 and A(11,4) = 72 (Julin 1965; MacWilliams-Sloane App. A, from memory);
+    # the checker confirms distance 4, and shortening on coordinate 0 halves the code.
+    b = build_family("julin")
+    assert (b.code.n, b.size, b.d) == (12, 144, 4)
+    assert verify.min_distance(b.code) == 4
+    s = shorten(b, 0, 0)
+    assert (s.code.n, s.size) == (11, 72)
+    assert shorten(s, 0, 0).size == 36  # balanced = 2 as the registry states
+    assert (puncture(b).size, puncture(b).code.n) == (144, 11)  # A(11,3) >= 144
+
+
+@pytest.mark.parametrize("key,q,n,d,size", [("b10-40", 2, 10, 4, 40), ("t6-18", 3, 6, 4, 18)])
+def test_orbit_codes_meet_the_published_values(key, q, n, d, size):
+    # A(10,4) = 40 (Best 1980; MacWilliams-Sloane App. A, from memory); A_3(6,4) = 18
+    # (ternary table of Vaessens, Aarts and van Lint 1993, from memory).
+    from codesearch.constructions.sporadic import ORBITS
+
+    b = build_family("orbit", key=key)
+    assert (b.code.q, b.code.n, b.size, b.d) == (q, n, size, d)
+    assert verify.min_distance(b.code) == d
+    words = {tuple(w) for w in b.code.words.tolist()}
+    perm = ORBITS[key].perm
+    assert {tuple(w[i] for i in perm) for w in words} == words  # invariant under sigma
+    lead = ORBITS[key].balanced
+    if lead:
+        counts = np.unique(b.code.words[:, :lead], axis=0, return_counts=True)[1]
+        assert len(counts) == q**lead and len(set(counts.tolist())) == 1
+
+
+def test_nordstrom_robinson_translates_with_tails():
+    # The span of NR is a [16,11,4] code split by 8 translates of NR (MacWilliams-Sloane
+    # Ch. 15 s. 5: NR is a union of 8 cosets of RM(1,4) in RM(2,4)); with even-weight tails
+    # (Construction X, Sloane-Reddy-Chen 1972, from memory) this gives the published
+    # A(19,6) >= 1024 and A(20,6) >= 2048 (data/published_binary.csv).
+    from codesearch.constructions import sporadic
+
+    nr, shifts = sporadic.nr_translates()
+    assert shifts.shape == (8, 16)
+    for a, size in ((3, 1024), (4, 2048)):
+        b = build_family("nr-tails", a=a)
+        assert (b.code.n, b.size, b.d) == (16 + a, size, 6)
+        assert verify.min_distance(b.code) == 6
+    assert candidates(Params(2, 18, 5))[0].size >= 1024  # punctured, A(18,5) = 1024
+    assert candidates(Params(2, 19, 5))[0].size >= 2048  # A(19,5) = 2048
+    with pytest.raises(ParameterError, match="1 <= a <= 4"):
+        build_family("nr-tails", a=5)
+
+
+def test_searched_codes_verify_and_satisfy_macwilliams():
+    # every record builds and verifies at its distance; the weight distribution of its dual
+    # (enumerated) equals the MacWilliams transform (MacWilliams-Sloane Ch. 5 Thm 1); the
+    # Griesmer bound n >= sum ceil(d / 2^i) holds (MacWilliams-Sloane Ch. 17 s. 6).
+    from codesearch.constructions.searched import RECORDS
+
+    for key, rec in RECORDS.items():
+        b = build_family("searched", key=key)
+        assert (b.code.n, b.code.k, b.d) == (rec.n, rec.k, rec.d)
+        assert true_distance(b.code) == rec.d
+        assert rec.n >= sum(-(-rec.d // 2**i) for i in range(rec.k))
+        if rec.n - rec.k <= 14:
+            a, w = weights(b.code), weights(al.dual(b.code))
+            n = rec.n
+            for k in range(n + 1):
+                assert Fraction(sum(a[i] * krawtchouk(2, n, k, i) for i in range(n + 1)),
+                                b.size) == w[k]
+
+
+def test_fast_searches_rerun_to_their_records():
+    # reproducibility: the recorded seeds give the recorded results
+    from codesearch.constructions.searched import RECORDS
+
+    for key in ("qc27-9", "columns23-14"):
+        assert RECORDS[key].rerun() == RECORDS[key].result
+
+
+@pytest.mark.slow
+def test_all_searches_rerun_to_their_records():
+    from codesearch.constructions.searched import RECORDS
+
+    for rec in RECORDS.values():
+        assert rec.rerun() == rec.result
+
+
+def test_lookup_reaches_distance_four_records_through_u_u_plus_v():
+    # A(2m,4) >= 2^(m-1) A(m,4) ((u|u+v), MacWilliams-Sloane Ch. 2 s. 9) with A(10,4) = 40,
+    # A(11,4) = 72, A(12,4) = 144 gives the published A(20,4) = 20480, A(22,4) = 73728,
+    # A(24,4) = 294912; shortening on the first half gives A(21,4) = 36864 and
+    # A(23,4) = 147456 (published values: data/published_binary.csv).
+    want = {20: 20480, 21: 36864, 22: 73728, 23: 147456, 24: 294912}
+    for n, size in want.items():
+        c = candidates(Params(2, n, 4))[0]
+        assert c.size == size, n
+    b = candidates(Params(2, 21, 4))[0].build()
+    assert (b.code.n, b.size, b.d) == (21, 36864, 4)
+
+
+def test_lookup_reaches_the_searched_linear_records():
+    # published values (data/published_binary.csv): A(24,6) = 16384, A(28,8) = 16384,
+    # A(27,10) = 512, A(28,10) = 1024; A_3(5,3) = 18 (from memory, see above)
+    for (q, n, d), size in {(2, 24, 6): 16384, (2, 28, 8): 16384, (2, 27, 10): 512,
+                            (2, 28, 10): 1024, (3, 5, 3): 18}.items():
+        assert candidates(Params(q, n, d))[0].size >= size, (q, n, d)
+
+
 # ----------------------------------------------------------------------------- CLI
 def _cli(*args: str) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "codesearch", *args], capture_output=True,
@@ -349,4 +469,5 @@ def test_public_api_is_pinned():
     ])
     assert set(FAMILIES) >= {"hamming", "golay", "reed-muller", "bch", "qr", "mds", "cyclic",
                              "hadamard", "levenshtein", "conference", "nordstrom-robinson",
-                             "kerdock", "preparata", "partition"}
+                             "kerdock", "preparata", "partition", "julin", "orbit",
+                             "searched", "nr-tails"}

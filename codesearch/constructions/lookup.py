@@ -299,8 +299,7 @@ class ConstructionTable:
                 offer(Candidate(q, 2 * n, d, a.size * b.size,
                                 f"(u|u+v) of {a.provenance} and {b.provenance}", lin,
                                 (a.k + b.k) if lin else None, "(u|u+v)", a.steps + b.steps + 1,
-                                ("uuv", a.recipe, b.recipe),
-                                0 if a.linear else a.balanced, self.seeds))
+                                ("uuv", a.recipe, b.recipe), _lead_balanced(a), self.seeds))
         for n1 in range(1, nmax // 2 + 1):  # direct sums
             for n2 in range(n1, nmax - n1 + 1):
                 for d in range(1, n1 + 1):
@@ -312,7 +311,7 @@ class ConstructionTable:
                                     f"direct sum of {a.provenance} and {b.provenance}", lin,
                                     (a.k + b.k) if lin else None, "direct sum",
                                     a.steps + b.steps + 1, ("sum", a.recipe, b.recipe),
-                                    0 if a.linear else a.balanced, self.seeds))
+                                    _lead_balanced(a), self.seeds))
         lin = self.linear_by_dimension()
         for n1 in range(1, nmax // 2 + 1):  # juxtaposition
             for n2 in range(n1, nmax - n1 + 1):
@@ -357,6 +356,22 @@ class ConstructionTable:
                                         ("concat", _subrecipe(oc, ko), _subrecipe(inner, m)),
                                         ko * m, self.seeds))
         return improved
+
+
+#: Linear families whose generator matrix starts with an identity block: their words are
+#: equidistributed on the first k coordinates.
+_SYSTEMATIC = frozenset({"parity-check", "full-space", "repetition"})
+
+
+def _lead_balanced(c: Candidate) -> int:
+    """Leading coordinates on which the words of ``c`` are known to be equidistributed.
+
+    A combination of ``c`` with another code as its first part ((u|u+v), direct sum) keeps
+    this property. For linear candidates ``balanced`` is only trusted for unmodified
+    systematic families (the linear shortening route ignores it)."""
+    if not c.linear:
+        return c.balanced
+    return (c.k or 0) if c.root in _SYSTEMATIC and c.steps == 0 else 0
 
 
 def _with_seeds(c: Candidate, seeds: tuple) -> Candidate:

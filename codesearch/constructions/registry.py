@@ -460,11 +460,75 @@ def _part_instances(q: int, nmax: int) -> Iterator[Instance]:
             yield best
 
 
+# ------------------------------------------------------------------------------ sporadic
+def _julin_describe() -> Instance:
+    # balanced on coordinates 0, 1 (a pair of the partition): see sporadic.py
+    return _inst("julin", {}, 2, 12, 4, 144, "Julin(12,144,4)", False, balanced=2)
+
+
+def _nrtail_describe(a: int) -> Instance:
+    _need(isinstance(a, int) and 1 <= a <= 4, "the Nordstrom-Robinson tail code needs 1 <= a <= 4")
+    return _inst("nr-tails", {"a": a}, 2, 16 + a, 6, 256 * 2 ** (a - 1),
+                 f"Nordstrom-Robinson translates with {a}-bit tails", False)
+
+
+def _nrtail_instances(q: int, nmax: int) -> Iterator[Instance]:
+    if q == 2:
+        for a in range(1, min(4, nmax - 16) + 1):
+            yield _nrtail_describe(a)
+
+
+def _orbit_describe(key: str) -> Instance:
+    from codesearch.constructions.sporadic import ORBITS
+
+    _need(key in ORBITS, f"orbit codes: key one of {', '.join(ORBITS)}")
+    r = ORBITS[key]
+    return _inst("orbit", {"key": key}, r.q, r.n, r.d, r.size, r.label, False,
+                 balanced=r.balanced)
+
+
+def _orbit_instances(q: int, nmax: int) -> Iterator[Instance]:
+    from codesearch.constructions.sporadic import ORBITS
+
+    for key, r in ORBITS.items():
+        if r.q == q and r.n <= nmax:
+            yield _orbit_describe(key)
+
+
+def _single(describe: Callable[[], Instance]) -> Callable[[int, int], Iterator[Instance]]:
+    def gen(q: int, nmax: int) -> Iterator[Instance]:
+        inst = describe()
+        if q == inst.q and inst.n <= nmax:
+            yield inst
+    return gen
+
+
+# ------------------------------------------------------------------------------ searched
+def _searched_describe(key: str) -> Instance:
+    from codesearch.constructions.searched import RECORDS
+
+    _need(key in RECORDS, f"searched codes: key one of {', '.join(RECORDS)}")
+    rec = RECORDS[key]
+    return _lin("searched", {"key": key}, 2, rec.n, rec.k, rec.d, rec.label)
+
+
+def _searched_instances(q: int, nmax: int) -> Iterator[Instance]:
+    from codesearch.constructions.searched import RECORDS
+
+    if q != 2:
+        return
+    for key, rec in RECORDS.items():
+        if rec.n <= nmax:
+            yield _searched_describe(key)
+
+
 # ------------------------------------------------------------------------------ registry
 def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
     from codesearch.constructions import algebraic as al
     from codesearch.constructions import hadamard as hd
     from codesearch.constructions import partition as pt
+    from codesearch.constructions import searched as sr
+    from codesearch.constructions import sporadic as sp
     from codesearch.constructions import z4
 
     return {
@@ -482,6 +546,10 @@ def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
         "preparata": lambda m=3: z4.preparata_code(m),
         "partition": lambda a, b, kind_a="syndrome", kind_b="syndrome":
             pt.glued_code(a, b, kind_a, kind_b),
+        "julin": lambda: sp.julin_code(),
+        "orbit": lambda key: sp.orbit_code(key),
+        "nr-tails": lambda a: sp.nr_tail_code(a),
+        "searched": lambda key: sr.searched_code(key),
     }
 
 
@@ -529,6 +597,16 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
     Family("partition", "distance-4 code glued from partitions of even-weight words "
            "(kind_a, kind_b: syndrome or weight)", ("a", "b", "kind_a", "kind_b"),
            _part_describe, _lazy("partition"), _part_instances),
+    Family("julin", "Julin's (12,144,4) code: hexads of S(5,6,12), six pairs, their complements",
+           (), _julin_describe, _lazy("julin"), _single(_julin_describe)),
+    Family("orbit", "union of recorded orbits under a coordinate permutation (key: the "
+           "record; (10,40,4) binary, (6,18,4) ternary)", ("key",), _orbit_describe,
+           _lazy("orbit"), _orbit_instances),
+    Family("nr-tails", "Construction X on the translates of the Nordstrom-Robinson code: "
+           "(16+a, 256*2^(a-1), 6), a = 1..4", ("a",), _nrtail_describe, _lazy("nr-tails"),
+           _nrtail_instances),
+    Family("searched", "binary linear code found by a recorded seeded search (key: the record)",
+           ("key",), _searched_describe, _lazy("searched"), _searched_instances),
 ]}
 
 
