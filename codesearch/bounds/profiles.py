@@ -237,6 +237,7 @@ def _search(N: int, top: int) -> int | None:
     return hi
 
 
+@lru_cache(maxsize=1024)  # deterministic and seconds long: once per process per cell
 def profile_lp(params: Params) -> BoundResult | None:
     """The profile-moment bound for binary ``d = 3, 4`` (certificate kind ``profile-lp``).
 
