@@ -38,8 +38,50 @@ def _int_range(text: str) -> range:
     return range(a, b + 1)
 
 
+#: Digits of the longest exact integer this tool prints (q^n at q = 36, n = 4096 has 6375).
+_JSON_DIGITS = 8000
+
+
 def _print_json(obj: Any) -> None:
-    print(json.dumps(obj, sort_keys=False))
+    # Exact integers are printed whole; Python refuses past 4300 digits unless told, so the
+    # limit is raised for this one dump of our own values (never while reading input).
+    old = sys.get_int_max_str_digits()
+    sys.set_int_max_str_digits(max(old, _JSON_DIGITS) if old else 0)
+    try:
+        text = json.dumps(obj, sort_keys=False)
+    finally:
+        sys.set_int_max_str_digits(old)
+    print(text)
+
+
+def _add_progress_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--progress", choices=["auto", "live", "lines", "json", "none"],
+                   default="auto",
+                   help="progress on stderr: live display (terminal), plain lines (pipe, log "
+                   "file), JSON lines, or none; auto picks live on a terminal, lines "
+                   "otherwise, json with --json (default auto)")
+
+
+def _progress_mode(args: argparse.Namespace) -> str:
+    from codesearch.report.live import progress_mode
+
+    return progress_mode(args.progress, json_output=args.json, quiet=args.quiet)
+
+
+def _kernels_first() -> None:
+    """Compile the numba kernels before a command that searches or verifies, the first time
+    on a machine (numba's cache empty or stale), with a one-line notice on stderr; later
+    runs find the stamp and load kernels as they are used (codesearch.search.prepare)."""
+    from codesearch.search import prepare
+
+    if prepare.kernels_ready():
+        return
+
+    def notice(text: str) -> None:
+        print(f"codesearch: {text} ...", end="", file=sys.stderr, flush=True)
+
+    report = prepare.prepare_kernels(notice)
+    print(f" done in {report.seconds:.0f} s", file=sys.stderr, flush=True)
 
 
 # ---------------------------------------------------------------------------------- check
@@ -60,6 +102,12 @@ def _add_check(sub: argparse._SubParsersAction) -> None:
                    "found, by information sets")
     p.add_argument("--min-only", action="store_true",
                    help="with --generator: only the minimum distance, by information sets")
+    p.add_argument("--cell", nargs=3, type=int, metavar=("Q", "N", "D"),
+                   help="certificate or refutation bundle: the cell it is offered for; one "
+                   "stating another cell is refused (exit 1)")
+    p.add_argument("--store", metavar="STORE",
+                   help="certificate or refutation bundle: once re-checked, record the bound "
+                   "in this results store (the report then says 're-checked' for a bundle)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     _COMMANDS["check"] = _cmd_check
 
@@ -74,22 +122,46 @@ def _cmd_check(args: argparse.Namespace) -> int:
         return _print_code_report(args, report, None)
     from codesearch import proofbundle  # a SAT refutation bundle (manifest + DRAT proofs)
 
+    cell = None
+    if args.cell is not None:
+        from codesearch.model import Params
+
+        cell = Params(*args.cell)
     if proofbundle.is_bundle(args.file):
-        return proofbundle.check_command(args.file, args.json)
+        return proofbundle.check_command(args.file, args.json, cell=cell, store=args.store)
     cert = codefile.read_certificate(args.file)
     if cert is not None:
-        valid, bound, reason = verify.check_certificate(cert)
+        valid, bound, reason = verify.check_certificate(cert, cell)
+        if valid and args.store:
+            _store_certificate(args.store, cert, bound, cell)
+        kind = cert["kind"] if isinstance(cert["kind"], str) else "?"
         if args.json:
-            _print_json({"certificate": cert["kind"], "valid": valid, "bound": bound,
-                         "reason": reason})
+            _print_json({"certificate": kind, "valid": valid, "bound": bound,
+                         "reason": reason, "cell": None if cell is None else list(args.cell)})
         else:
             verdict = "valid" if valid else "INVALID"
-            print(f"{args.file}: {cert['kind']} certificate {verdict}: {reason}")
+            print(f"{args.file}: {kind} certificate {verdict}: {reason}")
         return 0 if valid else 1
+    if args.cell is not None or args.store is not None:
+        raise InputError(f"{args.file}: --cell and --store are for certificates and "
+                         f"refutation bundles, not code files")
     parsed = codefile.read_code(args.file, args.q)
     d = args.d if args.d is not None else parsed.claimed_d
     report = verify.check_code(parsed.code, d)
     return _print_code_report(args, report, parsed)
+
+
+def _store_certificate(store: str, cert: dict, bound: int, cell: Any) -> None:
+    """Record a re-checked certificate's bound in a store (which re-checks it again)."""
+    from codesearch.model import Params
+    from codesearch.results import BoundResult
+    from codesearch.store import Store
+    from codesearch.verify.certificates import certificate_cell
+
+    p = cell if cell is not None else Params(*certificate_cell(cert))
+    with Store(store) as st:
+        st.add_bound(BoundResult(p, bound, str(cert["kind"]), certificate=cert,
+                                 note="recorded by codesearch check"))
 
 
 def _print_code_report(args: argparse.Namespace, report: Any, parsed: Any) -> int:
@@ -216,8 +288,11 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--time", type=float, help="time limit in seconds")
     p.add_argument("--seed", type=int, help="random seed")
     p.add_argument("--out", help="write the code found to this file (verified first)")
-    p.add_argument("--json", action="store_true", help="print a JSON summary as the last line")
-    p.add_argument("--quiet", action="store_true", help="no progress display on stderr")
+    p.add_argument("--json", action="store_true",
+                   help="print a JSON summary as the last line; progress goes to stderr as "
+                   "JSON lines (keys: codesearch.report.live)")
+    p.add_argument("--quiet", action="store_true", help="no progress on stderr")
+    _add_progress_option(p)
     # sat / heuristics (satheur): passed on as search(..., size=M, proof=FILE) when given
     p.add_argument("--size", type=int, metavar="M",
                    help="ask for a code of M words (sat: decide it; heuristics: stop there); "
@@ -242,12 +317,13 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
 
 def _cmd_find(args: argparse.Namespace) -> int:
     from codesearch.model import Params
-    from codesearch.report.live import live_progress
+    from codesearch.report.live import find_progress
     from codesearch.report.text import find_summary
     from codesearch.search import search
 
     params = Params(args.q, args.n, args.d)
-    with live_progress(enabled=not args.quiet and sys.stderr.isatty(), label=str(params)) as prog:
+    _kernels_first()  # after the input is checked: bad input never waits for the compiler
+    with find_progress(_progress_mode(args), str(params)) as prog:
         options = {name: getattr(args, name) for name in ("size", "proof", "group")
                    if getattr(args, name, None) is not None}
         result = search(params, args.method, time_limit=args.time, seed=args.seed,
@@ -295,15 +371,18 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
     p.add_argument("--no-constructions", action="store_true",
                    help="do not ask the construction library before the searches")
-    p.add_argument("--quiet", action="store_true", help="no live display")
-    p.add_argument("--json", action="store_true", help="print a JSON summary")
+    p.add_argument("--quiet", action="store_true", help="no progress on stderr")
+    p.add_argument("--json", action="store_true",
+                   help="print a JSON summary; progress goes to stderr as JSON lines (keys: "
+                   "codesearch.report.live)")
+    _add_progress_option(p)
     _COMMANDS["table"] = _cmd_table
 
 
 def _cmd_table(args: argparse.Namespace) -> int:
     from codesearch import batch
     from codesearch.model import grid
-    from codesearch.report.live import TableProgress
+    from codesearch.report.live import table_progress
     from codesearch.report.text import table_summary
 
     cells = grid(args.q, args.n, args.d)
@@ -314,11 +393,9 @@ def _cmd_table(args: argparse.Namespace) -> int:
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
                   sdp=args.sdp, propagate=not args.no_propagate,
                   constructions=not args.no_constructions)
-    if args.quiet or args.json:
-        summary = batch.run_table(args.store, cells, **kwargs)
-    else:
-        with TableProgress() as display:
-            summary = batch.run_table(args.store, cells, progress=display, **kwargs)
+    _kernels_first()
+    with table_progress(_progress_mode(args)) as display:
+        summary = batch.run_table(args.store, cells, progress=display, **kwargs)
     if args.json:
         _print_json(summary.to_json())
     else:
@@ -447,6 +524,7 @@ def _add_demo(sub: argparse._SubParsersAction) -> None:
 
 
 def _cmd_demo(args: argparse.Namespace) -> int:
+    _kernels_first()
     from codesearch import demo
 
     return demo.run(args.workdir)
@@ -519,6 +597,34 @@ def _cmd_construct(args: argparse.Namespace) -> int:
     return 0
 
 
+# -------------------------------------------------------------------------------- prepare
+def _add_prepare(sub: argparse._SubParsersAction) -> None:
+    p = sub.add_parser(
+        "prepare", help="compile the search kernels now (after install, in an image build)",
+        description="Compile (or load, when numba's cache is warm) every numba kernel and "
+        "record that this machine's cache is ready, so that no command compiles inside a "
+        "time budget. Commands that search or verify do this themselves the first time, "
+        "with a one-line notice. Python: codesearch.search.prepare.prepare_kernels().",
+    )
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    _COMMANDS["prepare"] = _cmd_prepare
+
+
+def _cmd_prepare(args: argparse.Namespace) -> int:
+    from codesearch.search import prepare
+
+    report = prepare.prepare_kernels()
+    if args.json:
+        _print_json({"seconds": round(report.seconds, 3), "kernels": report.kernels,
+                     "missing": list(report.missing), "cache_dir": report.cache_dir})
+    else:
+        print(f"{report.kernels} kernels ready in {report.seconds:.1f} s"
+              + (f" (cache: {report.cache_dir})" if report.cache_dir else ""))
+        if report.missing:
+            print(f"not reached by the warm-up: {', '.join(report.missing)}", file=sys.stderr)
+    return 0
+
+
 # ------------------------------------------------------------------------------------ main
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser with every subcommand."""
@@ -529,7 +635,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"codesearch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for add in (_add_check, _add_bounds, _add_find, _add_table, _add_report, _add_export,
-                _add_import, _add_plot, _add_demo, _add_construct):
+                _add_import, _add_plot, _add_demo, _add_construct, _add_prepare):
         add(sub)
     return parser
 

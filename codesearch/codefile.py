@@ -54,6 +54,7 @@ __all__ = [
     "write_code",
     "read_generator",
     "read_json",
+    "parse_json_text",
     "read_certificate",
     "write_certificate",
     "check_fits_in_memory",
@@ -300,10 +301,18 @@ def parse_code_json(obj: Any, path: str = "<json>", q: int | None = None) -> Cod
     words = obj["words"]
     if not isinstance(words, list) or not all(isinstance(w, str) for w in words):
         raise InputError(f"{path}:1: 'words' must be a list of strings")
-    header = {k: str(v) for k, v in (obj.get("meta") or {}).items()}
+    meta = obj.get("meta") or {}
+    if not isinstance(meta, dict) or not all(
+            isinstance(v, (str, int, float, type(None))) for v in meta.values()):
+        raise InputError(f"{path}:1: 'meta' must be an object of plain values")
+    header = {str(k).lower(): str(v).replace("\n", " ") for k, v in meta.items()}
     for key in ("q", "n", "size", "d"):
-        if obj.get(key) is not None:
-            header[key] = str(obj[key])
+        value = obj.get(key)
+        if value is None:
+            continue
+        if isinstance(value, bool) or not isinstance(value, int):
+            raise InputError(f"{path}:1: {key!r} must be an integer, got {value!r:.40}")
+        header[key] = str(value)
     header["format"] = FORMAT
     text = "".join(f"# {k}: {v}\n" for k, v in header.items()) + "\n".join(words) + "\n"
     parsed = parse_code_text(text, path, q)
@@ -314,11 +323,7 @@ def read_code(path: str, q: int | None = None) -> CodeFile:
     """Read a code file (text or JSON form, recognised by content)."""
     text = _decode(_read_bytes(path), path)
     if text.lstrip().startswith("{"):
-        try:
-            obj = json.loads(text)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"{path}:{exc.lineno}: invalid JSON: {exc.msg}") from None
-        return parse_code_json(obj, path, q)
+        return parse_code_json(parse_json_text(text, path), path, q)
     return parse_code_text(text, path, q)
 
 
@@ -423,13 +428,29 @@ def read_generator(path: str, q: int | None = None) -> tuple[np.ndarray, int, np
     return np.array(parsed.code.words), q, parsed.lines
 
 
-def read_json(path: str) -> Any:
-    """Read a JSON file with one-line errors."""
-    text = _decode(_read_bytes(path), path)
+def _no_constant(name: str) -> Any:
+    raise ValueError(f"{name} is not an exact number")
+
+
+def parse_json_text(text: str, path: str) -> Any:
+    """Decode JSON strictly: ``NaN``/``Infinity`` are refused, and an integer past Python's
+    digit limit or a nesting past its stack is a one-line :class:`InputError`."""
     try:
-        return json.loads(text)
+        return json.loads(text, parse_constant=_no_constant)
     except json.JSONDecodeError as exc:
         raise InputError(f"{path}:{exc.lineno}: invalid JSON: {exc.msg}") from None
+    except RecursionError:
+        raise InputError(f"{path}: invalid JSON: nested too deeply") from None
+    except ValueError as exc:
+        raise InputError(f"{path}: invalid JSON: {str(exc).splitlines()[0][:80]}") from None
+
+
+def read_json(path: str, max_bytes: int | None = None) -> Any:
+    """Read a JSON file with one-line errors (refused past ``max_bytes`` before reading)."""
+    if max_bytes is not None and _file_size(path) > max_bytes:
+        raise InputError(f"{path}: {_file_size(path)} bytes, past the cap of {max_bytes} "
+                         f"bytes for this kind of file")
+    return parse_json_text(_decode(_read_bytes(path), path), path)
 
 
 def read_certificate(path: str) -> dict[str, Any] | None:
@@ -438,7 +459,9 @@ def read_certificate(path: str) -> dict[str, Any] | None:
     Lets ``codesearch check FILE`` recognise a certificate by content, not by name. Only the
     first bytes are read unless the file starts like JSON.
     """
+    from codesearch.verify.strict import MAX_CERTIFICATE_BYTES
+
     if not _read_head(path).lstrip().startswith(b"{"):
         return None
-    obj = read_json(path)
+    obj = read_json(path, MAX_CERTIFICATE_BYTES)
     return obj if isinstance(obj, dict) and "kind" in obj else None

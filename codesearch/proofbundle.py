@@ -85,7 +85,7 @@ from codesearch.errors import InputError
 from codesearch.search import sat
 
 __all__ = ["FORMAT", "THEOREMS", "BranchCheck", "BundleCheck", "is_bundle",
-           "check_bundle", "check_command"]
+           "check_bundle", "check_command", "record_in_store"]
 
 FORMAT = sat.MANIFEST_FORMAT
 #: Largest manifest read (bytes).
@@ -347,9 +347,22 @@ def check_bundle(path: str, expect: tuple[int, int, int, int] | None = None) -> 
                    f"{what}: formula rebuilt from the claim, DRAT proof checked)", done)
 
 
-def check_command(path: str, as_json: bool = False) -> int:
-    """``codesearch check BUNDLE``: print the verdict; 0 holds, 1 does not (2 via InputError)."""
+def check_command(path: str, as_json: bool = False, *, cell: Any = None,
+                  store: str | None = None) -> int:
+    """``codesearch check BUNDLE``: print the verdict; 0 holds, 1 does not (2 via InputError).
+
+    ``cell`` (a ``Params``): the cell the bundle is offered for; a bundle about another cell
+    is refused. ``store``: once the bundle re-checks, its bound is recorded there as a
+    ``sat-refutation`` record (manifest path and digest), which reports show as re-checked.
+    """
     res = check_bundle(path)
+    if cell is not None and (res.q, res.n, res.d) != (cell.q, cell.n, cell.d):
+        res = BundleCheck(False, res.q, res.n, res.d, res.size,
+                          f"the bundle is about {_cell(res.q, res.n, res.d)}, not "
+                          f"{_cell(cell.q, cell.n, cell.d)}", res.branches, res.rests_on,
+                          res.seconds)
+    if res.valid and store is not None:
+        record_in_store(store, path, res)
     if as_json:
         print(json.dumps(res.to_json()))
     elif res.valid:
@@ -365,3 +378,19 @@ def check_command(path: str, as_json: bool = False) -> int:
     else:
         print(f"NOT re-checked: {res.reason}")
     return 0 if res.valid else 1
+
+
+def record_in_store(store_path: str, manifest: str, res: BundleCheck) -> int | None:
+    """Record the bound of a bundle that just re-checked (``res.valid``) in a results store,
+    as a ``sat-refutation`` record bound to its cell; returns the bound's row id."""
+    from codesearch.model import Params
+    from codesearch.results import BoundResult
+    from codesearch.store import Store, refutation_record
+
+    if not res.valid:
+        raise ValueError("only a bundle that re-checked is recorded")
+    record = refutation_record(manifest, res.q, res.n, res.d, res.size, res.reason)
+    with Store(store_path) as st:
+        return st.add_bound(BoundResult(Params(res.q, res.n, res.d), res.bound, "sat-refutation",
+                                        certificate=record,
+                                        note="refutation bundle re-checked by codesearch check"))

@@ -59,6 +59,9 @@ __all__ = [
     "PublishedRow",
     "pack_code",
     "unpack_code",
+    "RECORD_KINDS",
+    "search_record",
+    "refutation_record",
 ]
 
 #: Schema version written to ``PRAGMA user_version`` (older stores are migrated on open,
@@ -630,6 +633,18 @@ class Store:
         is stored with ``certified = 0``: kept as a record, never used as a bound. A
         certificate of kind ``"cell-relation"`` is checked against the cited rows of this
         store; an invalid one raises :class:`VerificationError`.
+
+        A certificate is bound to its cell: one stating another cell (see
+        :func:`codesearch.verify.certificates.binding_problem`) is refused with
+        :class:`InputError` and nothing is stored. The records of :data:`RECORD_KINDS` (what
+        an exhaustive search or a re-checked refutation bundle proved) are not certificates:
+        they are stored as their producer certified them, bound to the cell, and the report
+        labels them for what they are.
+
+        Raises
+        ------
+        InputError
+            A certificate for another cell or value, or a malformed one (unreadable cell).
         """
         if bound.scope != "all":
             return None
@@ -643,7 +658,11 @@ class Store:
                 kind, certified = "cell-relation", True
             else:
                 kind = str(cert.get("kind", "certificate"))
-                certified = bound.certified and self._check_certificate(cert, bound.value)
+                self._check_binding(p, bound.value, cert)
+                if kind in RECORD_KINDS:
+                    certified = bool(bound.certified)
+                else:
+                    certified = bound.certified and self._check_certificate(cert, bound.value)
             cur = self._conn.execute(
                 "INSERT OR IGNORE INTO bounds(q,n,d,value,method,kind,certificate,certified,note,"
                 "version,machine,seconds,created) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)",
@@ -660,6 +679,23 @@ class Store:
                 (p.q, p.n, p.d, bound.method, int(bound.value)),
             ).fetchone()
             return int(row[0])
+
+    @staticmethod
+    def _check_binding(p: Params, value: int, cert: Mapping[str, Any]) -> None:
+        """Refuse a certificate or record that states another cell (or, for a record,
+        another value) than the bound it is offered for."""
+        from codesearch.verify.certificates import binding_problem
+
+        try:
+            problem = binding_problem(cert, p)
+        except InputError:
+            if cert.get("kind") in RECORD_KINDS:
+                raise
+            return  # states no readable cell: it cannot re-check either (stored uncertified)
+        if problem is None and cert.get("kind") in RECORD_KINDS and cert.get("value") != value:
+            problem = f"record states the bound {cert.get('value')!r:.30}, not {value}"
+        if problem is not None:
+            raise InputError(f"bound for {p} refused: {problem}")
 
     @staticmethod
     def _check_certificate(cert: Mapping[str, Any], value: int) -> bool:
@@ -699,6 +735,7 @@ class Store:
                     and result.status in (Status.OPTIMAL, Status.INFEASIBLE)):
                 bound_id = self.add_bound(
                     BoundResult(result.params, int(result.upper), f"search:{result.method}",
+                                certificate=search_record(result),
                                 note="proved by exhaustive search"),
                     seconds=result.seconds,
                 )
@@ -909,18 +946,76 @@ class Store:
         ).fetchall():
             if not certified or cert is None:
                 continue
-            c = json.loads(cert)
             try:
+                c = json.loads(cert)
+                if not isinstance(c, dict):
+                    raise InputError("stored certificate is not a JSON object")
                 if kind == "cell-relation":
                     self._check_relation(Params(q, n, d), value, c)
-                elif not self._check_certificate(c, value):
+                    continue
+                if c.get("kind") != kind:
+                    problems.append(f"bound #{bid}: stored as kind {kind!r} but its certificate "
+                                    f"is of kind {c.get('kind')!r:.40}")
+                    continue
+                self._check_binding(Params(q, n, d), value, c)
+                if kind == "sat-refutation":
+                    moved = _refutation_problem(c)
+                    if moved is not None:
+                        problems.append(f"bound #{bid}: {moved}")
+                elif kind not in RECORD_KINDS and not self._check_certificate(c, value):
                     problems.append(f"bound #{bid}: certificate fails its re-check")
             except Exception as exc:
-                problems.append(f"bound #{bid}: {exc}")
+                problems.append(f"bound #{bid}: {str(exc).splitlines()[0] if str(exc) else exc!r}")
         for s in self.summaries():
             if s.upper is not None and s.lower > s.upper:
                 problems.append(f"{s.params}: code of size {s.lower} above bound {s.upper}")
         return problems
+
+
+#: Kinds of stored upper-bound records that are not certificates a checker re-derives:
+#: ``exhaustive-search`` (what an exhaustive method proved: method, version, nodes, seed;
+#: nothing a reader can re-check) and ``sat-refutation`` (a refutation bundle that
+#: ``codesearch check`` re-checked before storing: manifest path and digest).
+RECORD_KINDS = ("exhaustive-search", "sat-refutation")
+
+
+def search_record(result: SearchResult) -> dict[str, Any]:
+    """The record stored with an upper bound proved by an exhaustive search: what ran
+    (method, software version, nodes, seed, settings, seconds), bound to the cell."""
+    from codesearch.results import plain
+
+    p = result.params
+    return {"kind": "exhaustive-search", "q": p.q, "n": p.n, "d": p.d,
+            "value": int(result.upper) if result.upper is not None else None,
+            "method": result.method, "version": __version__, "nodes": int(result.nodes),
+            "seed": result.seed, "seconds": round(float(result.seconds), 3),
+            "settings": plain(result.settings)}
+
+
+def refutation_record(manifest: str, q: int, n: int, d: int, size: int, reason: str
+                      ) -> dict[str, Any]:
+    """The record stored with an upper bound ``A_q(n,d) <= size - 1`` whose refutation bundle
+    (manifest ``manifest``) was just re-checked by :func:`codesearch.proofbundle.check_bundle`."""
+    path = os.path.abspath(manifest)
+    return {"kind": "sat-refutation", "q": q, "n": n, "d": d, "value": size - 1,
+            "manifest": path, "manifest_sha256": _file_sha256(path), "checked": _now(),
+            "checker": f"codesearch {__version__}", "reason": reason}
+
+
+def _file_sha256(path: str) -> str:
+    with open(path, "rb") as fh:
+        return hashlib.file_digest(fh, "sha256").hexdigest()
+
+
+def _refutation_problem(record: Mapping[str, Any]) -> str | None:
+    """A re-checked bundle's manifest changed since (a missing file is not a problem: the
+    record says what was re-checked and when)."""
+    path = record.get("manifest")
+    if not isinstance(path, str) or not os.path.isfile(path):
+        return None
+    if _file_sha256(path) != record.get("manifest_sha256"):
+        return f"refutation manifest {path} changed since it was re-checked"
+    return None
 
 
 def read_published_file(path: str) -> list[PublishedRow]:
@@ -943,11 +1038,11 @@ def read_published_file(path: str) -> list[PublishedRow]:
         raise InputError(f"{path}: cannot read ({getattr(exc, 'strerror', None) or exc})") from None
     default_source = os.path.basename(path)
     records: list[tuple[int, Mapping[str, Any]]] = []
-    if path.lower().endswith(".json"):
-        try:
-            data = json.loads(text)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"{path}:{exc.lineno}: not valid JSON ({exc.msg})") from None
+    is_json = path.lower().endswith(".json")
+    if is_json:
+        from codesearch.codefile import parse_json_text
+
+        data = parse_json_text(text, path)
         if not isinstance(data, list) or not all(isinstance(x, dict) for x in data):
             raise InputError(f"{path}:1: expected a JSON list of objects")
         records = [(i + 1, x) for i, x in enumerate(data)]
@@ -969,8 +1064,8 @@ def read_published_file(path: str) -> list[PublishedRow]:
                 return None
             raise InputError(f"{path}:{line}: missing {name}")
         try:
-            if isinstance(value, bool):
-                raise ValueError
+            if isinstance(value, bool) or (is_json and not isinstance(value, int)):
+                raise ValueError  # JSON: exact types (no "16", 16.0 or true for 16)
             out = int(str(value).strip())
         except ValueError:
             raise InputError(f"{path}:{line}: {name} must be an integer, got {value!r}") from None
@@ -991,7 +1086,10 @@ def read_published_file(path: str) -> list[PublishedRow]:
             raise InputError(f"{path}:{line}: neither lower nor upper given")
         if lower is not None and upper is not None and lower > upper:
             raise InputError(f"{path}:{line}: lower {lower} > upper {upper}")
-        source = str(rec.get("source") or "").strip() or default_source
+        source = rec.get("source")
+        if source is not None and not isinstance(source, str):
+            raise InputError(f"{path}:{line}: source must be text, got {source!r:.40}")
+        source = (source or "").strip() or default_source
         out.append(PublishedRow(q, n, d, lower, upper, source))
     if not out:
         raise InputError(f"{path}:1: no rows")

@@ -193,3 +193,73 @@ def test_progress_reports_portfolio_totals(monkeypatch):
     res = search(HAMMING, "auto", time_limit=20, progress=seen.append)
     steps = [e for e in seen if "step" in e]
     assert steps and steps[-1]["best"] == res.size == 16 and steps[-1]["upper"] == 16
+
+
+# ------------------------------------------------------------------- the plan by the cell
+def test_plan_puts_exact_up_front_on_small_spaces():
+    steps = auto.plan(Params(2, 8, 3))
+    assert [s.method for s in steps][:2] == ["lexicode", "exact"]
+    assert [s.method for s in steps][-1] == "sat"
+
+
+def test_plan_starts_with_constructions_then_orbits_on_large_spaces():
+    methods = [s.method for s in auto.plan(Params(2, 16, 3))]
+    assert methods[0] == "constructions"
+    assert methods[1] == "orbit"
+    assert "exact" not in methods and "sat" not in methods
+    # orbit enumeration is linear in q^n: past its limit only constructions and scans remain
+    big = [s.method for s in auto.plan(Params(2, 24, 8))]
+    assert big[0] == "constructions" and "orbit" not in big
+
+
+def test_step_needs_grow_with_the_space():
+    small, large = Params(2, 12, 3), Params(2, 20, 3)
+    for method in ("lexicode", "local"):
+        assert auto.step_need(method, small) < auto.step_need(method, large)
+    assert auto.step_need("orbit", small, order=12) < auto.step_need("orbit", large, order=20)
+    # a group far too small for the space is not tried at all
+    assert auto.step_need("orbit", Params(2, 22, 3), order=2) == float("inf")
+
+
+def test_a_step_never_starts_when_the_time_left_cannot_hold_it(monkeypatch):
+    _no_bounds(monkeypatch)
+    _only(monkeypatch, {"auto"})
+    calls = []
+
+    def slow_run(ctx, **options):
+        calls.append(ctx.time_limit)
+        return Outcome(kc.hamming_7_4())
+
+    _register_fake(monkeypatch, "local", False, slow_run)
+    real_need = auto.step_need
+    monkeypatch.setattr(auto, "step_need", lambda method, params, **kw: 5.0 if method == "local"
+                        else real_need(method, params, **kw))
+    res = search(HAMMING, "auto", time_limit=1.0)
+    assert calls == []
+    assert any(s.startswith("local: skipped (needs ~5.00 s") for s in res.settings["steps"])
+
+
+def test_large_cell_gets_the_construction_first():
+    # The binary Golay code [23,12,7] is perfect: 2^12 words meet the sphere-packing bound,
+    # so A(23,7) = 4096 (MacWilliams & Sloane ch. 20, from memory).
+    params = Params(2, 23, 7)
+    res = search(params, "auto", time_limit=10)
+    verify.assert_code(res.code, params)
+    assert res.size == 4096 and res.status is Status.OPTIMAL
+    assert res.settings["lower_method"].startswith("constructions[")
+    assert res.settings["plan"][0] == "constructions"
+
+
+def test_progress_reports_each_step(monkeypatch):
+    _only(monkeypatch, {"orbit", "auto"})
+    _no_bounds(monkeypatch)
+    seen = []
+    search(HAMMING, "auto", time_limit=5, group="cyclic;cyclic*rev", progress=seen.append)
+    ends = [e for e in seen if "size" in e and "step" in e]
+    assert [e["step"] for e in ends][:2] == ["orbit[cyclic]", "orbit[cyclic*rev]"]
+    assert all({"best", "upper", "seconds", "nodes", "elapsed"} <= set(e) for e in ends)
+
+
+def test_groups_given_by_the_user_are_always_planned():
+    steps = auto.plan(Params(2, 20, 10), groups=[("cyclic:0-18*rep", None)])
+    assert "orbit[cyclic:0-18*rep]" in [s.name for s in steps]

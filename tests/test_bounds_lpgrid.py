@@ -188,7 +188,7 @@ def test_qary_constant_weight_caps_agree_with_checker_and_small_exhaustive():
             for d in range(1, n + 1):
                 for w in range(0, n + 1):
                     assert (delsarte.qary_constant_weight_bound(q, n, d, w)
-                            == verify.lp._qcw_cap(q, n, d, w)), (q, n, d, w)
+                            == verify.lp._qcw_caps(q, n, d)[w]), (q, n, d, w)
     q = 3
     for n, d, w in [(4, 3, 2), (4, 3, 3), (5, 3, 3), (4, 2, 2), (5, 4, 3)]:
         words = [x for x in itertools.product(range(q), repeat=n)

@@ -126,11 +126,18 @@ def test_html_in_headless_chromium(store_path, tmp_path):
              f"--user-data-dir={tmp_path / 'profile'}"]
     dom = subprocess.run(flags + ["--dump-dom", page.as_uri()], capture_output=True, text=True,
                          timeout=120).stdout
-    cell = re.search(r'<td id="c-2-7-3"[^>]*>(.*?)</td>', dom, re.S)
+    cell = re.search(r'<td class="exact" id="c-2-7-3"[^>]*>(.*?)</td>', dom, re.S)
     assert cell is not None, dom[:500]
     assert 'data-exact="1"' in dom and "16=" in cell.group(1)
-    assert "hamming" in cell.group(1) and 'download="A2-7-3.code"' in cell.group(1)
+    # provenance: the cell links to its ledger row, which names the bound and what backs it
+    assert 'href="#p-2-7-3"' in cell.group(1)
+    ledger = re.search(r'<tr id="p-2-7-3">(.*?)</tr>', dom, re.S).group(1)
+    assert "hamming" in ledger and "closed form" in ledger
+    assert 'download="A2-7-3.code"' in ledger
     assert re.search(r'id="c-2-6-6"[^>]*data-lower="2" data-upper="4"', dom)
+    # a look of our own: no per-cell fold-out, no script, nothing fetched from elsewhere
+    assert "<details" not in dom and "<script" not in dom and "http" not in dom.split(
+        "<body>", 1)[1]
     shot = tmp_path / "shot.png"
     subprocess.run(flags + [f"--screenshot={shot}", "--window-size=1000,700", page.as_uri()],
                    capture_output=True, timeout=120)

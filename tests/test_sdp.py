@@ -317,10 +317,16 @@ def test_checker_rejects_wrong_cell(cert):
 
 
 def test_checker_rejects_bad_row_labels(cert):
-    for label in (["weight", 0], ["weight", 99], ["upper", 3, 2, 5], ["nonsense", 1]):
+    for label in (["weight", 0], ["weight", 99], ["upper", 3, 2, 5]):
         bad = json.loads(json.dumps(cert))
         bad["multipliers"].append({"row": label, "value": "1/2"})
         assert check_certificate(bad)[0] is False, label
+    for label in (["nonsense", 1], ["weight"], ["upper", 3, 2], [], "weight", ["weight", 1.0],
+                  ["weight", True], ["weight", "1"]):  # malformed: one line, exit 2
+        bad = json.loads(json.dumps(cert))
+        bad["multipliers"].append({"row": label, "value": "1/2"})
+        with pytest.raises(InputError):
+            check_certificate(bad)
 
 
 def test_checker_rejects_floats_and_garbage(cert):

@@ -138,12 +138,20 @@ def constant_weight_bound(n: int, delta: int, w: int) -> int:
     support)), ``A(n, 2δ, w) = A(n, 2δ, n-w)`` (complements), with ``A = 1`` when
     ``w < δ`` (two weight-w words are at distance <= 2w < 2δ) and ``0`` when ``w > n``.
     """
-    if w < 0 or w > n:
-        return 0
-    w = min(w, n - w) if n - w >= 0 else w
-    if w < delta:
-        return 1
-    return (n * constant_weight_bound(n - 1, delta, w - 1)) // w
+    chain = []  # followed as a loop, not recursion: n goes up to the bounds limit 4096
+    while True:
+        if w < 0 or w > n:
+            value = 0
+            break
+        w = min(w, n - w)
+        if w < delta:
+            value = 1
+            break
+        chain.append((n, w))
+        n, w = n - 1, w - 1
+    for m, v in reversed(chain):
+        value = (m * value) // v
+    return value
 
 
 def _johnson_odd(n: int, e: int) -> int:
@@ -170,11 +178,19 @@ def constant_weight_bound_qary(q: int, n: int, d: int, w: int) -> int:
     with symbol a at position p, that position deleted, form a code of weight w-1), and a
     single word when ``2w < d``.
     """
-    if w < 0 or w > n:
-        return 0
-    if 2 * w < d:
-        return 1
-    return (n * (q - 1) * constant_weight_bound_qary(q, n - 1, d, w - 1)) // w
+    chain = []  # a loop down the chain (n goes up to 4096), then back up
+    while True:
+        if w < 0 or w > n:
+            value = 0
+            break
+        if 2 * w < d:
+            value = 1
+            break
+        chain.append((n, w))
+        n, w = n - 1, w - 1
+    for m, v in reversed(chain):
+        value = (m * (q - 1) * value) // v
+    return value
 
 
 def _johnson_qary_odd(q: int, n: int, e: int) -> int:
@@ -226,11 +242,16 @@ def elias(params: Params) -> BoundResult:
     """
     q, n, d = params.q, params.n, params.d
     best, best_w = q**n, None
+    top = (q - 1) * n * d * q**n
+    shell = volume = 1  # V_q(n, w) kept as a running sum (n reaches 4096: no O(n) per w)
     for w in range(0, (q - 1) * n // q + 1):
+        if w:
+            shell = shell * (n - w + 1) * (q - 1) // w  # C(n,w)(q-1)^w, exactly
+            volume += shell
         den = q * w * w - 2 * (q - 1) * n * w + (q - 1) * n * d
         if den <= 0:
             break
-        value = ((q - 1) * n * d * q**n) // (den * ball_volume(q, n, w))
+        value = top // (den * volume)
         if value < best:
             best, best_w = value, w
     return BoundResult(params, best, "elias", note=f"radius w={best_w}")

@@ -49,6 +49,8 @@ F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes* (1
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 from math import comb
 
 from codesearch.model import Params
@@ -167,6 +169,7 @@ def enumeration_bound(n: int, d: int, top: int, max_nodes: int = MAX_NODES) -> i
     return M
 
 
+@lru_cache(maxsize=1024)  # deterministic and seconds long: once per process per cell
 def distance_enumeration(params: Params) -> BoundResult | None:
     """The integral distance-distribution bound (binary; odd ``d`` through ``A(n+1, d+1)``).
 

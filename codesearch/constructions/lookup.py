@@ -409,13 +409,18 @@ def _nested_pairs(q: int, nmax: int) -> tuple:
     return tuple(pairs)
 
 
-@lru_cache(maxsize=16)
 def table(q: int, nmax: int = DEFAULT_NMAX, seeds: tuple = ()) -> ConstructionTable:
     """The (cached) construction table of alphabet q for lengths <= nmax.
 
     ``seeds`` : tuple of :class:`~codesearch.constructions.operations.Built` codes from
     elsewhere (a store, a search) that the chains may start from as well.
     """
+    # one cache key whatever the call's form (table(2) and table(2, 32, ()) are one table)
+    return _table(q, nmax, tuple(seeds))
+
+
+@lru_cache(maxsize=16)
+def _table(q: int, nmax: int, seeds: tuple) -> ConstructionTable:
     return ConstructionTable(q, nmax, seeds)
 
 

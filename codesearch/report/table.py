@@ -10,6 +10,13 @@ values, which stay apart from what this tool proved:
 ``matched``   our lower equals the best published lower and our upper the best published upper;
 ``improved``  at least one side is better than published (and neither is worse);
 ``short``     at least one side falls short of the published value.
+
+Each upper bound also says what backs it (:data:`BASES`, strongest first): a closed form
+(``closed form``), a certificate anyone can re-check with ``codesearch check``
+(``certificate``), a SAT refutation bundle that ``codesearch check`` re-checked before it was
+stored (``re-checked``), or an exhaustive search whose run is recorded (method, version,
+nodes, seed) but leaves nothing to re-check (``exhaustive search``). A bound derived from
+other cells inherits the weakest basis among those it cites.
 """
 
 from __future__ import annotations
@@ -38,6 +45,10 @@ __all__ = [
 ]
 
 FORMATS = ("md", "csv", "tex", "html", "json")
+#: What can back an upper bound, strongest first (see the module docstring).
+BASES = ("closed form", "certificate", "re-checked", "exhaustive search")
+#: The mark of each basis in the text formats (none for the re-checkable ones).
+_BASIS_MARK = {"re-checked": "r", "exhaustive search": "s"}
 #: Codes larger than this are not inlined in the HTML report (export them instead).
 MAX_INLINE_WORDS = 4096
 #: Row ids and provenance stay out of the JSON report.
@@ -53,6 +64,8 @@ class CellRow(CellSummary):
     published_upper: int | None = None
     published_source: str | None = None
     compare: str | None = None
+    upper_basis: str | None = None
+    upper_detail: str | None = None
 
     @property
     def exact(self) -> bool:
@@ -66,6 +79,12 @@ class CellRow(CellSummary):
         lo = "?" if self.lower is None else str(self.lower)
         up = "?" if self.upper is None else str(self.upper)
         return f"{lo}-{up}"
+
+    @property
+    def trust(self) -> str:
+        """``s`` when the upper bound rests on an exhaustive search (nothing to re-check),
+        ``r`` on a re-checked SAT refutation; empty for closed forms and certificates."""
+        return _BASIS_MARK.get(self.upper_basis or "", "")
 
     @property
     def mark(self) -> str:
@@ -93,9 +112,84 @@ def _compare(lower: int | None, upper: int | None, pl: int | None, pu: int | Non
     return "improved" if "improved" in sides else "matched"
 
 
+def _record_detail(method: str, record: dict) -> str:
+    """One line of what an exhaustive search ran (its stored record)."""
+    seed = record.get("seed")
+    return (f"{record.get('method', method)}, codesearch {record.get('version', '?')}, "
+            f"{record.get('nodes', '?')} nodes, "
+            f"{'no seed (deterministic)' if seed is None else f'seed {seed}'}, "
+            f"{record.get('seconds', '?')} s")
+
+
+class _Bases:
+    """What backs each stored bound (``bound id -> (basis, detail)``), derived bounds
+    following their citations to the weakest basis among them. A citation cycle is cut
+    (that path counts as the weakest basis), so a label is never stronger than the truth."""
+
+    def __init__(self, store: Any) -> None:
+        self.rows = {int(r[0]): r for r in store.rows("bounds")}
+        self.by_cell: dict[tuple[int, int, int], list[int]] = {}
+        for bid, r in self.rows.items():
+            self.by_cell.setdefault((r[1], r[2], r[3]), []).append(bid)
+        self.memo: dict[int, tuple[str, str]] = {}
+        self.active: set[int] = set()
+
+    def of(self, bid: int, depth: int = 0) -> tuple[str, str]:
+        if bid in self.memo:
+            return self.memo[bid]
+        row = self.rows.get(bid)
+        if row is None or depth > 500 or bid in self.active:
+            return "exhaustive search", "cited bound missing or circular"
+        self.active.add(bid)
+        try:
+            out = self._of(row, depth)
+        finally:
+            self.active.discard(bid)
+        self.memo[bid] = out
+        return out
+
+    def _of(self, row: tuple, depth: int) -> tuple[str, str]:
+        method, kind, cert = row[5], row[6], row[7]
+        try:
+            record = json.loads(cert) if cert else {}
+        except ValueError:
+            record = {}
+        record = record if isinstance(record, dict) else {}
+        if kind == "cell-relation":
+            # a relation needs only the cited value: any certified bound of that value backs it
+            cited = [self._best(c["q"], c["n"], c["d"], c["value"], depth + 1)
+                     for c in record.get("cites", []) if isinstance(c, dict)
+                     and all(isinstance(c.get(k), int) for k in ("q", "n", "d", "value"))]
+            basis = max((b for b, _ in cited), key=BASES.index, default="exhaustive search")
+            inner = next((t for b, t in cited if b == basis), "")
+            out = (basis, f"{record.get('rule', 'relation')} from a neighbour: {inner}")
+        elif kind == "exhaustive-search" or (kind == "theorem" and method.startswith("search:")):
+            out = ("exhaustive search", _record_detail(method.removeprefix("search:"), record)
+                   if record else f"{method} (run not recorded)")
+        elif kind == "sat-refutation":
+            out = ("re-checked", f"SAT refutation bundle {record.get('manifest', '?')} "
+                   f"re-checked by {record.get('checker', '?')} on {record.get('checked', '?')}")
+        elif kind == "theorem":
+            out = ("closed form", method)
+        else:
+            out = ("certificate", f"{kind} certificate (codesearch check re-checks it)")
+        return out
+
+    def best(self, p: Params, value: int) -> tuple[str, str]:
+        """The strongest basis among the certified bounds of value ``value`` of cell ``p``."""
+        return self._best(p.q, p.n, p.d, value, 0)
+
+    def _best(self, q: int, n: int, d: int, value: int, depth: int) -> tuple[str, str]:
+        found = [self.of(bid, depth) for bid in self.by_cell.get((q, n, d), [])
+                 if self.rows[bid][4] <= value and self.rows[bid][8]]
+        return min(found, key=lambda b: BASES.index(b[0]),
+                   default=("exhaustive search", "cited bound missing"))
+
+
 def collect(store: Any, q: int | None = None) -> list[CellRow]:
     """The report rows: every cell with stored or imported values, sorted by (q, n, d)."""
     cells = sorted(set(store.cells(q)) | set(store.published_cells(q)))
+    bases = _Bases(store)
     rows = []
     for p in cells:
         s = store.summary(p)
@@ -106,10 +200,12 @@ def collect(store: Any, q: int | None = None) -> list[CellRow]:
         pu = min(ups) if ups else None
         lower = s.lower if s.code_id is not None else None
         stored = {f.name: getattr(s, f.name) for f in fields(CellSummary)}
+        basis, detail = (None, None) if s.upper is None else bases.best(p, s.upper)
         rows.append(CellRow(
             **{**stored, "lower": lower}, published_lower=pl, published_upper=pu,
             published_source="; ".join(sorted({r.source for r in pubs})) or None,
             compare=_compare(lower, s.upper, pl, pu) if pubs else None,
+            upper_basis=basis, upper_detail=detail,
         ))
     return rows
 
@@ -139,7 +235,7 @@ def render_md(rows: Sequence[CellRow]) -> str:
         out.append("|---:|" + "---:|" * len(ds))
         for n in ns:
             line = _entries(cells, n, ds, lambda r: ("**" + r.text + "**" if r.exact
-                                                     else r.text) + r.mark)
+                                                     else r.text) + r.trust + r.mark)
             out.append(f"| {n} | " + " | ".join(line) + " |")
         out.append("")
     out.append(_legend())
@@ -163,7 +259,8 @@ def _entries(cells: dict[tuple[int, int], CellRow], n: int, ds: Sequence[int],
 
 def _tex_entry(r: CellRow) -> str:
     t = r"\textbf{%s}" % r.text if r.exact else r.text.replace("-", "--")
-    return t + (f"$^{{{r.mark}}}$" if r.mark else "")
+    marks = r.trust + r.mark
+    return t + (f"$^{{{marks}}}$" if marks else "")
 
 
 def _pub_text(r: CellRow) -> str:
@@ -177,7 +274,15 @@ def _pub_text(r: CellRow) -> str:
 def _legend() -> str:
     return ("Entries are proven by this tool: a single number is exact (bold), `lo-up` gives the "
             "best code found and the best certified upper bound. `[x]` is an imported published "
-            "value only. Against imported values: `=` matched, `+` improved, `<` short.")
+            "value only. Against imported values: `=` matched, `+` improved, `<` short. "
+            + _TRUST_LEGEND)
+
+
+_TRUST_LEGEND = ("Upper bounds marked `s` rest on an exhaustive search: its run (method, "
+                 "version, nodes, seed) is recorded in the JSON/CSV/HTML reports, but there is "
+                 "nothing to re-check; `r` marks a SAT refutation re-checked by `codesearch "
+                 "check`. Unmarked upper bounds are closed forms or certificates that `codesearch "
+                 "check` re-checks.")
 
 
 def render_csv(rows: Sequence[CellRow]) -> str:
@@ -185,13 +290,13 @@ def render_csv(rows: Sequence[CellRow]) -> str:
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["q", "n", "d", "lower", "upper", "exact", "gap", "lower_method", "upper_method",
                 "upper_kind", "published_lower", "published_upper", "published_source",
-                "compare"])
+                "compare", "upper_basis", "upper_detail"])
     for r in rows:
         gap = "" if r.upper is None else r.upper - (r.lower or 0)
         w.writerow([r.q, r.n, r.d, _e(r.lower), _e(r.upper), int(r.exact), gap,
                     _e(r.lower_method), _e(r.upper_method), _e(r.upper_kind),
                     _e(r.published_lower), _e(r.published_upper), _e(r.published_source),
-                    _e(r.compare)])
+                    _e(r.compare), _e(r.upper_basis), _e(r.upper_detail)])
     return buf.getvalue()
 
 
@@ -220,22 +325,22 @@ def render_tex(rows: Sequence[CellRow]) -> str:
         out.append(r"\end{tabular}")
         out.append(r"\caption{Bounds on $%s$ for $q=%d$: bold entries are exact, $a$--$b$ gives "
                    r"the best code found and the best proven upper bound; marks compare with "
-                   r"imported values ($=$ matched, $+$ improved, $<$ short).}" %
+                   r"imported values ($=$ matched, $+$ improved, $<$ short); $s$: the upper "
+                   r"bound rests on an exhaustive search (nothing to re-check), $r$: on a "
+                   r"re-checked SAT refutation.}" %
                    (_tex_escape(_name(q)).replace("A\\_", "A_"), q))
         out.append(r"\end{table}")
     return "\n".join(out) + "\n"
 
 
-def _colour(r: CellRow) -> str:
-    """Background colour by gap: green exact, then yellow to red as upper/lower grows."""
-    if r.exact:
-        return "#7fd07f"
+def _gap_share(r: CellRow) -> float | None:
+    """How open the cell is, 0 (exact) to 1 (a factor 4 or more between the sides), on a log
+    scale; None when a side is unknown."""
     if r.lower is None or r.upper is None or r.lower == 0:
-        return "#dddddd"
-    ratio = math.log(r.upper / r.lower) if r.upper > r.lower else 0.0
-    t = min(ratio / math.log(4.0), 1.0)  # a factor 4 or more is full red
-    red, green = 240, int(230 - 150 * t)
-    return f"#{red:02x}{green:02x}{int(120 - 60 * t):02x}"
+        return None
+    if r.upper <= r.lower:
+        return 0.0
+    return min(math.log2(r.upper / r.lower) / 2.0, 1.0)
 
 
 def _code_download(store: Any, r: CellRow) -> str:
@@ -257,58 +362,137 @@ def _code_download(store: Any, r: CellRow) -> str:
             f'codewords ({code.size})</a>')
 
 
+_HTML_STYLE = """
+:root{--paper:#f6f4ee;--ink:#1f2630;--rule:#cfc9bb;--accent:#34458f;--soft:#e6e2d6;
+--search:#a0522d;--open:#7a8599}
+*{box-sizing:border-box}
+body{margin:0;background:var(--paper);color:var(--ink);font:14px/1.45 Georgia,'DejaVu Serif',serif}
+header{padding:18px 28px 12px;border-bottom:3px double var(--rule)}
+header h1{margin:0;font-size:22px;font-weight:normal;letter-spacing:.04em}
+header p{margin:6px 0 0;max-width:70em;color:#4a5361}
+main{padding:8px 28px 40px}
+section{margin-top:26px}
+section h2{font-size:17px;font-weight:normal;border-bottom:1px solid var(--rule);padding-bottom:3px}
+.grid{border-collapse:separate;border-spacing:3px}
+.grid th{font:12px/1 monospace;color:#5b6472;padding:3px 6px;text-align:right}
+.grid td{min-width:64px;height:40px;padding:0;vertical-align:top;background:#fffdf8;
+border:1px solid var(--rule);border-radius:3px}
+.grid td.none{background:transparent;border-color:transparent}
+.grid td a{display:block;padding:4px 6px 0;color:inherit;text-decoration:none;
+font:13px/1.2 monospace;text-align:right;white-space:nowrap}
+.grid td a:hover,.grid td a:focus{background:var(--soft);outline:none}
+.grid td.exact a{font-weight:bold;color:var(--accent)}
+.grid td.pub a{color:#8c8578;font-style:italic}
+.grid td sup{font:10px monospace;margin-left:1px}
+.grid td sup.s{color:var(--search)}.grid td sup.r{color:var(--accent)}
+.meter{display:block;height:5px;margin:4px 6px 5px;background:var(--soft);border-radius:2px}
+.meter i{display:block;height:5px;border-radius:2px;background:var(--open)}
+td.exact .meter{background:var(--accent);height:2px;margin-top:6px}
+td.exact .meter i{display:none}
+.ledger{border-collapse:collapse;margin-top:14px;width:100%;max-width:78em;font-size:13px}
+.ledger th{text-align:left;font-weight:normal;color:#5b6472;border-bottom:1px solid var(--rule);
+padding:4px 8px}
+.ledger td{border-bottom:1px dotted var(--rule);padding:4px 8px;vertical-align:top}
+.ledger tr:target{background:#fff3c9}
+.ledger .basis{font:12px monospace;padding:1px 4px;border:1px solid var(--rule);border-radius:2px}
+.ledger .b-search{color:var(--search);border-color:var(--search)}
+.ledger .b-rechecked{color:var(--accent);border-color:var(--accent)}
+.key{display:flex;flex-wrap:wrap;gap:18px;margin-top:10px;font-size:12px;color:#4a5361}
+.key span{display:inline-flex;align-items:center;gap:6px}
+.key .meter{width:48px;margin:0}
+a.dl{color:var(--accent)}
+"""
+
+
+def _basis_class(basis: str | None) -> str:
+    return {"exhaustive search": "b-search", "re-checked": "b-rechecked"}.get(basis or "", "")
+
+
+def _html_cell(r: CellRow | None, q: int, n: int, d: int) -> str:
+    e = html.escape
+    if r is None:
+        return '<td class="none"></td>'
+    attrs = (f'id="c-{q}-{n}-{d}" data-lower="{_e(r.lower)}" data-upper="{_e(r.upper)}" '
+             f'data-exact="{int(r.exact)}" data-compare="{_e(r.compare)}" '
+             f'data-basis="{e(r.upper_basis or "")}"')
+    if r.lower is None and r.upper is None:
+        return (f'<td class="pub" {attrs}><a href="#p-{q}-{n}-{d}" title="published only">'
+                f"[{e(_pub_text(r))}]</a></td>")
+    share = _gap_share(r)
+    meter = ('<span class="meter"><i style="width:100%;background:repeating-linear-gradient('
+             '90deg,#7a8599 0 3px,transparent 3px 6px)"></i></span>' if share is None else
+             f'<span class="meter"><i style="width:{max(share, 0.04) * 100:.0f}%"></i></span>')
+    sup = f'<sup class="{r.trust}">{r.trust}</sup>' if r.trust else ""
+    tip = f"upper: {r.upper_method or '-'}" + (f" ({r.upper_basis})" if r.upper_basis else "")
+    cls = "exact" if r.exact else "open"
+    return (f'<td class="{cls}" {attrs}><a href="#p-{q}-{n}-{d}" title="{e(tip)}">'
+            f"{e(r.text)}{sup}{e(r.mark)}</a>{meter}</td>")
+
+
+def _html_ledger_row(r: CellRow, store: Any) -> str:
+    e = html.escape
+    cell = f"A({r.n},{r.d})" if r.q == 2 else f"A<sub>{r.q}</sub>({r.n},{r.d})"
+    lower = "-" if r.lower is None else (
+        f"{r.lower} by {e(r.lower_method or '-')}"
+        + (f", {r.lower_seconds:.2f} s" if r.lower_seconds is not None else ""))
+    dl = _code_download(store, r)
+    if dl:
+        lower += f" &middot; {dl}"
+    if r.upper is None:
+        upper = "-"
+    else:
+        basis = (f' <span class="basis {_basis_class(r.upper_basis)}">{e(r.upper_basis)}</span>'
+                 if r.upper_basis else "")
+        upper = (f"{r.upper} by {e(r.upper_method or '-')}"
+                 + (f" [{e(r.upper_kind)}]" if r.upper_kind else "")
+                 + (f", {r.upper_seconds:.2f} s" if r.upper_seconds is not None else "")
+                 + basis + (f"<br><small>{e(r.upper_detail)}</small>"
+                            if r.upper_detail and r.upper_detail != r.upper_method else ""))
+    pub = "-" if not r.published_source else (
+        f"{e(_pub_text(r))} ({e(r.published_source)})"
+        + (f", {e(r.compare)}" if r.compare else ""))
+    return (f'<tr id="p-{r.q}-{r.n}-{r.d}"><td>{cell}</td><td>{lower}</td><td>{upper}</td>'
+            f"<td>{pub}</td></tr>")
+
+
 def render_html(rows: Sequence[CellRow], store: Any, title: str = "codesearch table") -> str:
-    """One static HTML file: gap by colour, per-cell provenance and inline codewords."""
+    """One static HTML file, no script and nothing fetched: per alphabet a grid of cells (the
+    value, a meter under it showing the gap on a log scale, a mark for upper bounds that
+    rest on a search) and below it the provenance ledger, one row per cell, which each cell
+    links to (the linked row is highlighted)."""
     e = html.escape
     parts = [
         "<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
-        f"<title>{e(title)}</title>",
-        "<style>body{font-family:sans-serif;margin:1.5em}table{border-collapse:collapse}"
-        "td,th{border:1px solid #999;padding:2px 5px;text-align:right;vertical-align:top;"
-        "font-size:13px}th{background:#eee}td details{font-size:11px;text-align:left}"
-        "td .v{font-weight:bold;font-size:14px}.legend span{padding:0 6px;margin-right:6px}"
-        "</style></head><body>", f"<h1>{e(title)}</h1>",
-        '<p class="legend">Gap by colour: <span style="background:#7fd07f">exact</span>'
-        '<span style="background:#f0e678">small gap</span>'
-        '<span style="background:#f0503c">factor 4 or more</span>'
-        '<span style="background:#dddddd">unknown</span>. Values are proven by this tool; '
-        "[x] is an imported published value only. Marks vs published: = matched, + improved, "
-        "&lt; short.</p>",
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        f"<title>{e(title)}</title>", f"<style>{_HTML_STYLE}</style></head><body>",
+        f"<header><h1>{e(title)}</h1><p>Each cell gives the best code found and the best "
+        "proven upper bound (one number when they meet); the bar under it shows the gap, "
+        "from none (a rule) to a factor of four or more (full); a hatched bar means a side is "
+        "unknown. Click a cell for its provenance in the ledger under the grid. "
+        "[x]: an imported published value only. Against imported values: = matched, "
+        "+ improved, &lt; short. Upper bounds marked <b>s</b> rest on an exhaustive search "
+        "(its run is recorded; nothing to re-check), <b>r</b> on a SAT refutation re-checked "
+        "by <code>codesearch check</code>; unmarked ones are closed forms or certificates "
+        "that <code>codesearch check</code> re-checks.</p>",
+        '<div class="key"><span><span class="meter" style="background:#34458f;height:2px">'
+        "</span>exact</span>"
+        '<span><span class="meter"><i style="width:25%"></i></span>within a factor 1.4</span>'
+        '<span><span class="meter"><i style="width:100%"></i></span>factor 4 or more</span>'
+        "</div></header><main>",
     ]
     for q, (ns, ds, cells) in _layout(rows).items():
-        parts.append(f'<h2>{e(_name(q))}, q = {q}</h2><table id="table-q{q}">')
+        parts.append(f'<section><h2>{e(_name(q))}, q = {q}</h2><table class="grid" '
+                     f'id="table-q{q}">')
         parts.append("<tr><th>n \\ d</th>" + "".join(f"<th>{d}</th>" for d in ds) + "</tr>")
         for n in ns:
-            parts.append(f"<tr><th>{n}</th>")
-            for d in ds:
-                r = cells.get((n, d))
-                if r is None:
-                    parts.append("<td></td>")
-                    continue
-                attrs = (f'id="c-{q}-{n}-{d}" data-lower="{_e(r.lower)}" '
-                         f'data-upper="{_e(r.upper)}" data-exact="{int(r.exact)}" '
-                         f'data-compare="{_e(r.compare)}"')
-                if r.lower is None and r.upper is None:
-                    parts.append(f'<td {attrs} style="background:#ffffff">'
-                                 f'<span class="v">[{e(_pub_text(r))}]</span></td>')
-                    continue
-                prov = [f"lower: {e(r.lower_method or '-')}"
-                        + (f" ({r.lower_seconds:.2f} s)" if r.lower_seconds is not None else ""),
-                        f"upper: {e(r.upper_method or '-')}"
-                        + (f" [{e(r.upper_kind)}]" if r.upper_kind else "")
-                        + (f" ({r.upper_seconds:.2f} s)" if r.upper_seconds is not None else "")]
-                if r.published_source:
-                    prov.append(f"published: {e(_pub_text(r))} ({e(r.published_source)}), "
-                                f"{e(r.compare or '')}")
-                dl = _code_download(store, r)
-                parts.append(
-                    f'<td {attrs} style="background:{_colour(r)}"><span class="v">'
-                    f"{e(r.text)}{e(r.mark)}</span><details><summary>info</summary>"
-                    + "<br>".join(prov) + (f"<br>{dl}" if dl else "") + "</details></td>"
-                )
-            parts.append("</tr>")
+            parts.append(f"<tr><th>{n}</th>"
+                         + "".join(_html_cell(cells.get((n, d)), q, n, d) for d in ds) + "</tr>")
         parts.append("</table>")
-    parts.append("</body></html>")
+        parts.append('<table class="ledger"><tr><th>cell</th><th>lower (code)</th>'
+                     "<th>upper (what backs it)</th><th>published</th></tr>")
+        parts.extend(_html_ledger_row(cells[key], store) for key in sorted(cells))
+        parts.append("</table></section>")
+    parts.append("</main></body></html>")
     return "\n".join(parts) + "\n"
 
 

@@ -9,7 +9,8 @@ from __future__ import annotations
 
 from typing import Any, Mapping, Sequence
 
-__all__ = ["format_value", "code_report", "find_summary", "table_summary", "bounds_table",
+__all__ = ["format_value", "exact_text", "FULL_DIGITS", "ABBREVIATION_NOTE", "code_report",
+           "find_summary", "table_summary", "bounds_table",
            "BOUND_LABELS"]
 
 #: Column label of each bound in :func:`bounds_table`, in column order (a bound not listed
@@ -29,9 +30,49 @@ BOUND_LABELS = {
 }
 
 
-def format_value(v: int) -> str:
-    """Exact below 10^12, else ``m.mmme+XX`` (the JSON output is always exact)."""
-    return str(v) if v < 10**12 else f"{v:.3e}"
+#: Values of more digits than this are abbreviated in the text columns (marked ``~``).
+FULL_DIGITS = 15
+#: The footnote every table with an abbreviated value carries.
+ABBREVIATION_NOTE = ("~ = abbreviated to 5 significant digits, rounded away from what was "
+                     "proved (up for upper bounds, down for gv); --json prints every value "
+                     "exactly")
+
+
+def exact_text(v: int) -> str:
+    """The decimal digits of ``v``, exactly, however long (Python's own ``str`` refuses past
+    4300 digits; q^n reaches 6375 digits at q = 36, n = 4096)."""
+    if v < 0:
+        return "-" + exact_text(-v)
+    if v.bit_length() < 10_000:
+        return str(v)
+    k = v.bit_length() * 3 // 20  # about half the digits
+    hi, lo = divmod(v, 10**k)
+    return exact_text(hi) + exact_text(lo).rjust(k, "0")
+
+
+def _digits(v: int) -> int:
+    """Number of decimal digits of ``v >= 0``, without converting it to a string."""
+    e = max(int(v.bit_length() * 0.30102999566398120) - 1, 0)
+    while 10 ** (e + 1) <= v:
+        e += 1
+    return e + 1
+
+
+def format_value(v: int, *, round_up: bool = True) -> str:
+    """A value for a text column: exact up to :data:`FULL_DIGITS` digits, else ``~m.mmmmeE``
+    with five significant digits rounded up (``round_up``, for upper bounds) or down (for
+    lower bounds), so the abbreviation never claims more than was proved. Tables that show
+    an abbreviated value say so (:data:`ABBREVIATION_NOTE`)."""
+    if v < 0 or _digits(v) <= FULL_DIGITS:
+        return exact_text(v)
+    e = _digits(v) - 1
+    lead, rest = divmod(v, 10 ** (e - 4))
+    if round_up and rest:
+        lead += 1
+        if lead == 10**5:
+            lead, e = 10**4, e + 1
+    digits = str(lead)
+    return f"~{digits[0]}.{digits[1:]}e{e}"
 
 
 def _aligned(rows: Sequence[Sequence[str]]) -> list[str]:
@@ -71,7 +112,8 @@ def code_report(report: Any, file: str) -> str:
 
 def find_summary(result: Any) -> str:
     """One line for a :class:`~codesearch.results.SearchResult`."""
-    verdict = "proved optimal" if result.optimal else (
+    # an exhaustive search leaves nothing to re-check unless it wrote a refutation bundle
+    verdict = "proved optimal by exhaustive search" if result.optimal else (
         f"{result.status.value}; upper bound {result.upper}")
     return (f"{result.params}: code of size {result.size} ({verdict}) by {result.method} in "
             f"{result.seconds:.2f} s, {result.nodes} nodes")
@@ -101,19 +143,23 @@ def bounds_table(summaries: Sequence[Mapping[str, Any]], *, lp: bool = True,
     rows = [header + ["griesmer*"]]
     notes = []
     for s in summaries:
-        row = [str(s["q"]), str(s["n"]), str(s["d"]), str(s["upper"]), s["upper_method"],
-               s.get("upper_kind", "-"), format_value(s["gv"])]
+        row = [str(s["q"]), str(s["n"]), str(s["d"]), format_value(s["upper"]),
+               s["upper_method"], s.get("upper_kind", "-"),
+               format_value(s["gv"], round_up=False)]
         row += ["-" if s["bounds"].get(k) is None else format_value(s["bounds"][k])
                 for k in names]
         g = s["linear"].get("griesmer")
         rows.append(row + ["-" if g is None else format_value(g)])
         if "relation" in s:
-            cited = ", ".join(f"A({c[1]},{c[2]}) <= {c[3]}" for c in s["relation"]["cites"])
-            notes.append(f"  A({s['n']},{s['d']}) <= {s['upper']}: {s['relation']['rule']} "
-                         f"from {cited}")
+            cited = ", ".join(f"A({c[1]},{c[2]}) <= {exact_text(c[3])}"
+                              for c in s["relation"]["cites"])
+            notes.append(f"  A({s['n']},{s['d']}) <= {exact_text(s['upper'])}: "
+                         f"{s['relation']['rule']} from {cited}")
     lines = _aligned(rows) + [
         "* griesmer bounds linear codes only; gv is an existential lower bound; "
         "'-' = not applicable or not certified"]
+    if any(c.startswith("~") for r in rows[1:] for c in r):
+        lines.append(ABBREVIATION_NOTE)
     if notes:
         lines += ["relations between cells of the grid:"] + notes
     return "\n".join(lines)

@@ -269,6 +269,7 @@ def max_weight_clique(
         if node_limit is not None:
             budget = min(budget, int(node_limit))
         t0 = time.perf_counter()
+        before = int(state[3])
         code = int(K.clique_search(padj, pw, pst, lst, bst, cnt, pos, cw, clique, best_clique,
                                    state, budget, scratch_q, scratch_c))
         now = time.perf_counter()
@@ -280,11 +281,15 @@ def max_weight_clique(
         if deadline is not None and now >= deadline:
             break
         dt = now - t0
-        # Aim for ~0.2 s per call so the clock and progress are checked often enough.
+        # Aim for ~0.1 s per call so the clock and progress are checked often enough, and
+        # never plan a call past the deadline at the rate just measured.
         if dt < 0.05:
             chunk = min(chunk * 4, 1 << 40)
-        elif dt > 0.4:
-            chunk = max(1000, chunk // 2)
+        elif dt > 0.2:
+            chunk = max(1000, int(chunk * 0.1 / dt))
+        if deadline is not None and dt > 0 and state[3] > before:
+            rate = (int(state[3]) - before) / dt
+            chunk = max(1000, min(chunk, int(rate * (deadline - now))))
         if progress is not None and now - last_report >= 0.2:
             last_report = now
             progress({"nodes": int(state[3]), "incumbent": int(state[1]),

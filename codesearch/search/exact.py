@@ -51,6 +51,10 @@ __all__ = ["OPTIONS", "SEEDING", "run", "load_kernels"]
 
 OPTIONS = frozenset({"size", "reduce", "leaf_size", "max_fixed", "use_bounds"})
 SEEDING = "none"
+#: Tiny runs through every kernel path (binary, q-ary, even-weight reduction), for
+#: :func:`codesearch.search.prepare_method`.
+WARM_UP = (((2, 5, 3), {"use_bounds": False}), ((2, 6, 4), {"use_bounds": False}),
+           ((3, 4, 3), {"use_bounds": False}), ((2, 6, 3), {"size": 9, "use_bounds": False}))
 
 _DEFAULT_LEAF = 96
 _DEFAULT_MAX_FIXED = 4
@@ -58,6 +62,9 @@ _DEFAULT_MAX_FIXED = 4
 #: size, is searched as one clique: quicker than splitting it. Independent of ``leaf_size``,
 #: since a large leaf size must not turn a real search into an unreduced one.
 _WHOLE_SPACE = 96
+#: Seconds past the deadline during which abandoned nodes still get their colour bound;
+#: later ones get the plain count, so that stopping stays prompt.
+_ABANDON_GRACE = 0.05
 
 
 def load_kernels() -> float:
@@ -110,6 +117,13 @@ class _Search:
         """Account for a node left unsearched: its bound joins the proved upper bound, unless
         the incumbent already meets a known bound (then the answer is settled anyway)."""
         if self.known_upper is not None and self.best >= self.known_upper:
+            return
+        left = self.time_left()
+        if left is not None and left < -_ABANDON_GRACE:
+            # past the deadline: the plain count (fixed words + candidates) still bounds the
+            # node, without building its code graph
+            self.pending_upper = max(self.pending_upper,
+                                     sub.fixed.shape[0] + sub.candidates.shape[0])
             return
         self.pending_upper = max(self.pending_upper, _node_bound(sub, self.params))
 

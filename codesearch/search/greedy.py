@@ -44,6 +44,9 @@ __all__ = ["OPTIONS", "SEEDING", "ORDERS", "run", "greedy_indices"]
 #: Options of the ``greedy`` method.
 OPTIONS = frozenset({"order", "restarts", "size"})
 SEEDING = "random"
+#: Tiny runs through every scan order, binary and q-ary (:func:`codesearch.search.prepare_method`).
+WARM_UP = tuple(((q, n, 3), {"order": order, "restarts": 1}) for q, n in ((2, 7), (3, 4))
+                for order in ("random", "gray", "lex"))
 
 #: Scan orders: name -> kernel order code.
 ORDERS = {"lex": 0, "gray": 1, "random": 2}

@@ -24,6 +24,8 @@ __all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size"})
 SEEDING = "none"
+#: Tiny runs through the binary and q-ary ball marking (:func:`codesearch.search.prepare_method`).
+WARM_UP = (((2, 7, 3), {}), ((3, 4, 3), {}))
 
 
 def run(ctx: Context) -> Outcome:

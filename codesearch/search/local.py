@@ -37,6 +37,8 @@ F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, Nor
 
 from __future__ import annotations
 
+import time
+
 from dataclasses import dataclass
 
 import numpy as np
@@ -53,6 +55,8 @@ OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
 SEEDING = "random"
 #: Starts from ``ctx.incumbent`` when it is larger than the greedy start (a record hunt).
 INCUMBENT = True
+#: Tiny runs, binary (with the parity extension) and q-ary (:func:`codesearch.search.prepare_method`).
+WARM_UP = (((2, 7, 3), {"steps": 200}), ((2, 8, 4), {"steps": 200}), ((3, 4, 3), {"steps": 200}))
 
 #: Largest space for which the ball-count array is used (2 bytes per word: 32 MiB).
 MAX_COUNT_SPACE = 2**24
@@ -145,16 +149,25 @@ def _repair(st: _State, M: int, total: int, steps: int | None, ctx: Context
 
     q, n, d = st.cell.q, st.cell.n, st.cell.d
     moves = 0
+    rate = None  # moves per second measured on the previous call
     while total > 0:
         # about 5e7 elementary operations per kernel call, so the clock is read often
         work = 2 * st.ball + M * st.n_cand if st.mode == 1 else 4 * st.n_cand * M
         chunk = max(1, min(_CHUNK, 50_000_000 // work))
+        left = ctx.time_left()
+        if rate is not None and left is not None:
+            # never plan a call past the deadline (nor longer than 0.1 s) at the rate seen
+            chunk = max(1, min(chunk, int(rate * min(0.1, max(left, 0.0)))))
         if steps is not None:
             chunk = min(chunk, steps - moves)
         if chunk <= 0:
             break
+        t0 = time.perf_counter()
         total, done = K.heur_local_steps(q, n, d, q**n, M, st.words, st.conf, total, st.mode,
                                          *st.kernel_args(), st.tabu, st.rng, _N_RANDOM, chunk)
+        dt = time.perf_counter() - t0
+        if done > 0 and dt > 0:
+            rate = done / dt
         moves += done
         if ctx.expired():
             return total, moves, total > 0

@@ -53,6 +53,10 @@ __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph", "heuristic_clique", "t
 OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
                      "max_orbits"})
 SEEDING = "fixed"
+#: Tiny runs through the orbit graph and the weighted clique paths, binary and q-ary
+#: (:func:`codesearch.search.prepare_method`).
+WARM_UP = (((2, 7, 3), {"group": "cyclic"}), ((3, 4, 3), {"group": "cyclic"}),
+           ((2, 8, 4), {"group": "cyclic*rep"}))
 
 _MODES = ("exact", "heuristic")
 DEFAULT_MAX_ORBITS = 12000

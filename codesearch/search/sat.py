@@ -67,6 +67,8 @@ __all__ = ["OPTIONS", "SEEDING", "SYMMETRY", "ENCODINGS", "Encoding", "encode_ba
 
 OPTIONS = frozenset({"size", "proof", "symmetry", "encoding", "solver"})
 SEEDING = "none"
+#: A tiny refutation (A(5,3) = 4): loads the solver library (:func:`codesearch.search.prepare_method`).
+WARM_UP = (((2, 5, 3), {"size": 5}),)
 
 #: Symmetry-breaking levels, each including the previous ones.
 SYMMETRY = ("none", "zero", "pair", "lex")

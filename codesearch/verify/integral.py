@@ -25,13 +25,18 @@ from __future__ import annotations
 import math
 from typing import Any, Callable, Mapping
 
+from codesearch.errors import InputError
+from codesearch.verify import strict
+
 #: the table's entry point, passed in by :mod:`codesearch.verify.certificates`
 Checker = Callable[[Mapping[str, Any]], tuple[bool, "int | None", str]]
 
-__all__ = ["check_distance_enumeration", "check_odd_size", "MAX_LEAVES"]
+__all__ = ["check_distance_enumeration", "check_odd_size", "MAX_LEAVES", "MAX_SIZES"]
 
-#: Leaves the checker is willing to visit per size (else: too expensive to re-check).
-MAX_LEAVES = 5_000_000
+#: Leaves the checker is willing to visit, all sizes together (else: refused as past the cap).
+MAX_LEAVES = 2_000_000
+#: Sizes a distance-enumeration certificate may exclude (each costs an n^2 setup).
+MAX_SIZES = 1000
 
 
 def _johnson(n: int, half: int, w: int, memo: dict) -> int:
@@ -51,15 +56,15 @@ def _johnson(n: int, half: int, w: int, memo: dict) -> int:
     return memo[key]
 
 
-def _exists(n: int, d: int, M: int) -> bool | None:
-    """True if some vector passes every test, False if none, None past MAX_LEAVES."""
+def _exists(n: int, d: int, M: int, budget: list[int]) -> bool | None:
+    """True if some vector passes every test, False if none, None when the leaves left in
+    ``budget[0]`` (shared by all sizes, decremented here) run out."""
     dist = list(range(d, n + 1, 2))
     memo: dict = {}
     box = [M * _johnson(n, d // 2, i, memo) // 2 for i in dist]
     total = M * (M - 1) // 2
     kraw = [[sum((-1) ** s * math.comb(i, s) * math.comb(n - i, k - s) for s in range(k + 1))
              for i in dist] for k in range(n + 1)]
-    leaves = 0
     vec = [0] * len(dist)
 
     def ok() -> bool:
@@ -73,10 +78,9 @@ def _exists(n: int, d: int, M: int) -> bool | None:
         return True
 
     def walk(j: int, rem: int) -> bool:
-        nonlocal leaves
         if j == len(dist) - 1:
-            leaves += 1
-            if leaves > MAX_LEAVES:
+            budget[0] -= 1
+            if budget[0] < 0:
                 raise OverflowError
             if rem > box[j]:
                 return False
@@ -95,16 +99,15 @@ def _exists(n: int, d: int, M: int) -> bool | None:
 
 
 def _cell_and_lp(cert: Mapping[str, Any]) -> tuple[int, int, int, int, Mapping[str, Any]]:
-    q, n0, d0 = (cert[k] for k in ("q", "n", "d"))
-    claimed = cert["value"]
-    if any(isinstance(v, bool) or not isinstance(v, int) for v in (q, n0, d0, claimed)):
-        raise ValueError("q, n, d, value must be integers")
-    if q != 2 or not 3 <= d0 <= n0 <= 4096:
-        raise ValueError(f"binary cells only, got q={q}, n={n0}, d={d0}")
+    what = "certificate"
+    q = strict.get_int(cert, "q", what, 2, 2)
+    n0 = strict.get_int(cert, "n", what, 3, 4096)
+    d0 = strict.get_int(cert, "d", what, 3, n0)
+    strict.get_int(cert, "value", what, 0, None)
     n, d = (n0 + 1, d0 + 1) if d0 % 2 else (n0, d0)
-    lp = cert["lp"]
-    if not isinstance(lp, Mapping) or (lp.get("q"), lp.get("n"), lp.get("d")) != (2, n, d):
-        raise ValueError(f"the LP certificate must be for A({n},{d})")
+    lp = strict.mapping(strict.field(cert, "lp", what), "certificate: lp")
+    if (lp.get("q"), lp.get("n"), lp.get("d")) != (2, n, d) or lp.get("kind") != "delsarte-lp":
+        raise InputError(f"certificate: lp must be a delsarte-lp certificate for A({n},{d})")
     return n0, d0, n, d, lp
 
 
@@ -117,16 +120,16 @@ def check_odd_size(cert: Mapping[str, Any], check_certificate: Checker
 
     n0, d0, n, d, lp = _cell_and_lp(cert)
     claimed = cert["value"]
-    if lp.get("kind") not in ("delsarte-lp",):
-        return False, None, "the nested certificate must be a binary Delsarte LP"
     ok, top, why = check_certificate(lp)
     if not ok or top is None:
         return False, None, f"LP certificate: {why}"
     value = Fraction(lp["bound"])  # equal to the LP's exact value: checked just above
     weight = sum(Fraction(v) * math.comb(n, k) for k, v in enumerate(lp["y"], start=1))
     M = top
-    if claimed >= M:
+    if claimed == M:
         return True, claimed, f"A({n0},{d0}) <= {claimed} (LP alone gives {M})"
+    if claimed > M:
+        return False, None, f"claimed {claimed} but the LP alone proves {M}"
     if claimed != M - 1 or M % 2 == 0 or not M * M - value * M + weight > 0:
         return False, None, f"size {M} is not excluded by the odd-size cut"
     return True, claimed, f"A({n0},{d0}) <= {claimed}: LP gives {M}, odd size {M} excluded"
@@ -142,10 +145,17 @@ def check_distance_enumeration(cert: Mapping[str, Any], check_certificate: Check
     ok, top, why = check_certificate(lp)
     if not ok or top is None:
         return False, None, f"LP certificate: {why}"
+    if claimed > top:
+        return False, None, f"claimed {claimed} but the LP alone proves {top}"
+    if top - claimed > MAX_SIZES:
+        raise InputError(f"certificate: {top - claimed} sizes to exclude, past the cap "
+                         f"{MAX_SIZES}; refused before starting")
+    budget = [MAX_LEAVES]
     for M in range(max(claimed, 1) + 1, top + 1):
-        found = _exists(n, d, M)
+        found = _exists(n, d, M, budget)
         if found is None:
-            return False, None, f"size {M}: more than {MAX_LEAVES} vectors, not re-checked"
+            raise InputError(f"certificate: size {M}: more than {MAX_LEAVES} distance "
+                             f"vectors to visit, past the cap; not re-checked")
         if found:
             return False, None, f"size {M} has an integral distance distribution"
     return True, claimed, (f"A({n0},{d0}) <= {claimed}: LP gives {top}, no integral distance "

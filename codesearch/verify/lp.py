@@ -20,47 +20,83 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 from functools import lru_cache
-from typing import Any, Mapping
+from typing import Any, Iterator, Mapping
 
 from codesearch.errors import InputError
+from codesearch.model import MAX_Q
+from codesearch.verify import strict
 from codesearch.verify.exact import rational_field
+
+#: Longest code whose LP certificate is read (the bounds limit).
+MAX_N = 4096
+_WHAT = "certificate"
 
 __all__ = ["check_delsarte_lp", "check_delsarte_lp_qcw"]
 
 
-@lru_cache(maxsize=64)
-def _kraw_columns(q: int, n: int) -> tuple[tuple[int, ...], ...]:
-    """``T[x][k] = K_k(x)`` from the generating function, recursively in x.
+def _kraw_rows(q: int, n: int) -> Iterator[tuple[int, ...]]:
+    """``T[x][k] = K_k(x)`` for x = 0..n, one row at a time (memory of one row).
 
     Multiplying ``G_x(z) = sum_k K_k(x) z^k`` by ``(1 - z) / (1 + (q-1) z)`` gives
     ``G_{x+1}``, i.e. ``K_k(x+1) = K_k(x) - K_{k-1}(x) - (q-1) K_{k-1}(x+1)``.
     """
     cur = [math.comb(n, k) * (q - 1) ** k for k in range(n + 1)]
-    table = [tuple(cur)]
+    yield tuple(cur)
     for _ in range(n):
         nxt = [0] * (n + 1)
         nxt[0] = cur[0]
         for k in range(1, n + 1):
             nxt[k] = cur[k] - cur[k - 1] - (q - 1) * nxt[k - 1]
-        table.append(tuple(nxt))
+        yield tuple(nxt)
         cur = nxt
-    return tuple(table)
 
 
-@lru_cache(maxsize=None)
+@lru_cache(maxsize=16)
+def _kraw_table(q: int, n: int) -> tuple[tuple[int, ...], ...]:
+    return tuple(_kraw_rows(q, n))
+
+
+def _kraw_columns(q: int, n: int) -> Iterator[tuple[int, ...]] | tuple[tuple[int, ...], ...]:
+    """The rows of the Krawtchouk table: cached when small (a table of many cells re-checks
+    the same lengths), streamed otherwise (memory of one row)."""
+    if (n + 1) ** 2 * (n * q.bit_length() + 1) <= _CACHED_BITS:
+        return _kraw_table(q, n)
+    return _kraw_rows(q, n)
+
+
+#: Largest Krawtchouk table kept in memory between checks (bits of its entries).
+_CACHED_BITS = 1 << 25
+
+
+def _work(q: int, n: int, den_bits: int) -> int:
+    """Elementary steps of an LP check: (n+1)^2 products of numbers of about
+    ``n log2 q + den_bits`` bits (one step per 64-bit limb)."""
+    return (n + 1) ** 2 * (1 + (n * q.bit_length() + den_bits) // 64)
+
+
+@lru_cache(maxsize=4096)
 def _cw_cap(n: int, delta: int, w: int) -> int:
     """Upper bound on binary constant-weight codes A(n, 2 delta, w).
 
     Johnson: A(n, 2δ, w) <= floor(n/w * A(n-1, 2δ, w-1)); complements: weight w and n-w give
     the same codes; a single word when w < δ (two weight-w words are within 2w < 2δ).
+    Followed as a loop down the chain, then back up (no recursion: n may be 4096).
     """
-    if w > n or w < 0:
-        return 0
-    if n - w < w:
-        w = n - w
-    if w < delta:
-        return 1
-    return n * _cw_cap(n - 1, delta, w - 1) // w
+    chain = []
+    while True:
+        if w > n or w < 0:
+            value = 0
+            break
+        if n - w < w:
+            w = n - w
+        if w < delta:
+            value = 1
+            break
+        chain.append((n, w))
+        n, w = n - 1, w - 1
+    for m, v in reversed(chain):
+        value = m * value // v
+    return value
 
 
 def _extra_row(family: str, index: int, n: int, d: int) -> tuple[dict[int, int], int]:
@@ -88,22 +124,24 @@ def _lp_certificate_head(cert: Mapping[str, Any], more: tuple[str, ...]
     """Parse the part every LP certificate shares: ``(q, n, d, y, bound)``.
 
     Raises :class:`InputError` for a missing key (``q n d y bound`` and ``more``), non-integer
-    or out-of-range parameters, or a ``y`` that is not a list of n rationals.
+    or out-of-range parameters (q <= 36, n <= 4096), or a ``y`` that is not a list of n
+    rationals.
     """
     for key in ("q", "n", "d", *more, "y", "bound"):
-        if key not in cert:
-            raise InputError(f"certificate: missing key {key!r}")
-    q, n, d = cert["q"], cert["n"], cert["d"]
-    for name, v in (("q", q), ("n", n), ("d", d)):
-        if isinstance(v, bool) or not isinstance(v, int):
-            raise InputError(f"certificate: {name} must be an integer")
-    if not (2 <= q <= 1 << 16 and 1 <= d <= n <= 4096):
-        raise InputError(f"certificate: parameters q={q}, n={n}, d={d} out of range")
-    ys = cert["y"]
-    if not isinstance(ys, list) or len(ys) != n:
-        raise InputError(f"certificate: y must be a list of n={n} rationals")
+        strict.field(cert, key, _WHAT)
+    q = strict.get_int(cert, "q", _WHAT, 2, MAX_Q)
+    n = strict.get_int(cert, "n", _WHAT, 1, MAX_N)
+    d = strict.get_int(cert, "d", _WHAT, 1, n)
+    ys = strict.get_list(cert, "y", _WHAT, n, length=n)
     y = [rational_field(t, f"y[{k + 1}]") for k, t in enumerate(ys)]
     return q, n, d, y, rational_field(cert["bound"], "bound")
+
+
+def _common_denominator(values: list[Fraction], q: int, n: int) -> int:
+    """The lcm of the denominators, refused past the caps before the (n+1)^2 products."""
+    L = strict.common_denominator(values, "certificate")
+    strict.check_work(_work(q, n, L.bit_length()), f"certificate for q={q}, n={n}")
+    return L
 
 
 def check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
@@ -111,39 +149,35 @@ def check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
     ``sum_k y_k K_k(i) - sum_j z_j a_ji <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) +
     sum_j z_j b_j``. Integer arithmetic only (one common denominator)."""
     q, n, d, y, claimed = _lp_certificate_head(cert, ("even",))
-    even = cert["even"]
-    if not isinstance(even, bool):
-        raise InputError("certificate: even must be true or false")
-    extras_in = cert.get("extra", [])
-    if not isinstance(extras_in, list):
-        raise InputError("certificate: extra must be a list")
+    even = strict.get_bool(cert, "even", _WHAT)
+    extras_in = strict.get_list(cert, "extra", _WHAT, n + 3) if "extra" in cert else []
     if even and (q != 2 or d % 2):
         return False, None, "even-distance restriction is only valid for q = 2 and even d"
     if extras_in and q != 2:
         return False, None, "extra inequalities are only defined for q = 2"
     rows: list[tuple[dict[int, int], int, Fraction]] = []
     for j, e in enumerate(extras_in):
-        if not isinstance(e, Mapping) or not {"family", "index", "z"} <= set(e):
-            raise InputError(f"certificate: extra[{j}] needs family, index, z")
-        if isinstance(e["index"], bool) or not isinstance(e["index"], int):
-            raise InputError(f"certificate: extra[{j}].index must be an integer")
-        coeffs, rhs = _extra_row(str(e["family"]), e["index"], n, d)
+        where = f"certificate: extra[{j}]"
+        strict.mapping(e, where)
+        family = strict.get_str(e, "family", where)
+        coeffs, rhs = _extra_row(family, strict.get_int(e, "index", where, 0, n), n, d)
         rows.append((coeffs, rhs, rational_field(e["z"], f"extra[{j}].z")))
     if any(v < 0 for v in y) or any(z < 0 for (_, _, z) in rows):
         return False, None, "a dual multiplier is negative"
-    L = math.lcm(*(v.denominator for v in y), *(z.denominator for (_, _, z) in rows))
+    L = _common_denominator(y + [z for (_, _, z) in rows], q, n)
     Y = [v.numerator * (L // v.denominator) for v in y]
     Z = [z.numerator * (L // z.denominator) for (_, _, z) in rows]
-    T = _kraw_columns(q, n)
-    for i in range(d, n + 1):
-        if even and i % 2:
+    T0: tuple[int, ...] = ()
+    for i, Ti in enumerate(_kraw_columns(q, n)):
+        if i == 0:
+            T0 = Ti
+        if i < d or (even and i % 2):
             continue
-        Ti = T[i]
         total = sum(Y[k - 1] * Ti[k] for k in range(1, n + 1) if Y[k - 1])
         total -= sum(Zj * coeffs.get(i, 0) for Zj, (coeffs, _, _) in zip(Z, rows))
         if total > -L:
             return False, None, f"dual constraint fails at distance i={i}"
-    value = Fraction(L + sum(Y[k - 1] * T[0][k] for k in range(1, n + 1))
+    value = Fraction(L + sum(Y[k - 1] * T0[k] for k in range(1, n + 1))
                      + sum(Zj * rhs for Zj, (_, rhs, _) in zip(Z, rows)), L)
     if value != claimed:
         return False, None, f"bound is {value}, certificate claims {claimed}"
@@ -154,21 +188,26 @@ def check_delsarte_lp(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
 # ===================================================================== delsarte-lp-qcw
 # Delsarte's LP for q-ary codes with the constant-weight inequalities A_i <= B_q(n, d, i)
 # (see codesearch.bounds.delsarte.qary_extra_inequalities for the proof). The caps are
-# rebuilt here by their own recursion; Krawtchouk values come from _kraw_columns above.
+# rebuilt here by their own recurrence; Krawtchouk values come from _kraw_columns above.
 
 
-@lru_cache(maxsize=None)
-def _qcw_cap(q: int, n: int, d: int, w: int) -> int:
-    """q-ary constant-weight bound: the least of C(n,w)(q-1)^w, n(q-1)B(n-1,w-1)/w and
-    n B(n-1,w)/(n-w) (floors); 1 when w = 0 or two weight-w words cannot be d apart."""
-    if w < 0 or w > n:
-        return 0
-    if w == 0 or 2 * w < d or n < d:
-        return 1
-    caps = [math.comb(n, w) * (q - 1) ** w, (n * (q - 1) * _qcw_cap(q, n - 1, d, w - 1)) // w]
-    if n > w:
-        caps.append((n * _qcw_cap(q, n - 1, d, w)) // (n - w))
-    return min(caps)
+def _qcw_caps(q: int, n: int, d: int) -> list[int]:
+    """``B_q(n, d, w)`` for w = 0..n, the q-ary constant-weight bound: the least of
+    C(n,w)(q-1)^w, n(q-1)B(n-1,w-1)/w and n B(n-1,w)/(n-w) (floors); 1 when w = 0 or two
+    weight-w words cannot be d apart. Built row by row in the length (memory of one row)."""
+    prev: list[int] = [1]  # length 0: only w = 0
+    for m in range(1, n + 1):
+        row = []
+        for w in range(m + 1):
+            if w == 0 or 2 * w < d or m < d:
+                row.append(1)
+                continue
+            caps = [math.comb(m, w) * (q - 1) ** w, (m * (q - 1) * prev[w - 1]) // w]
+            if m > w:
+                caps.append((m * prev[w]) // (m - w))
+            row.append(min(caps))
+        prev = row
+    return prev
 
 
 def check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
@@ -176,30 +215,33 @@ def check_delsarte_lp_qcw(cert: Mapping[str, Any]) -> tuple[bool, int | None, st
     ``sum_k y_k K_k(i) - z_i <= -1``; then ``A_q(n,d) <= 1 + sum_k y_k K_k(0) + sum_i z_i
     B_q(n, d, i)``. Integer arithmetic after clearing one common denominator."""
     q, n, d, y, claimed = _lp_certificate_head(cert, ("extra",))
-    if not isinstance(cert["extra"], list):
-        raise InputError("certificate: extra must be a list")
     z: dict[int, Fraction] = {}
-    for j, e in enumerate(cert["extra"]):
-        if not isinstance(e, Mapping) or not {"index", "z"} <= set(e):
-            raise InputError(f"certificate: extra[{j}] needs index and z")
-        if e.get("family", "constant-weight") != "constant-weight":
-            return False, None, f"extra[{j}]: unknown family {e.get('family')!r}"
-        i = e["index"]
-        if isinstance(i, bool) or not isinstance(i, int) or not d <= i <= n or i in z:
-            raise InputError(f"certificate: extra[{j}].index must be a new integer in {d}..{n}")
-        z[i] = rational_field(e["z"], f"extra[{j}].z")
+    for j, e in enumerate(strict.get_list(cert, "extra", _WHAT, n + 1)):
+        where = f"certificate: extra[{j}]"
+        strict.mapping(e, where)
+        if "family" in e and strict.get_str(e, "family", where) != "constant-weight":
+            return False, None, f"extra[{j}]: unknown family {strict.short(e['family'])}"
+        i = strict.get_int(e, "index", where, d, n)
+        if i in z:
+            raise InputError(f"{where}: index {i} repeated")
+        z[i] = rational_field(strict.field(e, "z", where), f"extra[{j}].z")
     if any(v < 0 for v in y) or any(v < 0 for v in z.values()):
         return False, None, "a dual multiplier is negative"
-    L = math.lcm(*(v.denominator for v in y), *(v.denominator for v in z.values()))
+    L = _common_denominator(y + list(z.values()), q, n)
     Y = [v.numerator * (L // v.denominator) for v in y]
     Z = {i: v.numerator * (L // v.denominator) for i, v in z.items()}
-    T = _kraw_columns(q, n)
-    for i in range(d, n + 1):
-        total = sum(Y[k - 1] * T[i][k] for k in range(1, n + 1) if Y[k - 1]) - Z.get(i, 0)
+    T0: tuple[int, ...] = ()
+    for i, Ti in enumerate(_kraw_columns(q, n)):
+        if i == 0:
+            T0 = Ti
+        if i < d:
+            continue
+        total = sum(Y[k - 1] * Ti[k] for k in range(1, n + 1) if Y[k - 1]) - Z.get(i, 0)
         if total > -L:
             return False, None, f"dual constraint fails at distance i={i}"
-    num = L + sum(Y[k - 1] * T[0][k] for k in range(1, n + 1))
-    num += sum(Zi * _qcw_cap(q, n, d, i) for i, Zi in Z.items())
+    num = L + sum(Y[k - 1] * T0[k] for k in range(1, n + 1))
+    caps = _qcw_caps(q, n, d) if Z else []
+    num += sum(Zi * caps[i] for i, Zi in Z.items())
     value = Fraction(num, L)
     if value != claimed:
         return False, None, f"bound is {value}, certificate claims {claimed}"

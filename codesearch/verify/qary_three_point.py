@@ -51,11 +51,12 @@ def exact_psd(mat: list[list[Fraction]]) -> bool:
 
 
 def read_psd_block(rows: Any, m: int, name: str) -> tuple[list[list[Fraction]], int] | str:
-    """Parse an ``m x m`` dual block of ``"p/q"`` strings and check it is symmetric and PSD.
+    """Check an ``m x m`` dual block (rows of exact rationals, or of ``"p/q"`` strings) is
+    symmetric and PSD.
 
     Returns ``(matrix, common denominator)``, or the reason it fails (a string).
     """
-    mat = [[parse_rational(v) for v in row] for row in rows]
+    mat = [[v if isinstance(v, Fraction) else parse_rational(v) for v in row] for row in rows]
     if len(mat) != m or any(len(row) != m for row in mat):
         return f"{name} is not {m}x{m}"
     if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
@@ -107,14 +108,49 @@ def _cw_cap(q: int, n: int, d: int, w: int, memo: dict) -> int:
     return val
 
 
+#: Row label -> number of integer indices after it.
+_ROW_SHAPES = {"upper": 4, "pair": 4, "weight": 1, "delsarte": 1}
+
+
+def _work(n: int, blocks: list, multipliers: list) -> int:
+    """Elementary steps: per block entry the t, p and h/u loops of alpha (at most
+    (n+1)^2 (n/2+1)), per block the exact PSD test, per Delsarte row n^2, the caps."""
+    from codesearch.verify.three_point import block_psd_work
+
+    steps = n ** 4
+    for j, (_, weights, mat) in enumerate(blocks):
+        m = len(weights)
+        steps += m * m * (n + 1) ** 2 * (n // 2 + 1) + block_psd_work(mat, j)
+    steps += sum(n * n if name == "delsarte" else 1 for name, _, _ in multipliers)
+    return steps
+
+
 def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
-    """Re-check a ``qary-three-point-sdp`` certificate; returns ``(valid, bound, reason)``."""
-    q, n, d = (cert[k] for k in ("q", "n", "d"))
-    if any(isinstance(v, bool) or not isinstance(v, int) for v in (q, n, d)):
-        raise ValueError("q, n, d must be integers")
-    claimed = int(cert["value"])
-    if q < 3 or not 1 <= d <= n <= MAX_N:
+    """Re-check a ``qary-three-point-sdp`` certificate; returns ``(valid, bound, reason)``.
+
+    Fields are read strictly (as :func:`codesearch.verify.three_point.check_three_point_certificate`
+    does): q in 3..36, n <= :data:`MAX_N`, integer labels, exact rationals, sizes within the
+    caps before any work; ``bound`` (when given) must be exactly what the dual proves and
+    ``value`` its floor.
+    """
+    from codesearch.model import MAX_Q
+    from codesearch.verify import strict
+    from codesearch.verify.three_point import compare_claims, read_block, read_row
+
+    what = "certificate"
+    q = strict.get_int(cert, "q", what, 2, MAX_Q)
+    n = strict.get_int(cert, "n", what, 1, MAX_N)
+    d = strict.get_int(cert, "d", what, 1, n)
+    claimed = strict.get_int(cert, "value", what, 0, None)
+    exact_claim = (strict.rational(cert["bound"], "certificate: bound", allow_int=False)
+                   if "bound" in cert else None)
+    if q < 3:
         return False, None, f"bad cell q={q}, n={n}, d={d} for a q-ary three-point certificate"
+    blocks = [read_block(b, j, n, ("family", "a", "k")) for j, b in
+              enumerate(strict.get_list(cert, "blocks", what, 2 * (n + 1) ** 2))]
+    mults = [read_row(m, j, _ROW_SHAPES)
+             for j, m in enumerate(strict.get_list(cert, "multipliers", what, strict.MAX_ROWS))]
+    strict.check_work(_work(n, blocks, mults), f"q-ary three-point certificate for n={n}")
 
     def ok_index(i: int, j: int, t: int, p: int) -> bool:
         return 0 <= p <= t <= min(i, j) and i + j - t <= n and i >= 0 and j >= 0
@@ -142,15 +178,13 @@ def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
 
     memo: dict = {}
     seen = set()
-    for block in cert["blocks"]:
-        family, a, k = int(block["family"]), int(block["a"]), int(block["k"])
+    for (family, a, k), weights, matrix in blocks:
         if family not in (0, 1) or not 0 <= a <= k or 2 * k > n + a or (family, a, k) in seen:
             return False, None, f"bad block family={family}, a={a}, k={k}"
         seen.add((family, a, k))
-        weights = [int(w) for w in block["weights"]]
         if len(set(weights)) != len(weights) or any(not k <= w <= n + a - k for w in weights):
             return False, None, f"bad weights in block ({family},{a},{k})"
-        read = read_psd_block(block["matrix"], len(weights), f"block ({family},{a},{k})")
+        read = read_psd_block(matrix, len(weights), f"block ({family},{a},{k})")
         if isinstance(read, str):
             return False, None, read
         mat, den = read
@@ -182,13 +216,12 @@ def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
             add(triangle, Fraction(value, den))
 
     cw: dict = {}
-    for mult in cert["multipliers"]:
-        label = list(mult["row"])
-        mu = parse_rational(mult["value"])
+    for name, idx, mu in mults:
+        label = [name, *idx]
         if mu < 0:
             return False, None, f"negative multiplier on row {label}"
         if label[0] in ("upper", "pair"):
-            i, j, t, p = (int(v) for v in label[1:5])
+            i, j, t, p = idx
             if not ok_index(i, j, t, p):
                 return False, None, f"bad row {label}"
             if label[0] == "upper":  # x[i,j,t,p] - x[i,0,0,0] <= 0
@@ -200,13 +233,13 @@ def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
                 add(tri(j, 0, 0, 0), -mu)
                 add(tri(i, j, t, p), mu)
         elif label[0] == "weight":  # C(n,i)(q-1)^i x[i,0,0,0] <= B_q(n,d,i)
-            i = int(label[1])
+            i = idx[0]
             if not 1 <= i <= n:
                 return False, None, f"bad row {label}"
             const += mu * _cw_cap(q, n, d, i, cw)
             add(tri(i, 0, 0, 0), -mu * _binom(n, i) * (q - 1) ** i)
         elif label[0] == "delsarte":  # -sum_i C(n,i)(q-1)^i K_k(i) x[i,0,0,0] <= 0
-            k = int(label[1])
+            k = idx[0]
             if not 0 <= k <= n:
                 return False, None, f"bad row {label}"
             for i in range(n + 1):
@@ -228,8 +261,5 @@ def check_qary_three_point(cert: Mapping[str, Any]) -> tuple[bool, int | None, s
                   * (q - 1) ** (a_ + b_ - t) * (q - 2) ** s_)
         caps = sorted(1 if v == 0 else _cw_cap(q, n, d, v, cw) for v in (a_, b_, c_))
         const += r * min(Fraction(1), Fraction(caps[0] * caps[1], shapes))
-    proven = math.floor(const)
-    if claimed < proven:
-        return False, None, f"claimed {claimed} but the certificate proves only {proven}"
-    return True, claimed, (f"q-ary three-point SDP bound A_{q}({n},{d}) <= {proven} "
-                           f"(exact {float(const):.6f})")
+    return compare_claims(const, exact_claim, claimed,
+                          f"q-ary three-point SDP bound A_{q}({n},{d})")

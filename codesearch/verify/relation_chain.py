@@ -31,6 +31,9 @@ from __future__ import annotations
 import math
 from typing import Any, Callable, Mapping
 
+from codesearch.model import MAX_Q
+from codesearch.verify import strict
+
 #: the table's entry point, passed in by :mod:`codesearch.verify.certificates` (the nested
 #: certificates may be of any kind)
 Checker = Callable[[Mapping[str, Any]], tuple[bool, "int | None", str]]
@@ -41,21 +44,18 @@ __all__ = ["check_relation_chain", "check_theorem", "MAX_DEPTH"]
 MAX_DEPTH = 200
 
 
-def _cell(cert: Mapping[str, Any]) -> tuple[int, int, int]:
-    q, n, d = (cert[k] for k in ("q", "n", "d"))
-    for name, v in (("q", q), ("n", n), ("d", d)):
-        if isinstance(v, bool) or not isinstance(v, int):
-            raise ValueError(f"{name} must be an integer")
-    if not (2 <= q and 1 <= d <= n):
-        raise ValueError(f"bad cell q={q}, n={n}, d={d}")
+def _cell(cert: Any, what: str = "certificate") -> tuple[int, int, int]:
+    """The cell ``(q, n, d)`` of a certificate or a citation, read strictly (q <= 36, n <= the
+    bounds limit 4096)."""
+    strict.mapping(cert, what)
+    q = strict.get_int(cert, "q", what, 2, MAX_Q)
+    n = strict.get_int(cert, "n", what, 1, 4096)
+    d = strict.get_int(cert, "d", what, 1, n)
     return q, n, d
 
 
-def _value(cert: Mapping[str, Any], key: str = "value") -> int:
-    v = cert[key]
-    if isinstance(v, bool) or not isinstance(v, int) or v < 0:
-        raise ValueError(f"{key} must be a nonnegative integer")
-    return v
+def _value(cert: Mapping[str, Any], what: str = "certificate") -> int:
+    return strict.get_int(cert, "value", what, 0, None)
 
 
 def _rule(rule: str, q: int, n: int, d: int) -> tuple[tuple[int, int, int], int] | None:
@@ -83,7 +83,7 @@ def check_theorem(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
     """Recompute a closed-form bound (``singleton`` or ``hamming``) and compare."""
     q, n, d = _cell(cert)
     claimed = _value(cert)
-    name = cert["theorem"]
+    name = strict.get_str(cert, "theorem", "certificate")
     if name == "singleton":
         proven = q ** (n - d + 1)
     elif name == "hamming":
@@ -91,7 +91,7 @@ def check_theorem(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
         proven = q**n // sum(math.comb(n, i) * (q - 1) ** i for i in range(t + 1))
     else:
         return False, None, f"theorem {name!r} cannot be re-checked from the file"
-    if claimed < proven:
+    if claimed != proven:
         return False, None, f"claimed {claimed} but {name} gives {proven}"
     return True, claimed, f"{name} bound A_{q}({n},{d}) <= {proven}"
 
@@ -108,22 +108,23 @@ def check_relation_chain(cert: Mapping[str, Any], check: Checker, _depth: int = 
         return False, None, "relation chain nested too deeply"
     q, n, d = _cell(cert)
     claimed = _value(cert)
-    rule = cert["rule"]
+    rule = strict.get_str(cert, "rule", "certificate")
     spec = _rule(rule, q, n, d)
     if spec is None:
-        return False, None, f"rule {rule!r} does not apply to A_{q}({n},{d})"
+        return False, None, f"rule {strict.short(rule)} does not apply to A_{q}({n},{d})"
     cell, mult = spec
-    cites = cert["cites"]
-    if not isinstance(cites, list) or len(cites) != 1:
+    cites = strict.get_list(cert, "cites", "certificate", 1)
+    if len(cites) != 1:
         return False, None, "a relation cites exactly one cell"
     cite = cites[0]
-    if _cell(cite) != cell:
-        return False, None, f"rule {rule} needs A_{cell[0]}({cell[1]},{cell[2]}), cited {_cell(cite)}"
-    used = _value(cite)
-    inner = cite["certificate"]
+    if _cell(cite, "certificate: cites[0]") != cell:
+        return False, None, (f"rule {rule} needs A_{cell[0]}({cell[1]},{cell[2]}), "
+                             f"cited {_cell(cite)}")
+    used = _value(cite, "certificate: cites[0]")
+    inner = strict.field(cite, "certificate", "certificate: cites[0]")
     if not isinstance(inner, Mapping):
         return False, None, "cited bound has no certificate"
-    where = _cell(inner)
+    where = _cell(inner, "certificate: cites[0].certificate")
     cq, cn, cd = cell
     if where != cell and not (cq == 2 and cd % 2 == 1 and where == (2, cn + 1, cd + 1)):
         return False, None, f"cited certificate is for {where}, not {cell}"
@@ -136,6 +137,6 @@ def check_relation_chain(cert: Mapping[str, Any], check: Checker, _depth: int = 
     if bound > used:
         return False, None, f"cited A_{cq}({cn},{cd}) <= {used} but its certificate proves {bound}"
     proven = mult * used
-    if claimed < proven:
+    if claimed != proven:
         return False, None, f"claimed {claimed} but {rule} gives {proven}"
     return True, claimed, f"A_{q}({n},{d}) <= {proven} by {rule} from A_{cq}({cn},{cd}) <= {used}"

@@ -77,14 +77,21 @@ def check_cell_relation(p: Params, value: int, cert: Mapping[str, Any],
     "bound_id", "value"}, ...]}``; every cited bound must exist (``lookup``), be certified and
     match what the certificate says of it.
     """
+    from codesearch.verify import strict
+
     cited = []
-    for ref in cert.get("cites", []):
-        row = lookup(int(ref["bound_id"]))
+    for j, ref in enumerate(strict.get_list(cert, "cites", "relation", 4)):
+        where = f"relation: cites[{j}]"
+        strict.mapping(ref, where)
+        for key in ("q", "n", "d", "value"):
+            strict.get_int(ref, key, where, 0, None)
+        row = lookup(strict.get_int(ref, "bound_id", where, 0, None))
         if row is None or not row[4]:
             raise VerificationError(f"relation for {p} cites a missing or uncertified bound")
         if (row[0], row[1], row[2]) != (ref["q"], ref["n"], ref["d"]) or row[3] != ref["value"]:
             raise VerificationError(f"relation for {p} cites bound {ref['bound_id']} wrongly")
         cited.append((Params(row[0], row[1], row[2]), int(row[3])))
-    implied = relation_value(str(cert.get("rule")), p, cited)
+    rule = strict.get_str(cert, "rule", "relation")
+    implied = relation_value(rule, p, cited)
     if implied is None or implied > int(value):
         raise VerificationError(f"relation {cert.get('rule')!r} does not give {value} for {p}")

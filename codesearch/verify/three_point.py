@@ -19,9 +19,14 @@ import math
 from fractions import Fraction
 from typing import Any, Mapping
 
-from codesearch.verify.exact import parse_fraction
+from codesearch.errors import InputError
+from codesearch.verify import strict
 
-__all__ = ["check_three_point_certificate"]
+__all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row"]
+
+#: Longest code whose three-point certificate is read.
+MAX_N = 128
+_WHAT = "certificate"
 
 
 # Schrijver's three-point semidefinite bound (A. Schrijver, IEEE Trans. Inform. Theory 51
@@ -150,21 +155,55 @@ class _Objective:
             self.coef[triangle] = self.coef.get(triangle, Fraction(0)) + value
 
 
-def _add_block(obj: _Objective, block: Mapping[str, Any], seen: set,
-               beta_memo: dict) -> str | None:
+def read_block(block: Any, j: int, n: int, keys: tuple[str, ...]
+               ) -> tuple[tuple[int, ...], list[int], list[list[Fraction]]]:
+    """Strictly read dual block ``j``: its integer labels ``keys`` (each in 0..n), its
+    ``weights`` (at most n+1 integers in 0..n) and its square ``matrix`` of exact rationals
+    matching the weights; sizes are checked before the entries are parsed."""
+    where = f"certificate: blocks[{j}]"
+    strict.mapping(block, where)
+    labels = tuple(strict.get_int(block, key, where, 0, n) for key in keys)
+    weights = [strict.integer(w, f"{where}: weights[{r}]", 0, n)
+               for r, w in enumerate(strict.get_list(block, "weights", where, n + 1))]
+    m = len(weights)
+    rows = strict.get_list(block, "matrix", where, m, length=m)
+    mat = []
+    for r, row in enumerate(rows):
+        if not isinstance(row, list) or len(row) != m:
+            raise InputError(f"{where}: matrix row {r} must be a list of {m} rationals")
+        mat.append([strict.rational(v, f"{where}: matrix[{r}][{s}]") for s, v in enumerate(row)])
+    return labels, weights, mat
+
+
+def read_row(mult: Any, j: int, shapes: Mapping[str, int]) -> tuple[str, list[int], Fraction]:
+    """Strictly read multiplier ``j``: ``row`` = a known label followed by its integer
+    indices (``shapes``: label -> number of indices), and its exact ``value``."""
+    where = f"certificate: multipliers[{j}]"
+    strict.mapping(mult, where)
+    label = strict.field(mult, "row", where)
+    if not isinstance(label, list) or not label or not isinstance(label[0], str):
+        raise InputError(f"{where}: row must be a list [name, index, ...], got "
+                         f"{strict.short(label)}")
+    if label[0] not in shapes or len(label) != 1 + shapes[label[0]]:
+        raise InputError(f"{where}: unknown row {strict.short(label)}")
+    idx = [strict.integer(v, f"{where}: row index", None, None) for v in label[1:]]
+    if any(abs(v) > 1 << 20 for v in idx):
+        raise InputError(f"{where}: row index out of range in {strict.short(label)}")
+    return label[0], idx, strict.rational(strict.field(mult, "value", where),
+                                          f"{where}: value")
+
+
+def _add_block(obj: _Objective, block: tuple[tuple[int, ...], list[int], list[list[Fraction]]],
+               seen: set, beta_memo: dict) -> str | None:
     """Add ``<Z, B(x)>`` of one dual block; the reason it is rejected, or None."""
     n = obj.n
-    family, k = int(block["family"]), int(block["k"])
-    weights = [int(w) for w in block["weights"]]
+    (family, k), weights, mat = block
     if family not in (0, 1) or not 0 <= k <= n // 2 or (family, k) in seen:
         return f"bad block family={family}, k={k}"
     seen.add((family, k))
     if len(set(weights)) != len(weights) or any(not k <= w <= n - k for w in weights):
         return f"bad weights in block family={family}, k={k}"
-    mat = [[parse_fraction(v) for v in row] for row in block["matrix"]]
     m = len(weights)
-    if len(mat) != m or any(len(row) != m for row in mat):
-        return f"block family={family}, k={k} is not {m}x{m}"
     if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
         return f"block family={family}, k={k} is not symmetric"
     if not _tp_psd(mat):
@@ -206,16 +245,21 @@ def _add_block(obj: _Objective, block: Mapping[str, Any], seen: set,
     return None
 
 
-def _add_multiplier(obj: _Objective, mult: Mapping[str, Any], johnson_memo: dict) -> str | None:
+#: Row label -> number of integer indices after it.
+_ROW_SHAPES = {"upper": 3, "pair": 3, "weight": 1, "delsarte": 1}
+
+
+def _add_multiplier(obj: _Objective, mult: tuple[str, list[int], Fraction],
+                    johnson_memo: dict) -> str | None:
     """Add ``mu (rhs - row(x))`` of one linear row; the reason it is rejected, or None."""
     n, d = obj.n, obj.d
-    label = list(mult["row"])
-    mu = parse_fraction(mult["value"])
+    name, idx, mu = mult
+    label = [name, *idx]
     if mu < 0:
         return f"negative multiplier on row {label}"
     tri, add = obj.tri, obj.add
     if label[0] in ("upper", "pair"):
-        i, j, t = (int(v) for v in label[1:4])
+        i, j, t = idx
         if not obj.ok_index(i, j, t):
             return f"bad row {label}"
         if label[0] == "upper":  # x[i,j,t] - x[i,0,0] <= 0
@@ -227,13 +271,13 @@ def _add_multiplier(obj: _Objective, mult: Mapping[str, Any], johnson_memo: dict
             add(tri(j, 0, 0), -mu)
             add(tri(i, j, t), mu)
     elif label[0] == "weight":  # C(n,i) x[i,0,0] <= A(n,d,i) (Johnson)
-        i = int(label[1])
+        i = idx[0]
         if not 1 <= i <= n:
             return f"bad row {label}"
         obj.const += mu * _tp_johnson(n, (d + 1) // 2, i, johnson_memo)
         add(tri(i, 0, 0), -mu * _tp_binom(n, i))
     elif label[0] == "delsarte":  # -sum_i C(n,i) K_k(i) x[i,0,0] <= 0
-        k = int(label[1])
+        k = idx[0]
         if not 0 <= k <= n:
             return f"bad row {label}"
         for i in range(n + 1):
@@ -265,6 +309,28 @@ def _capped_total(obj: _Objective, johnson_memo: dict) -> Fraction:
     return total
 
 
+def block_psd_work(mat: list[list[Fraction]], j: int) -> int:
+    """Steps of the exact PSD test of one block: m^3 eliminations on integers of up to
+    m (log2 den + log2 max numerator) bits (fraction-free), one step per 64-bit limb; the
+    block's common denominator is refused past the cap first."""
+    m = len(mat)
+    den = strict.common_denominator((z for row in mat for z in row),
+                                    f"certificate: blocks[{j}]")
+    top = max((abs(z.numerator).bit_length() for row in mat for z in row), default=1)
+    return m ** 3 * (1 + m * (den.bit_length() + top) // 64)
+
+
+def _work(n: int, blocks: list, multipliers: list) -> int:
+    """Elementary steps of the check: per block entry the t and u loops of beta (at most
+    (n/2+1)^2), per block the exact PSD test, per Delsarte row n^2, and the caps."""
+    steps = n ** 3
+    for j, (_, weights, mat) in enumerate(blocks):
+        m = len(weights)
+        steps += m * m * (n // 2 + 1) ** 2 + block_psd_work(mat, j)
+    steps += sum(n * n if name == "delsarte" else 1 for name, _, _ in multipliers)
+    return steps
+
+
 def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
     """Re-check a ``"three-point-sdp"`` certificate in exact arithmetic.
 
@@ -272,41 +338,76 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
     same, or ``n+1, d+1`` for odd ``d`` since ``A(n,d) = A(n+1,d+1)``), ``even`` (only even
     distances, allowed for even ``sdp_d``), dual ``blocks`` (``family`` 0 or 1, ``k``, row
     ``weights``, a symmetric ``matrix`` of ``"p/q"`` strings), ``multipliers`` (``row``
-    label and ``"p/q"`` value) and the claimed integer ``value``.
+    label and ``"p/q"`` value), the exact value ``bound`` (``"p/q"``) and the claimed integer
+    ``value``. Every field is read strictly (exact types, sizes within :data:`MAX_N` and the
+    work cap); the certificate holds only if ``bound`` is exactly what the dual proves and
+    ``value`` is its floor.
 
     Returns
     -------
     (valid, bound, reason)
+
+    Raises
+    ------
+    InputError
+        A malformed field, or a check past the caps (said before the work starts).
     """
-    if int(cert["q"]) != 2:
+    q = strict.get_int(cert, "q", _WHAT, 2, None)
+    if q != 2:
         return False, None, "three-point certificates are for binary codes"
-    n0, d0 = int(cert["n"]), int(cert["d"])
-    n, d = int(cert["sdp_n"]), int(cert["sdp_d"])
-    even = bool(cert["even"])
-    claimed = int(cert["value"])
-    if not 1 <= d0 <= n0:
-        return False, None, f"bad cell n={n0}, d={d0}"
+    n0 = strict.get_int(cert, "n", _WHAT, 1, MAX_N)
+    d0 = strict.get_int(cert, "d", _WHAT, 1, n0)
+    n = strict.get_int(cert, "sdp_n", _WHAT, 1, MAX_N + 1)
+    d = strict.get_int(cert, "sdp_d", _WHAT, 1, n)
+    even = strict.get_bool(cert, "even", _WHAT)
+    claimed = strict.get_int(cert, "value", _WHAT, 0, None)
+    exact_claim = (strict.rational(cert["bound"], "certificate: bound", allow_int=False)
+                   if "bound" in cert else None)
     if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
         return False, None, f"program cell ({n},{d}) does not bound A({n0},{d0})"
     if even and d % 2:
         return False, None, "the even-distance restriction needs even d"
+    blocks = [read_block(b, j, n, ("family", "k"))
+              for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, 2 * (n // 2 + 1)))]
+    mults = [read_row(m, j, _ROW_SHAPES)
+             for j, m in enumerate(strict.get_list(cert, "multipliers", _WHAT, strict.MAX_ROWS))]
+    strict.check_work(_work(n, blocks, mults), f"three-point certificate for n={n}")
     obj = _Objective(n, d, even)
     for i in range(1, n + 1):
         obj.add(obj.tri(i, 0, 0), Fraction(_tp_binom(n, i)))
     seen: set = set()
     beta_memo: dict = {}
-    for block in cert["blocks"]:
+    for block in blocks:
         reason = _add_block(obj, block, seen, beta_memo)
         if reason is not None:
             return False, None, reason
     johnson_memo: dict = {}
-    for mult in cert["multipliers"]:
+    for mult in mults:
         reason = _add_multiplier(obj, mult, johnson_memo)
         if reason is not None:
             return False, None, reason
     total = _capped_total(obj, johnson_memo)
+    return compare_claims(total, exact_claim, claimed, f"three-point SDP bound A({n0},{d0})")
+
+
+def compare_claims(total: Fraction, exact_claim: Fraction | None, claimed: int, what: str
+                   ) -> tuple[bool, int | None, str]:
+    """The verdict of an SDP certificate: ``bound`` (when given) must be exactly the value
+    the dual proves and ``value`` its floor, as for the LP certificates."""
     proven = math.floor(total)
+    if exact_claim is not None and exact_claim != total:
+        return False, None, (f"bound field is {exact_claim}, the certificate proves "
+                             f"{_approx(total)}")
     if claimed < proven:
         return False, None, f"claimed {claimed} but the certificate proves only {proven}"
-    reason = f"three-point SDP bound A({n0},{d0}) <= {proven} (exact {float(total):.6f})"
-    return True, claimed, reason
+    if claimed > proven:
+        return False, None, (f"claimed {claimed} but the certificate proves {proven}: the "
+                             f"claim must be what it proves")
+    return True, claimed, f"{what} <= {proven} (exact {_approx(total)})"
+
+
+def _approx(x: Fraction) -> str:
+    """A rational shown to six decimals, exactly (no float overflow)."""
+    sign = "-" if x < 0 else ""
+    scaled = round(abs(x) * 10**6)
+    return f"{sign}{scaled // 10**6}.{scaled % 10**6:06d}"
