@@ -194,19 +194,12 @@ def qary_sets(draw):
 
 @given(qary_sets(), st.integers(1, 5))
 def test_qary_ball_clash_equals_twin(code, d):
-    from codesearch.verify.codes import _qary_patterns
+    from codesearch.verify.codes import qary_ball_patterns
 
     q, n = code.q, code.n
-    r = (d - 1) // 2
-    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
-    probe_from = ptr.size - 1
-    if d % 2 == 0:
-        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
-        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
-        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
     idx = np.ascontiguousarray(code.words.astype(np.int64) @ (q ** np.arange(n, dtype=np.int64)))
-    clash = int(_kernels.qary_ball_clash(idx, q, n, ptr, pos, add, probe_from)) >= 0
-    assert clash == ref.qary_ball_clash(code.words, r, d % 2 == 0)
+    clash = int(_kernels.qary_ball_clash(idx, q, n, *qary_ball_patterns(q, n, d))) >= 0
+    assert clash == ref.qary_ball_clash(code.words, (d - 1) // 2, d % 2 == 0)
 
 
 def test_large_qary_code_on_the_bitmap():

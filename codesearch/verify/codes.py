@@ -287,6 +287,21 @@ def _qary_patterns(q: int, n: int, radii: range) -> tuple[np.ndarray, np.ndarray
             np.array(add, dtype=np.int64))
 
 
+def qary_ball_patterns(q: int, n: int, d: int
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray, int]:
+    """The arguments of the kernel ``qary_ball_clash`` after the words: the patterns of the
+    radius-r ball (r = floor((d-1)/2)), then for even d those of the radius-(r+1) sphere, and
+    the index of the first sphere pattern."""
+    r = max(0, (d - 1) // 2)
+    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
+    probe_from = ptr.size - 1
+    if d % 2 == 0:
+        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
+        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
+        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
+    return ptr, pos, add, probe_from
+
+
 def _qary_bitmap_cost(code: Code, d: int) -> tuple[str, int, int] | None:
     q, n, m = code.q, code.n, code.size
     if q**n > QARY_BITMAP_MAX_WORDS:
@@ -313,16 +328,9 @@ def assert_large_qary(code: Code, d: int) -> str:
         assert_min_distance(code, d)
         return "pairs"
     q, n = code.q, code.n
-    r = max(0, (d - 1) // 2)
-    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
-    probe_from = ptr.size - 1
-    if d % 2 == 0:
-        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
-        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
-        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
     idx = code.words.astype(np.int64) @ (q ** np.arange(n, dtype=np.int64))
-    bad = int(_kernels().qary_ball_clash(np.ascontiguousarray(idx), q, n, ptr, pos, add,
-                                         probe_from))
+    bad = int(_kernels().qary_ball_clash(np.ascontiguousarray(idx), q, n,
+                                         *qary_ball_patterns(q, n, d)))
     if bad >= 0:
         raise VerificationError(
             f"row {bad} lies within distance {d - 1} of another row; the code does not have "
