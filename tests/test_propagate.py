@@ -163,3 +163,7 @@ def test_derived_codes_cite_family_and_operations(tmp_path):
         # never A(n+1, d) < A(n, d) in the table
         lows = [s.summary(p).lower for p in cells]
         assert lows == sorted(lows)
+    from codesearch.report import write_report
+
+    page = write_report(str(tmp_path / "s.sqlite"), "html")
+    assert "3x shortened extended Golay(24,12)" in page

@@ -429,11 +429,20 @@ def _html_cell(r: CellRow | None, q: int, n: int, d: int) -> str:
             f"{e(r.text)}{sup}{e(r.mark)}</a>{meter}</td>")
 
 
+def _made_by(r: CellRow) -> str | None:
+    """How the cell's best code was made, when the store says ("3x shortened extended
+    Golay(24,12)"): the construction or derivation label in its provenance."""
+    prov = r.lower_provenance or {}
+    label = prov.get("label") or prov.get("construction")
+    return str(label) if label else None
+
+
 def _html_ledger_row(r: CellRow, store: Any) -> str:
     e = html.escape
     cell = f"A({r.n},{r.d})" if r.q == 2 else f"A<sub>{r.q}</sub>({r.n},{r.d})"
+    made = _made_by(r)
     lower = "-" if r.lower is None else (
-        f"{r.lower} by {e(r.lower_method or '-')}"
+        f"{r.lower} by {e(r.lower_method or '-')}" + (f" ({e(made)})" if made else "")
         + (f", {r.lower_seconds:.2f} s" if r.lower_seconds is not None else ""))
     dl = _code_download(store, r)
     if dl:
