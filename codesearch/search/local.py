@@ -155,6 +155,10 @@ def _repair(st: _State, M: int, total: int, steps: int | None, ctx: Context
         work = 2 * st.ball + M * st.n_cand if st.mode == 1 else 4 * st.n_cand * M
         chunk = max(1, min(_CHUNK, 50_000_000 // work))
         left = ctx.time_left()
+        if rate is None and left is not None:
+            # the estimate above can be far off (q-ary balls of 10^5 words, where a move
+            # scores every candidate through its ball): measure on a few moves first
+            chunk = min(chunk, 8)
         if rate is not None and left is not None:
             # never plan a call past the deadline (nor longer than 0.1 s) at the rate seen
             chunk = max(1, min(chunk, int(rate * min(0.1, max(left, 0.0)))))
