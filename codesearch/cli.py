@@ -539,7 +539,10 @@ def _add_construct(sub: argparse._SubParsersAction) -> None:
         "a family code (codesearch.constructions.build_family); 'construct --cell N D [--q Q]' "
         "lists the families and chains of operations that give a code for the cell, largest "
         "first (codesearch.constructions.candidates), and with --out writes the best "
-        "(codesearch.constructions.best); 'construct --families' lists the families.",
+        "(codesearch.constructions.best); 'construct --families' lists the families; "
+        "'construct --coset-union D (FAMILY --param ... | --inner-cell N D0) [--dimension K]' "
+        "searches the largest union of cosets of that binary linear code with distance >= D "
+        "(codesearch.constructions.command.coset_union_run).",
     )
     p.add_argument("family", nargs="?", help="family name (see --families)")
     p.add_argument("--param", action="append", metavar="NAME=VALUE",
@@ -553,6 +556,19 @@ def _add_construct(sub: argparse._SubParsersAction) -> None:
                    help="write a linear code as its generator matrix (always done past 2^16 words)")
     p.add_argument("--max-words", type=int, help="with --cell --out: largest nonlinear code built")
     p.add_argument("--json", action="store_true", help="print JSON")
+    g = p.add_argument_group("coset unions")
+    g.add_argument("--coset-union", type=int, metavar="D",
+                   help="search a union of cosets of the inner code (FAMILY or --inner-cell) "
+                   "with distance >= D")
+    g.add_argument("--inner-cell", nargs=2, type=int, metavar=("N", "D0"),
+                   help="inner code: the best linear construction of length N, distance D0")
+    g.add_argument("--dimension", type=int, metavar="K",
+                   help="use a random K-dimensional subcode of the inner code (seeded)")
+    g.add_argument("--seed", type=int, default=0, help="seed (subcode, greedy restarts)")
+    g.add_argument("--method", choices=["auto", "exact", "greedy"], default="auto",
+                   help="clique stage: exact branch and bound, greedy restarts, or auto")
+    g.add_argument("--time-limit", type=float, default=10.0, help="seconds for the clique stage")
+    g.add_argument("--goal", type=int, metavar="M", help="stop at a union of M cosets")
     _COMMANDS["construct"] = _cmd_construct
 
 
@@ -566,6 +582,19 @@ def _cmd_construct(args: argparse.Namespace) -> int:
         else:
             for r in rows:
                 print(f"{r['family']:<20} {' '.join(r['parameters']):<28} {r['summary']}")
+        return 0
+    if args.coset_union is not None:
+        summary = command.coset_union_run(
+            args.coset_union, args.family, command.parse_params(args.param),
+            tuple(args.inner_cell) if args.inner_cell else None, args.dimension, args.seed,
+            args.method, args.time_limit, args.goal, args.out)
+        if args.json:
+            _print_json(summary)
+        else:
+            status = "largest for this inner code" if summary["optimal"] else "not proved largest"
+            print(f"{summary['provenance']}: n={summary['n']}, {summary['size']} words, "
+                  f"d>={summary['d']} (verified; {summary['method']} search, {status})"
+                  + (f"; wrote {summary['file']}" if summary["file"] else ""))
         return 0
     if args.cell:
         from codesearch.model import Params

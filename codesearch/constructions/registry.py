@@ -522,9 +522,30 @@ def _searched_instances(q: int, nmax: int) -> Iterator[Instance]:
             yield _searched_describe(key)
 
 
+# ------------------------------------------------------------------------------ coset unions
+def _cosets_describe(key: str) -> Instance:
+    from codesearch.constructions.cosets import RECORDS, leading_balance
+
+    _need(key in RECORDS, f"coset unions: key one of {', '.join(RECORDS) or '(none recorded)'}")
+    rec = RECORDS[key]
+    return _inst("coset-union", {"key": key}, 2, rec.n, rec.d, rec.size, rec.label, False,
+                 balanced=leading_balance(rec.generator))
+
+
+def _cosets_instances(q: int, nmax: int) -> Iterator[Instance]:
+    from codesearch.constructions.cosets import RECORDS
+
+    if q != 2:
+        return
+    for key, rec in RECORDS.items():
+        if rec.n <= nmax:
+            yield _cosets_describe(key)
+
+
 # ------------------------------------------------------------------------------ registry
 def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
     from codesearch.constructions import algebraic as al
+    from codesearch.constructions import cosets as cs
     from codesearch.constructions import hadamard as hd
     from codesearch.constructions import partition as pt
     from codesearch.constructions import searched as sr
@@ -550,6 +571,7 @@ def _builders() -> dict[str, Callable[..., Code | LinearCode]]:
         "orbit": lambda key: sp.orbit_code(key),
         "nr-tails": lambda a: sp.nr_tail_code(a),
         "searched": lambda key: sr.searched_code(key),
+        "coset-union": lambda key: cs.coset_union_from_record(key),
     }
 
 
@@ -607,6 +629,9 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
            _nrtail_instances),
     Family("searched", "binary linear code found by a recorded seeded search (key: the record)",
            ("key",), _searched_describe, _lazy("searched"), _searched_instances),
+    Family("coset-union", "binary union of cosets of a linear code found by a recorded seeded "
+           "coset-union search (key: the record)", ("key",), _cosets_describe,
+           _lazy("coset-union"), _cosets_instances),
 ]}
 
 

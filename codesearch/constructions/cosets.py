@@ -1,0 +1,433 @@
+"""Unions of cosets of a binary linear code: a search over syndromes, and its recorded results.
+
+Problem
+-------
+Given a binary linear code L = [n, k, d_L] and a target distance d <= d_L, find many words
+x_1 = 0, x_2, .., x_m such that the union of the cosets x_i + L has minimum distance >= d.
+The union has m 2^k words.
+
+Method
+------
+Two words of one coset differ by a nonzero word of L (weight >= d_L >= d). A word of x_i + L
+and one of x_j + L differ by a word of the coset x_i + x_j + L, so the union has distance
+>= d exactly when every coset x_i + x_j + L (i != j) has minimum weight >= d. A coset is
+named by its syndrome s = H x^T (H a parity-check matrix, r = n - k rows), and its minimum
+weight w(s) is the least number of columns of H summing to s: a breadth-first search over
+the 2^r syndromes, adding one column per level, finds every w(s) and a word of that weight
+(:func:`coset_weights`, O(2^r n)). The good unions are then exactly the cliques containing 0
+of the Cayley graph on F_2^r whose connection set is S = {s : w(s) >= d}; the graph is
+vertex-transitive, so fixing 0 loses nothing and the search runs on the subgraph induced by
+S (s ~ t when w(s + t) >= d).
+
+:func:`coset_union_search` solves that clique problem with the exact branch and bound of
+:mod:`codesearch.search.clique` (only an exhausted search reports the union as the largest for
+this L) or, for large S, with seeded randomised greedy restarts (a heuristic: never optimal).
+
+Records
+-------
+:data:`RECORDS` keeps unions found by such searches (the inner code's generator rows and the
+coset leaders as integers, bit j = coordinate j, with the search parameters and seed), so the
+table rebuilds them in milliseconds; every build is re-verified by the independent checker
+(:func:`codesearch.constructions.registry.build_family`).
+
+References
+----------
+F. J. MacWilliams and N. J. A. Sloane, *The Theory of Error-Correcting Codes*, North-Holland,
+1977: ch. 1 sections 3-4 (cosets, syndromes, coset leaders), ch. 2 section 7 (nonlinear codes
+as unions of cosets of a linear code, e.g. the Nordstrom-Robinson code).
+N. J. A. Sloane and D. S. Whitehead, A new family of single-error correcting codes, *IEEE
+Trans. Inform. Theory* 16 (1970) 717-719 (unions of cosets of linear codes; from memory).
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from codesearch.errors import ParameterError
+from codesearch.model import Code, LinearCode
+
+__all__ = ["CosetWeights", "CosetUnionResult", "CosetRecord", "RECORDS", "coset_weights",
+           "good_syndromes", "coset_union_search", "coset_union_from_record",
+           "union_words", "leading_balance", "random_subcode", "to_record",
+           "MAX_REDUNDANCY"]
+
+#: Largest redundancy r = n - k searched (2^r syndromes held as arrays).
+MAX_REDUNDANCY = 26
+#: Largest connection set handed to the exact clique search (a dense bitset graph).
+MAX_EXACT_VERTICES = 12_000
+
+
+# ----------------------------------------------------------------------------- bits
+def _to_ints(rows: np.ndarray) -> np.ndarray:
+    """0/1 rows -> integers, bit j = column j."""
+    rows = np.asarray(rows, dtype=np.int64)
+    return (rows << np.arange(rows.shape[1], dtype=np.int64)).sum(axis=1)
+
+
+def _to_rows(ints: Any, n: int) -> np.ndarray:
+    ints = np.asarray(list(ints), dtype=np.int64).reshape(-1)
+    return ((ints[:, None] >> np.arange(n, dtype=np.int64)) & 1).astype(np.uint8)
+
+
+def _parity_columns(code: LinearCode) -> np.ndarray:
+    """Columns of a parity-check matrix of ``code`` as integers (bit t = row t)."""
+    from codesearch.gf import field
+
+    h = field(2).null_space(code.generator)
+    if h.shape[0] == 0:
+        return np.zeros(code.n, dtype=np.int64)
+    return _to_ints(np.asarray(h, dtype=np.uint8).T)
+
+
+# ----------------------------------------------------------------------------- weights
+@dataclass(frozen=True)
+class CosetWeights:
+    """Minimum weights of all cosets of a binary linear code.
+
+    Attributes
+    ----------
+    n, k : int
+        Length and dimension of the code.
+    columns : numpy.ndarray
+        The parity-check columns (int64, bit t = row t), r = n - k rows.
+    weight : numpy.ndarray
+        ``weight[s]`` = least weight of a word with syndrome s (uint8, length 2^r).
+    via : numpy.ndarray
+        ``via[s]`` = a column index j such that s + column j has weight ``weight[s] - 1``
+        (-1 for s = 0): following it yields a coset leader.
+    """
+
+    n: int
+    k: int
+    columns: np.ndarray
+    weight: np.ndarray
+    via: np.ndarray
+
+    @property
+    def r(self) -> int:
+        return self.n - self.k
+
+    @property
+    def covering_radius(self) -> int:
+        return int(self.weight.max())
+
+    def leader(self, s: int) -> int:
+        """A word (integer, bit j = coordinate j) of least weight with syndrome ``s``."""
+        word = 0
+        s = int(s)
+        while s:
+            j = int(self.via[s])
+            word ^= 1 << j
+            s ^= int(self.columns[j])
+        return word
+
+    def syndrome(self, word: int) -> int:
+        s = 0
+        for j in range(self.n):
+            if (word >> j) & 1:
+                s ^= int(self.columns[j])
+        return s
+
+
+def coset_weights(code: LinearCode) -> CosetWeights:
+    """Minimum weight of every coset of a binary linear code (breadth-first over syndromes).
+
+    Raises
+    ------
+    ParameterError
+        For a non-binary code or a redundancy n - k above :data:`MAX_REDUNDANCY`.
+    """
+    if code.q != 2:
+        raise ParameterError("coset unions: the inner code must be binary")
+    r = code.n - code.k
+    if not 0 <= r <= MAX_REDUNDANCY:
+        raise ParameterError(f"coset unions: redundancy n - k = {r} is above {MAX_REDUNDANCY} "
+                             f"(2^{r} syndromes)")
+    cols = _parity_columns(code)
+    size = 1 << r
+    weight = np.full(size, 255, dtype=np.uint8)
+    via = np.full(size, -1, dtype=np.int8 if code.n < 128 else np.int16)
+    weight[0] = 0
+    frontier = np.zeros(1, dtype=np.int64)
+    level = 0
+    # invariant: weight[s] is final for every s reached at a level <= the current one
+    while frontier.size:
+        level += 1
+        for j, c in enumerate(cols.tolist()):
+            cand = frontier ^ c
+            new = cand[weight[cand] == 255]
+            weight[new] = level
+            via[new] = j
+        frontier = np.flatnonzero(weight == level).astype(np.int64)
+    if (weight == 255).any():  # cannot happen: H has full row rank r
+        raise ParameterError("coset unions: the parity-check matrix is not of full rank")
+    weight.setflags(write=False)
+    via.setflags(write=False)
+    return CosetWeights(code.n, code.k, cols, weight, via)
+
+
+def good_syndromes(weights: CosetWeights, d: int) -> np.ndarray:
+    """The nonzero syndromes whose cosets have minimum weight >= d (the connection set)."""
+    return np.flatnonzero(weights.weight >= d)[1:] if d > 0 else \
+        np.arange(1, weights.weight.size)
+
+
+# ----------------------------------------------------------------------------- search
+@dataclass(frozen=True)
+class CosetUnionResult:
+    """Outcome of a coset-union search.
+
+    Attributes
+    ----------
+    n, k, d : int
+        Inner code length and dimension, target distance.
+    syndromes : tuple of int
+        Syndromes of the chosen cosets (the first is 0, the inner code itself).
+    leaders : tuple of int
+        A word of each chosen coset (bit j = coordinate j).
+    size : int
+        Words of the union: ``len(syndromes) * 2^k``.
+    optimal : bool
+        True only when the exact search was exhausted: no union of more cosets of this inner
+        code has distance >= d.
+    method : str
+        ``"exact"`` or ``"greedy"``.
+    seed : int
+    connection_set : int
+        Number of nonzero syndromes with coset weight >= d.
+    seconds : float
+    """
+
+    n: int
+    k: int
+    d: int
+    syndromes: tuple[int, ...]
+    leaders: tuple[int, ...]
+    size: int
+    optimal: bool
+    method: str
+    seed: int
+    connection_set: int
+    seconds: float
+
+
+def _greedy(good: np.ndarray, sset: np.ndarray, rng: np.random.Generator, deadline: float,
+            restarts: int, goal: int | None) -> list[int]:
+    """Randomised greedy cliques containing 0: repeatedly add a random remaining candidate,
+    keep the candidates adjacent to it (all of them adjacent to every chosen syndrome)."""
+    best: list[int] = []
+    for _ in range(restarts):
+        cand = sset
+        chosen: list[int] = []
+        while cand.size:
+            # take the best of a few random candidates by how many candidates it keeps
+            picks = rng.choice(cand, size=min(8, cand.size), replace=False)
+            keep = [cand[good[cand ^ p]] for p in picks.tolist()]
+            i = int(np.argmax([x.size for x in keep]))
+            chosen.append(int(picks[i]))
+            cand = keep[i]
+        if len(chosen) > len(best):
+            best = chosen
+        if (goal is not None and len(best) + 1 >= goal) or time.monotonic() > deadline:
+            break
+    return best
+
+
+def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
+                       time_limit: float = 10.0, seed: int = 0, restarts: int = 1000,
+                       goal: int | None = None,
+                       weights: CosetWeights | None = None) -> CosetUnionResult:
+    """Largest union of cosets of ``code`` with minimum distance >= d that the search finds.
+
+    Parameters
+    ----------
+    code : LinearCode
+        The binary inner code L; its minimum distance must be >= d (checked).
+    d : int
+        Target distance.
+    method : {"auto", "exact", "greedy"}
+        ``exact``: branch and bound on the connection set (at most
+        :data:`MAX_EXACT_VERTICES` syndromes); ``greedy``: seeded randomised greedy restarts;
+        ``auto``: exact when the connection set is small enough.
+    time_limit : float
+        Seconds for the clique stage.
+    seed : int
+        Seed of ``numpy.random.default_rng`` (greedy restarts).
+    restarts : int
+        Greedy restarts at most.
+    goal : int, optional
+        Stop as soon as a union of this many cosets is found.
+    weights : CosetWeights, optional
+        Precomputed :func:`coset_weights` of ``code``.
+
+    Returns
+    -------
+    CosetUnionResult
+    """
+    from codesearch import verify
+    from codesearch.model import Params
+
+    if method not in ("auto", "exact", "greedy"):
+        raise ParameterError(f"coset unions: method is auto, exact or greedy, got {method!r}")
+    if not 1 <= d <= code.n:
+        raise ParameterError(f"coset unions: need 1 <= d <= n = {code.n}, got d={d}")
+    t0 = time.monotonic()
+    from codesearch.errors import VerificationError
+
+    try:
+        verify.assert_linear_code(code, Params(2, code.n, d))
+    except VerificationError:
+        raise ParameterError(f"coset unions: the inner code has distance < d = {d}") from None
+    w = coset_weights(code) if weights is None else weights
+    sset = good_syndromes(w, d)
+    good = w.weight >= d
+    if method == "auto":
+        method = "exact" if sset.size <= MAX_EXACT_VERTICES else "greedy"
+    optimal = False
+    if method == "exact":
+        if sset.size > MAX_EXACT_VERTICES:
+            raise ParameterError(f"coset unions: {sset.size} syndromes in the connection set, "
+                                 f"above {MAX_EXACT_VERTICES} for the exact search")
+        chosen: list[int] = []
+        if sset.size:
+            from codesearch.search.clique import bitsets_from_dense, max_clique
+
+            adj = good[sset[:, None] ^ sset[None, :]]
+            res = max_clique(bitsets_from_dense(adj), time_limit=time_limit,
+                             goal=None if goal is None else goal - 1)
+            chosen = [int(sset[v]) for v in res.vertices]
+            optimal = res.optimal
+        else:
+            optimal = True
+    else:
+        rng = np.random.default_rng(seed)
+        chosen = _greedy(good, sset, rng, t0 + time_limit, restarts, goal)
+    syn = (0, *sorted(chosen))
+    leaders = tuple(w.leader(s) for s in syn)
+    return CosetUnionResult(code.n, code.k, d, syn, leaders, len(syn) << code.k, optimal,
+                            method, seed, int(sset.size), time.monotonic() - t0)
+
+
+def random_subcode(code: LinearCode, k: int, seed: int) -> LinearCode:
+    """A k-dimensional subcode of a binary linear code: the span of k random combinations of
+    its generator rows (``numpy.random.default_rng(seed)``, redrawn until independent)."""
+    from codesearch.gf import field
+
+    if not 1 <= k <= code.k:
+        raise ParameterError(f"coset unions: subcode dimension must be 1..{code.k}, got {k}")
+    if k == code.k:
+        return code
+    gf = field(2)
+    rng = np.random.default_rng(seed)
+    while True:
+        a = rng.integers(0, 2, (k, code.k), dtype=np.uint8)
+        if gf.rank(a) == k:
+            return LinearCode(gf.matmul(a, code.generator), 2)
+
+
+# ----------------------------------------------------------------------------- records
+def union_words(generator_rows: tuple[int, ...], leaders: tuple[int, ...], n: int) -> Code:
+    """The union of the cosets ``leader + span(generator_rows)`` as an explicit code."""
+    span = np.zeros(1, dtype=np.int64)
+    for g in generator_rows:
+        span = np.concatenate([span, span ^ int(g)])
+    words = (np.asarray(leaders, dtype=np.int64)[:, None] ^ span[None, :]).reshape(-1)
+    return Code(_to_rows(np.unique(words), n), 2)
+
+
+def leading_balance(generator_rows: tuple[int, ...]) -> int:
+    """The largest b such that the code's words restricted to coordinates 0..b-1 take every
+    value equally often (the generator restricted there has rank b): a union of cosets of
+    the code inherits it, so shortening on those coordinates halves the size exactly."""
+    b = 0
+    while True:
+        mask = (1 << (b + 1)) - 1
+        rows = [int(g) & mask for g in generator_rows]
+        rank = 0
+        for bit in range(b + 1):  # Gaussian elimination on b + 1 bits
+            piv = next((i for i in range(rank, len(rows)) if (rows[i] >> bit) & 1), None)
+            if piv is None:
+                continue
+            rows[rank], rows[piv] = rows[piv], rows[rank]
+            for i in range(len(rows)):
+                if i != rank and (rows[i] >> bit) & 1:
+                    rows[i] ^= rows[rank]
+            rank += 1
+        if rank < b + 1:
+            return b
+        b += 1
+
+
+@dataclass(frozen=True)
+class CosetRecord:
+    """One recorded coset union.
+
+    Attributes
+    ----------
+    key : str
+    n, d, size : int
+        Length, verified distance, number of words.
+    inner : str
+        How the inner code was obtained, in words.
+    generator : tuple of int
+        Generator rows of the inner code (bit j = coordinate j).
+    leaders : tuple of int
+        One word of each coset in the union (the first is 0).
+    params : tuple of (str, value)
+        The search that found the union (method, seed, limits).
+    """
+
+    key: str
+    n: int
+    d: int
+    inner: str
+    generator: tuple[int, ...]
+    leaders: tuple[int, ...]
+    params: tuple[tuple[str, Any], ...]
+
+    @property
+    def k(self) -> int:
+        return len(self.generator)
+
+    @property
+    def size(self) -> int:
+        return len(self.leaders) << self.k
+
+    @property
+    def label(self) -> str:
+        return (f"union of {len(self.leaders)} cosets of a [{self.n},{self.k}] code "
+                f"({self.key})")
+
+
+def to_record(result: CosetUnionResult, code: LinearCode, key: str, inner: str,
+              params: dict[str, Any]) -> CosetRecord:
+    """A record of a search result, coordinates permuted so that an information set of the
+    inner code comes first (the union is then equidistributed on its first k coordinates)."""
+    from codesearch.gf import field
+
+    _, pivots = field(2).rref(code.generator)
+    order = list(pivots) + [j for j in range(code.n) if j not in set(pivots)]
+
+    def perm(x: int) -> int:
+        return sum(((x >> j) & 1) << i for i, j in enumerate(order))
+
+    gen = tuple(perm(int(g)) for g in _to_ints(code.generator))
+    settings = {"method": result.method, "seed": result.seed, **params}
+    return CosetRecord(key, code.n, result.d, inner, gen,
+                       tuple(perm(x) for x in result.leaders), tuple(sorted(settings.items())))
+
+
+def coset_union_from_record(key: str) -> Code:
+    """Rebuild a recorded union (unverified; see ``build_family``)."""
+    rec = RECORDS.get(key)
+    if rec is None:
+        raise ParameterError(f"unknown coset union {key!r} (known: {', '.join(RECORDS)})")
+    return union_words(rec.generator, rec.leaders, rec.n)
+
+
+RECORDS: dict[str, CosetRecord] = {r.key: r for r in [
+]}
