@@ -71,7 +71,7 @@ def test_nordstrom_robinson_is_eight_cosets_of_first_order_reed_muller():
     verify.assert_code(code, Params(2, 16, 6))
 
 
-@pytest.mark.parametrize("n,d", [(7, 3), (8, 3), (9, 4)])
+@pytest.mark.parametrize("n,d", [(7, 3), (8, 4), (9, 5)])
 def test_clique_stage_matches_networkx(n, d):
     # the largest union of cosets of the repetition code = 2 x the clique number of the
     # Cayley graph on F_2^(n-1) with connection set {w(s) >= d}; networkx computes the
@@ -140,12 +140,13 @@ def _cli(*args: str) -> subprocess.CompletedProcess:
 
 
 def test_cli_coset_union(tmp_path):
-    out = tmp_path / "nr.txt"
-    r = _cli("construct", "--coset-union", "6", "reed-muller", "--param", "r=1", "--param",
-             "m=4", "--out", str(out))
+    # A(8,4) = 16 (MacWilliams-Sloane App. A): 8 cosets of the repetition code
+    out = tmp_path / "u.txt"
+    r = _cli("construct", "--coset-union", "4", "repetition", "--param", "q=2", "--param",
+             "n=8", "--out", str(out))
     assert r.returncode == 0, r.stderr
-    assert "256 words" in r.stdout and "largest for this inner code" in r.stdout
-    r = _cli("check", str(out), "--d", "6")
+    assert "16 words" in r.stdout and "largest for this inner code" in r.stdout
+    r = _cli("check", str(out), "--d", "4")
     assert r.returncode == 0, r.stderr
     r = _cli("construct", "--coset-union", "6", "julin")
     assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1

@@ -237,9 +237,73 @@ def _greedy(good: np.ndarray, sset: np.ndarray, rng: np.random.Generator, deadli
     return best
 
 
+def _local(good: np.ndarray, rng: np.random.Generator, deadline: float, max_moves: int,
+           goal: int | None, start: list[int]) -> list[int]:
+    """Seeded swap local search for a large clique containing 0 of the Cayley graph.
+
+    ``miss[v]`` counts the chosen syndromes c with w(v + c) < d (0 is always chosen, so
+    syndromes outside the connection set are never free). A free syndrome (miss 0) is added;
+    otherwise a syndrome missing exactly one chosen c != 0 replaces it (c is then tabu for a
+    few moves); with neither, a random chosen syndrome is dropped. The best clique is kept.
+    """
+    size = good.size
+    idx = np.arange(size, dtype=np.int64)
+    bad = (~good).astype(np.int32)
+    miss = bad[idx].copy()  # chosen = {0}: w(v + 0) = w(v)
+    chosen: list[int] = [0]
+    inside = np.zeros(size, dtype=bool)
+    inside[0] = True
+    tabu = np.zeros(size, dtype=np.int64)
+
+    def add(v: int) -> None:
+        nonlocal miss
+        miss += bad[idx ^ v]
+        chosen.append(v)
+        inside[v] = True
+
+    def drop(u: int) -> None:
+        nonlocal miss
+        miss -= bad[idx ^ u]
+        chosen.remove(u)
+        inside[u] = False
+
+    for v in start:
+        if v and miss[v] == 0 and not inside[v]:
+            add(v)
+    best = list(chosen)
+    tenure = 7
+    for move in range(1, max_moves + 1):
+        free = np.flatnonzero((miss == 0) & ~inside & (tabu <= move))
+        if free.size:
+            add(int(free[rng.integers(free.size)]))
+            if len(chosen) > len(best):
+                best = list(chosen)
+                if goal is not None and len(best) >= goal:
+                    break
+        else:
+            one = np.flatnonzero((miss == 1) & ~inside & (tabu <= move))
+            if one.size:
+                v = int(one[rng.integers(one.size)])
+                arr = np.asarray(chosen, dtype=np.int64)
+                u = int(arr[bad[arr ^ v].astype(bool)][0])
+                if u == 0:  # v lies outside the connection set: never
+                    tabu[v] = 1 << 40
+                    continue
+                drop(u)
+                tabu[u] = move + tenure + int(rng.integers(3))
+                add(v)
+            elif len(chosen) > 1:
+                u = chosen[1 + int(rng.integers(len(chosen) - 1))]
+                drop(u)
+                tabu[u] = move + tenure
+        if move % 256 == 0 and time.monotonic() > deadline:
+            break
+    return best[1:]
+
+
 def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
                        time_limit: float = 10.0, seed: int = 0, restarts: int = 1000,
-                       goal: int | None = None,
+                       goal: int | None = None, moves: int = 10**7,
                        weights: CosetWeights | None = None) -> CosetUnionResult:
     """Largest union of cosets of ``code`` with minimum distance >= d that the search finds.
 
@@ -249,10 +313,12 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
         The binary inner code L; its minimum distance must be >= d (checked).
     d : int
         Target distance.
-    method : {"auto", "exact", "greedy"}
+    method : {"auto", "exact", "greedy", "local"}
         ``exact``: branch and bound on the connection set (at most
         :data:`MAX_EXACT_VERTICES` syndromes); ``greedy``: seeded randomised greedy restarts;
-        ``auto``: exact when the connection set is small enough.
+        ``local``: greedy restarts, then a seeded swap local search from the best (both
+        heuristics never report optimality); ``auto``: exact when the connection set is
+        small enough, greedy otherwise.
     time_limit : float
         Seconds for the clique stage.
     seed : int
@@ -261,6 +327,8 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
         Greedy restarts at most.
     goal : int, optional
         Stop as soon as a union of this many cosets is found.
+    moves : int
+        Local-search moves at most (``local``).
     weights : CosetWeights, optional
         Precomputed :func:`coset_weights` of ``code``.
 
@@ -271,8 +339,9 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
     from codesearch import verify
     from codesearch.model import Params
 
-    if method not in ("auto", "exact", "greedy"):
-        raise ParameterError(f"coset unions: method is auto, exact or greedy, got {method!r}")
+    if method not in ("auto", "exact", "greedy", "local"):
+        raise ParameterError(f"coset unions: method is auto, exact, greedy or local, "
+                             f"got {method!r}")
     if not 1 <= d <= code.n:
         raise ParameterError(f"coset unions: need 1 <= d <= n = {code.n}, got d={d}")
     t0 = time.monotonic()
@@ -305,7 +374,10 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
             optimal = True
     else:
         rng = np.random.default_rng(seed)
-        chosen = _greedy(good, sset, rng, t0 + time_limit, restarts, goal)
+        share = 0.2 if method == "local" else 1.0
+        chosen = _greedy(good, sset, rng, t0 + share * time_limit, restarts, goal)
+        if method == "local" and (goal is None or len(chosen) + 1 < goal):
+            chosen = _local(good, rng, t0 + time_limit, moves, goal, [0, *chosen])
     syn = (0, *sorted(chosen))
     leaders = tuple(w.leader(s) for s in syn)
     return CosetUnionResult(code.n, code.k, d, syn, leaders, len(syn) << code.k, optimal,
