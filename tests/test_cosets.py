@@ -152,3 +152,10 @@ def test_cli_coset_union(tmp_path):
     assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1
     r = _cli("construct", "--coset-union", "4", "--inner-cell", "8", "9")
     assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("key", sorted(RECORDS))
+def test_records_rerun_to_their_leaders(key):
+    # reproducibility: the recorded search settings (seed, restarts, moves; no deadline)
+    # give the recorded cosets again
+    assert RECORDS[key].rerun() == RECORDS[key].leaders

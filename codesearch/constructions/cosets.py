@@ -474,23 +474,25 @@ class CosetRecord:
         return (f"union of {len(self.leaders)} cosets of a [{self.n},{self.k}] code "
                 f"({self.key})")
 
+    def rerun(self) -> tuple[int, ...]:
+        """Run the recorded search again on the recorded inner code; returns the leaders
+        found (equal to ``leaders`` when the record is reproducible)."""
+        p = dict(self.params)
+        code = LinearCode(_to_rows(self.generator, self.n), 2)
+        res = coset_union_search(code, self.d, method=p["method"], seed=p["seed"],
+                                 restarts=p["restarts"], moves=p["moves"], goal=p["goal"],
+                                 time_limit=1e9)
+        return res.leaders
 
-def to_record(result: CosetUnionResult, code: LinearCode, key: str, inner: str,
+
+def to_record(code: LinearCode, leaders: tuple[int, ...], d: int, key: str, inner: str,
               params: dict[str, Any]) -> CosetRecord:
-    """A record of a search result, coordinates permuted so that an information set of the
-    inner code comes first (the union is then equidistributed on its first k coordinates)."""
-    from codesearch.gf import field
-
-    _, pivots = field(2).rref(code.generator)
-    order = list(pivots) + [j for j in range(code.n) if j not in set(pivots)]
-
-    def perm(x: int) -> int:
-        return sum(((x >> j) & 1) << i for i, j in enumerate(order))
-
-    gen = tuple(perm(int(g)) for g in _to_ints(code.generator))
-    settings = {"method": result.method, "seed": result.seed, **params}
-    return CosetRecord(key, code.n, result.d, inner, gen,
-                       tuple(perm(x) for x in result.leaders), tuple(sorted(settings.items())))
+    """A record of a union of cosets of ``code`` (a search result's ``leaders``); ``params``
+    are the settings of :func:`coset_union_search` that reproduce it (see
+    :meth:`CosetRecord.rerun`)."""
+    gen = tuple(int(g) for g in _to_ints(code.generator))
+    return CosetRecord(key, code.n, d, inner, gen, tuple(int(x) for x in leaders),
+                       tuple(sorted(params.items())))
 
 
 def coset_union_from_record(key: str) -> Code:
@@ -502,4 +504,18 @@ def coset_union_from_record(key: str) -> Code:
 
 
 RECORDS: dict[str, CosetRecord] = {r.key: r for r in [
+    # (16, 2720, 3): 85 cosets of the direct sum of Hamming(7,4) and repetition(9), found by
+    # the local search (seed 0, 20 greedy restarts, <= 200000 moves, no deadline); extended,
+    # (17, 2720, 4). Published lower value of A(16,3) = A(17,4): 2720.
+    CosetRecord(
+        "h7-rep9", 16, 3, "direct sum of Hamming(7,4) and repetition(9)",
+        (7, 25, 42, 75, 65408),
+        (0, 784, 1568, 2564, 3336, 4610, 5380, 6416, 7168, 57536, 8712, 9473, 10498, 11328,
+         53376, 12544, 13344, 51336, 14340, 50336, 49537, 16644, 17410, 18176, 18464, 19201,
+         19976, 20488, 21280, 22032, 23040, 41601, 24577, 25346, 26116, 27152, 37536, 29248,
+         35472, 34440, 33666, 32900, 33032, 33808, 34561, 34817, 35648, 36354, 36928, 37632,
+         38404, 39432, 25248, 40992, 41732, 42560, 43520, 21124, 45584, 19074, 18049, 17288,
+         16528, 49665, 50496, 51456, 52228, 12432, 53506, 54273, 10376, 55312, 9348, 8640,
+         57616, 58376, 6304, 59394, 5256, 4481, 61444, 3201, 2432, 1440, 704),
+        (("goal", 85), ("method", "local"), ("moves", 200000), ("restarts", 20), ("seed", 0))),
 ]}
