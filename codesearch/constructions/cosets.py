@@ -21,7 +21,19 @@ S (s ~ t when w(s + t) >= d).
 
 :func:`coset_union_search` solves that clique problem with the exact branch and bound of
 :mod:`codesearch.search.clique` (only an exhausted search reports the union as the largest for
-this L) or, for large S, with seeded randomised greedy restarts (a heuristic: never optimal).
+this L) or, for large S, with seeded heuristics (never optimal): randomised greedy restarts,
+and a swap local search (add a syndrome compatible with all chosen ones; else exchange one
+chosen syndrome for one compatible with all the others, the removed one tabu for a few
+moves; else drop one) that tests compatibility as ``w(v + c) >= d`` on the fly, so it needs
+no adjacency matrix and runs on connection sets of 10^5-10^6 syndromes.
+
+Record h7-rep9, (16, 2720, 3)
+    L = Hamming(7,4) + repetition(9) (direct sum, [16, 5, 3]). A coset of L is a pair
+    (coset of the Hamming code, i.e. a point a of F_2^3; complementary pair {b, b + 1} in
+    F_2^9), and a union of cosets is a choice of complement-closed sets B_a in F_2^9 with
+    distance >= 3 inside each B_a and >= 2 between B_a and B_a' (the Hamming cosets of a != a'
+    differ in at least one place). The local search found 85 cosets (170 words of F_2^9
+    split into 8 such sets), 85 * 32 = 2720 words; the parity extension is (17, 2720, 4).
 
 Records
 -------
