@@ -152,6 +152,9 @@ def test_cli_coset_union(tmp_path):
     assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1
     r = _cli("construct", "--coset-union", "4", "--inner-cell", "8", "9")
     assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1
+    # a union too large to list: one line naming the cap, no traceback
+    r = _cli("construct", "--coset-union", "3", "hamming", "--param", "q=2", "--param", "m=5")
+    assert r.returncode == 2 and "cap" in r.stderr and len(r.stderr.strip().splitlines()) == 1
 
 
 @pytest.mark.parametrize("key", sorted(RECORDS))

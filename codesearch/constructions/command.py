@@ -138,6 +138,11 @@ def coset_union_run(d: int, family: str | None = None, params: dict[str, Any] | 
     if dimension is not None and dimension != code.k:
         code = random_subcode(code, dimension, seed)
         inner = f"a random {dimension}-dimensional subcode (seed {seed}) of {inner}"
+    from codesearch.model import MAX_LISTED_WORDS
+
+    if code.size > MAX_LISTED_WORDS:
+        raise ParameterError(f"coset unions: the inner code alone has {code.size} words, above "
+                             f"the cap of {MAX_LISTED_WORDS} listed words")
     res = coset_union_search(code, d, method=method, time_limit=time_limit, seed=seed,
                              goal=goal)
     rows = tuple(int(sum(int(b) << j for j, b in enumerate(row))) for row in code.generator)

@@ -68,7 +68,7 @@ __all__ = ["CosetWeights", "CosetUnionResult", "CosetRecord", "RECORDS", "coset_
            "MAX_REDUNDANCY"]
 
 #: Largest redundancy r = n - k searched (2^r syndromes held as arrays).
-MAX_REDUNDANCY = 26
+MAX_REDUNDANCY = 24
 #: Largest connection set handed to the exact clique search (a dense bitset graph).
 MAX_EXACT_VERTICES = 12_000
 
@@ -81,8 +81,12 @@ def _to_ints(rows: np.ndarray) -> np.ndarray:
 
 
 def _to_rows(ints: Any, n: int) -> np.ndarray:
-    ints = np.asarray(list(ints), dtype=np.int64).reshape(-1)
-    return ((ints[:, None] >> np.arange(n, dtype=np.int64)) & 1).astype(np.uint8)
+    ints = np.asarray(list(ints) if not isinstance(ints, np.ndarray) else ints,
+                      dtype=np.int64).reshape(-1)
+    out = np.empty((ints.size, n), dtype=np.uint8)
+    for j in range(n):  # one coordinate at a time: no (M, n) int64 temporary
+        out[:, j] = (ints >> j) & 1
+    return out
 
 
 def _parity_columns(code: LinearCode) -> np.ndarray:
@@ -415,7 +419,19 @@ def random_subcode(code: LinearCode, k: int, seed: int) -> LinearCode:
 
 # ----------------------------------------------------------------------------- records
 def union_words(generator_rows: tuple[int, ...], leaders: tuple[int, ...], n: int) -> Code:
-    """The union of the cosets ``leader + span(generator_rows)`` as an explicit code."""
+    """The union of the cosets ``leader + span(generator_rows)`` as an explicit code.
+
+    Raises
+    ------
+    ParameterError
+        When the union would have more than ``codesearch.model.MAX_LISTED_WORDS`` words.
+    """
+    from codesearch.model import MAX_LISTED_WORDS
+
+    size = len(leaders) << len(generator_rows)
+    if size > MAX_LISTED_WORDS:
+        raise ParameterError(f"coset unions: the union has {size} words, above the cap of "
+                             f"{MAX_LISTED_WORDS} listed words")
     span = np.zeros(1, dtype=np.int64)
     for g in generator_rows:
         span = np.concatenate([span, span ^ int(g)])
@@ -483,8 +499,7 @@ class CosetRecord:
 
     @property
     def label(self) -> str:
-        return (f"union of {len(self.leaders)} cosets of a [{self.n},{self.k}] code "
-                f"({self.key})")
+        return f"union of {len(self.leaders)} cosets of the {self.inner} ({self.key})"
 
     def rerun(self) -> tuple[int, ...]:
         """Run the recorded search again on the recorded inner code; returns the leaders
