@@ -35,6 +35,13 @@ Record h7-rep9, (16, 2720, 3)
     differ in at least one place). The local search found 85 cosets (170 words of F_2^9
     split into 8 such sets), 85 * 32 = 2720 words; the parity extension is (17, 2720, 4).
 
+Record rm14-tail4, (20, 2560, 5)
+    L = RM(1,4) on coordinates 0..15 and nothing on 16..19 ([20, 5, 8]). A coset is a pair
+    (coset of RM(1,4) in F_2^16, of weight 0..6; a tail in F_2^4), and two chosen pairs need
+    weight(coset sum) + distance(tails) >= 5. This generalises the Nordstrom-Robinson
+    translates with tails (NR is 8 cosets of RM(1,4)): the local search found 80 pairs,
+    80 * 32 = 2560 words, where translates of NR stop at 2048; extended, (21, 2560, 6).
+
 Records
 -------
 :data:`RECORDS` keeps unions found by such searches (the inner code's generator rows and the
@@ -545,4 +552,19 @@ RECORDS: dict[str, CosetRecord] = {r.key: r for r in [
          16528, 49665, 50496, 51456, 52228, 12432, 53506, 54273, 10376, 55312, 9348, 8640,
          57616, 58376, 6304, 59394, 5256, 4481, 61444, 3201, 2432, 1440, 704),
         (("goal", 85), ("method", "local"), ("moves", 200000), ("restarts", 20), ("seed", 0))),
+    # (20, 2560, 5): 80 cosets of RM(1,4) on the first 16 coordinates (4 free coordinates),
+    # found by the local search (seed 0, 20 greedy restarts, <= 200000 moves, no deadline);
+    # extended, (21, 2560, 6). Published lower value of A(20,5) = A(21,6): 2560.
+    CosetRecord(
+        "rm14-tail4", 20, 5, "first-order Reed-Muller code RM(1,4) with 4 free coordinates",
+        (65535, 65280, 61680, 52428, 43690),
+        (0, 33047, 20627, 25859, 18503, 1619, 8839, 5159, 200840, 198662, 213019, 234499,
+         204833, 246272, 229453, 197712, 329824, 331793, 378885, 369664, 360491, 328204,
+         335943, 344194, 394400, 401480, 393731, 397357, 395461, 409620, 432128, 426097,
+         462336, 491544, 501763, 460853, 462882, 459923, 475201, 467076, 558113, 540993,
+         525715, 533009, 561235, 567555, 530561, 524303, 729227, 753730, 733696, 737320,
+         721925, 743427, 778257, 723088, 852672, 868529, 853091, 884772, 873472, 860178,
+         854025, 856199, 950401, 944128, 925725, 918538, 933927, 919635, 921668, 918064,
+         999565, 987211, 985251, 991441, 1008643, 997381, 1015831, 983296),
+        (("goal", 80), ("method", "local"), ("moves", 200000), ("restarts", 20), ("seed", 0))),
 ]}
