@@ -92,6 +92,9 @@ _BALL_WORDS_PER_S = 2.0e7
 _SCAN_PER_S = 5.0e7
 #: Seconds per XOR mask of a ball built for the scans (measured 4e-8).
 _MASK_S = 1.0e-7
+#: Seconds per ball word marked by a q-ary scan (patterns applied digit by digit): measured
+#: 1.2e-7 .. 2.8e-7 on a loaded machine (A_4(11,8), A_4(12,9)); a binary mark is one XOR.
+_MARK_QARY_S = 3.0e-7
 #: Words per second of the scans' bitmap set-up.
 _BITMAP_PER_S = 1.0e9
 #: Orbit-graph distance evaluations per second, counting every orbit as admissible
@@ -232,6 +235,10 @@ def step_need(method: str, params: Params, *, order: int | None = None,
         if ball > _MAX_BALL and not sampled:
             return math.inf
         setup = _STEP_OVERHEAD + space / _BITMAP_PER_S + (0 if sampled else ball * _MASK_S)
+        if params.q > 2 and not sampled:
+            # the first codeword's ball is marked before any code can be returned (5.9e6
+            # words at A_4(12,9): 1-4 s, one kernel call)
+            setup += ball * _MARK_QARY_S
         return setup if method != "local" else 0.1 + 2 * setup
     if method == "orbit":
         if space > _ORBIT_MAX_WORDS:

@@ -147,17 +147,27 @@ def greedy_indices(
         pat_ptr, pat_pos, pat_add = ws.ball_patterns(q, n, radius)
     count = 0
     t = 0
+    # the longest kernel call so far: a call that marks the ball of a new codeword costs
+    # ball-size memory writes (seconds for q-ary balls of 10^6+ words), so a scan under a
+    # deadline stops when the next call, as long as the longest one, would end past it
+    longest = 0.0
+    # about one codeword per call where balls are large (space / cap words hold one on
+    # average at the packing bound), so that the longest call is about one ball's marking
+    chunk = min(_CHUNK, max(4096, space // cap))
     while t < space:
-        t1 = min(space, t + _CHUNK)
+        t1 = min(space, t + chunk)
+        call = time.perf_counter()
         if q == 2:
             count = K.heur_greedy_mark_binary(t, t1, kind, n, perm, masks, blocked, out, count)
         else:
             count = K.heur_greedy_mark_qary(t, t1, kind, q, n, pw, perm, pat_ptr, pat_pos,
                                             pat_add, blocked, out, count)
         t = t1
+        now = time.perf_counter()
+        longest = max(longest, now - call)
         if progress is not None:
-            progress({"incumbent": count, "nodes": t, "elapsed": time.perf_counter() - start})
-        if deadline is not None and time.perf_counter() > deadline and t < space:
+            progress({"incumbent": count, "nodes": t, "elapsed": now - start})
+        if deadline is not None and now + longest > deadline and t < space:
             break
     return out[:count].copy(), t >= space, t
 
