@@ -81,6 +81,11 @@ _SCAN_MAX_WORDS = 1 << 28
 _SAMPLED_SPACE = 1 << 22
 #: Largest ball the scans mark (:data:`codesearch.search.greedy.MAX_BALL`).
 _MAX_BALL = 1 << 23
+#: The same for q > 2, where the ball is a table of digit patterns (8 bytes per digit) and
+#: each mark applies them one by one: at A_4(12,9) (5.9e6 patterns, 700 MB) the lexicode
+#: spent a 10 s share on its first codeword; codes with balls this large have a few dozen
+#: words at most, which the construction library and the orbit steps give
+_MAX_QARY_BALL = 1 << 20
 
 # Rates for the cost estimates, measured on a loaded 2-core machine (benchmarks/
 # bench_portfolio.py) and divided by about two, so that estimates err on the long side.
@@ -232,7 +237,7 @@ def step_need(method: str, params: Params, *, order: int | None = None,
             return math.inf
         ball = _ball(params.q, params.n, params.d - 1)
         sampled = method != "lexicode" and space > _SAMPLED_SPACE  # random order: no masks
-        if ball > _MAX_BALL and not sampled:
+        if ball > (_MAX_BALL if params.q == 2 else _MAX_QARY_BALL) and not sampled:
             return math.inf
         setup = _STEP_OVERHEAD + space / _BITMAP_PER_S + (0 if sampled else ball * _MASK_S)
         if params.q > 2 and not sampled:
