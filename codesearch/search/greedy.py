@@ -153,7 +153,7 @@ def greedy_indices(
     longest = 0.0
     # about one codeword per call where balls are large (space / cap words hold one on
     # average at the packing bound), so that the longest call is about one ball's marking
-    chunk = min(_CHUNK, max(4096, space // cap))
+    chunk = min(_CHUNK, max(1 << 16, space // cap))
     while t < space:
         t1 = min(space, t + chunk)
         call = time.perf_counter()
