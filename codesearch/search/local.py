@@ -66,6 +66,8 @@ MAX_WORDS = 2**20
 _N_RANDOM = 8
 #: Moves per kernel call, between time-limit checks.
 _CHUNK = 4000
+#: Largest q-ary ball for the lexicode floor (the portfolio's limit for q-ary scans).
+_FLOOR_MAX_QARY_BALL = 1 << 20
 
 
 def _work_cell(params: Params, parity: bool) -> tuple[Params, bool]:
@@ -247,7 +249,10 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
         words = ctx.incumbent.words[:, :n].astype(np.int64)
         init = np.unique(words @ ws.powers(q, n))
     floor = np.empty(0, dtype=np.int64)
-    if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
+    # (not where the ball is a table of millions of q-ary patterns: building it alone passes
+    # a 10 s budget, measured at A_5(11,8))
+    max_ball = greedy.MAX_BALL if q == 2 else _FLOOR_MAX_QARY_BALL
+    if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= max_ball:
         floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=_share(ctx, left, 0.2))
     st = _setup(cell, init, int(tenure), ctx.seed)
     best, M = init.copy(), int(init.size)
