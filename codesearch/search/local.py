@@ -148,6 +148,14 @@ def _share(ctx: Context, left: float | None, fraction: float) -> float | None:
     return min(ctx.deadline, time.perf_counter() + fraction * max(left, 0.0))
 
 
+def _finish_seconds(params: Params, M: int) -> float:
+    """Generous seconds to list an M-word code of the cell and have the front end re-check it
+    (words, then a ball bitmap or packed distances: about 1e-7 s per word and ball word)."""
+    r = (params.d - 1) // 2
+    return (M * (params.n + ws.ball_size(params.q, params.n, r)) * 1e-7
+            + params.space_size * 1e-9)
+
+
 def _count_balls(st: _State, M: int, ctx: Context) -> bool:
     """Fill ``st.counts`` for the start code ``st.words[:M]``; False if the deadline came first.
 
@@ -273,7 +281,10 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
             break
         best = st.words[:M].copy()
         ctx.report(incumbent=int(best.size), nodes=moves)
-        if ctx.expired():
+        left = ctx.time_left()
+        if left is not None and left < _finish_seconds(ctx.params, M):
+            # what is left would not even list and re-check the code found (729088 words of
+            # A(27,4): 2.5 s), so stop growing it
             out_of_time = True
             break
     returned = "local search"
