@@ -178,8 +178,11 @@ def recheck_seconds(params: Params, words: int) -> float:
     cheaper of all pair distances and, binary, the disjoint-balls check)."""
     pairs = words * (words - 1) / 2 / _PAIRS_PER_S
     if params.q == 2:
-        balls = words * _ball(2, params.n, (params.d - 1) // 2) / _BALL_WORDS_PER_S
-        pairs = min(pairs, balls)
+        # past 4096 words a ball bitmap: the radius-r ball of every word and, for even d, its
+        # radius-(r+1) sphere (A(27,4): 379 words each, not 28)
+        r = (params.d - 1) // 2
+        per = _ball(2, params.n, r) + (math.comb(params.n, r + 1) if params.d % 2 == 0 else 0)
+        pairs = min(pairs, words * per / _BALL_WORDS_PER_S)
     return pairs
 
 
