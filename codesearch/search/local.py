@@ -153,13 +153,13 @@ def _finish_seconds(params: Params, M: int) -> float:
     """Generous seconds to list an M-word code of the cell and have it re-checked twice (by
     the front end of this method and by the portfolio's, when it runs inside one): a bitmap
     check marks the radius-r ball of every word and, for even d, probes its radius-(r+1)
-    sphere; about 2e-8 s per marked or probed word on a loaded machine (464896 words of
+    sphere; 2e-8 to 3e-8 s per marked or probed word on a loaded machine (464896 words of
     A(27,4): 379 each, 3.5 s a check)."""
     r = (params.d - 1) // 2
     per = ws.ball_size(params.q, params.n, r)
     if params.d % 2 == 0:
         per += math.comb(params.n, r + 1) * (params.q - 1) ** (r + 1)
-    return M * (params.n + 2 * per) * 2e-8 + params.space_size * 1e-9
+    return M * (params.n + 2 * per) * 3e-8 + params.space_size * 1e-9
 
 
 def _count_balls(st: _State, M: int, ctx: Context) -> bool:
