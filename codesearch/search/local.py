@@ -297,9 +297,11 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     if floor.size > best.size:
         best, returned = floor, "lexicode (larger than the local search reached)"
     left = ctx.time_left()
-    if left is not None and best.size > 1 and _finish_seconds(ctx.params, best.size) > left:
-        # a code the time left cannot list and re-check (a lexicode prefix of 460800 words at
-        # A(28,4)) is cut to one it can: any subset of a code is a code
+    if (best is floor and left is not None and best.size > 1
+            and _finish_seconds(ctx.params, best.size) > left):
+        # a lexicode prefix the time left cannot list and re-check (460800 words at A(28,4))
+        # is cut to one it can: any subset of a code is a code (the search's own codes stop
+        # growing in time, and an incumbent is never cut)
         keep = max(1, int(best.size * max(left, 0.0) / _finish_seconds(ctx.params, best.size)))
         best = np.sort(best)[:keep]
         returned += f", cut to {keep} words for the time left"
