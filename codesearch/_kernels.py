@@ -1109,7 +1109,7 @@ def _heur_ball_add(x, delta, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts,
 def heur_local_add_balls(q, n, start, stop, words, pw, masks, pat_ptr, pat_pos, pat_add, counts):
     """Add the balls of radius d-1 around ``words[start:stop]`` to ``counts`` (mode 1).
 
-    The ball-count part of :func:`heur_local_init` in slices, so that a caller can read the
+    The start of a local search (its ball counts) in slices, so that a caller can read the
     clock between slices (the counts of 10^3 words with balls of 10^4-10^5 words over a space
     of 10^7 take seconds: one random memory access per word of each ball).
     """
@@ -1117,35 +1117,6 @@ def heur_local_add_balls(q, n, start, stop, words, pw, masks, pat_ptr, pat_pos, 
     kk = np.zeros(1, dtype=np.int64)
     for i in range(start, stop):
         _heur_ball_add(words[i], 1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig, kk)
-
-
-@nb.njit(cache=True)
-def heur_local_init(q, n, d, M, words, conf, mode, pw, masks, pat_ptr, pat_pos, pat_add, counts):
-    """Fill ``counts`` (mode 1) and ``conf`` for ``words[:M]``; return the conflicting pairs.
-
-    ``counts[y]`` = number of codewords within distance d-1 of ``y``; ``conf[i]`` = number of
-    other codewords closer than d to ``words[i]``.
-    """
-    dig = np.zeros(n, dtype=np.int64)
-    kk = np.zeros(1, dtype=np.int64)
-    if mode == 1:
-        counts[:] = 0
-        for i in range(M):
-            _heur_ball_add(words[i], 1, q, n, pw, masks, pat_ptr, pat_pos, pat_add, counts, dig,
-                           kk)
-        for i in range(M):
-            conf[i] = counts[words[i]] - 1
-    else:
-        for i in range(M):
-            c = 0
-            for j in range(M):
-                if j != i and heur_index_dist(words[i], words[j], q, n) < d:
-                    c += 1
-            conf[i] = c
-    total = 0
-    for i in range(M):
-        total += conf[i]
-    return total // 2
 
 
 @nb.njit(cache=True)

@@ -131,7 +131,14 @@ def test_local_search_keeps_exact_conflict_counts(mode, cell, d, seed, m):
     tabu = np.full(6, -1, dtype=np.int64)
     tabu[0] = 0
     rng = np.array([seed], dtype=np.uint64)
-    total = K.heur_local_init(q, n, d, m, words, conf, mode, pw, masks, ptr, pos, add, counts)
+    # the start's counts and conflicts as the local search fills them (slices of balls for
+    # ball scoring; conflicts by the definition for pairwise scoring)
+    if mode == 1:
+        K.heur_local_add_balls(q, n, 0, m, words, pw, masks, ptr, pos, add, counts)
+        conf[:m] = counts[words[:m]].astype(np.int32) - 1
+    else:
+        conf[:m] = R.heur_conflicts(words[:m], q, n, d)
+    total = int(conf[:m].sum()) // 2
     for _ in range(3):
         twin_conf = R.heur_conflicts(words[:m], q, n, d)
         assert conf[:m].tolist() == twin_conf
