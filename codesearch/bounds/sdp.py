@@ -345,7 +345,8 @@ def _delsarte_pass(prog: SdpProgram) -> dict:
     data, m0 = prog.data, prog.m0
     kinds = ("delsarte", "weight")
     rows = [a for a, (label, _cv, _rhs) in enumerate(data.rows) if label[0] in kinds]
-    single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
+    # x[i,0,0]: the variables of the objective (the only ones in the Delsarte and weight rows)
+    single = [v for v, c in enumerate(data.objective) if c]
     col = {v: c for c, v in enumerate(single)}
     a_ub = np.zeros((len(rows), len(single)))
     b_ub = np.zeros(len(rows))
