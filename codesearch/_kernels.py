@@ -503,6 +503,134 @@ def least_weight_of_row_sums_prime(gen, p, w, best):
     return out.min()
 
 
+# ======================================================================= large binary codes
+# Checks of binary codes of up to 2^24+ words (n <= 64) in time linear in M: the word as one
+# uint64 (bit j = position j).
+
+
+@nb.njit(nb.types.UniTuple(nb.int64, 3)(nb.uint64[::1], nb.uint64[::1]), cache=True)
+def binary_span_check(words, basis):
+    """Rank of the rows over GF(2), whether they are pairwise distinct *given* that there are
+    exactly 2^rank of them, and the least weight of a nonzero row.
+
+    Returns ``(rank, distinct, min_weight)``: ``distinct`` is 1 when ``M == 2^rank`` and no two
+    rows are equal (then the rows are exactly their span, a linear code), else 0;
+    ``min_weight`` is 65 when every row is zero. ``basis`` (64 entries) receives a reduced
+    basis of the span in its first ``rank`` entries: pivot bits cleared in the other basis
+    rows, so the coordinates of a span element are read off its pivot bits, and
+    distinctness is a table of 2^rank flags.
+    """
+    m = words.shape[0]
+    basis[:] = 0
+    piv = np.zeros(64, dtype=np.uint64)
+    r = 0
+    one = np.uint64(1)
+    zero = np.uint64(0)
+    minw = 65
+    for i in range(m):
+        w = words[i]
+        if w != zero:
+            c = popcount64(w)
+            if c < minw:
+                minw = c
+        for b in range(r):
+            if w & piv[b]:
+                w ^= basis[b]
+        if w == zero:
+            continue
+        low = w & (~w + one)  # lowest set bit: the new pivot
+        for b in range(r):
+            if basis[b] & low:
+                basis[b] ^= w
+        basis[r] = w
+        piv[r] = low
+        r += 1
+    if r > 40 or m != (1 << r):
+        return r, 0, minw
+    seen = np.zeros(1 << r, dtype=np.uint8)
+    for i in range(m):
+        w = words[i]
+        idx = 0
+        for b in range(r):
+            if w & piv[b]:
+                idx |= 1 << b
+        if seen[idx]:
+            return r, 0, minw
+        seen[idx] = 1
+    return r, 1, minw
+
+
+@nb.njit(nb.int64(nb.uint64[::1], nb.int64, nb.uint64[::1], nb.uint64[::1]), cache=True)
+def binary_ball_clash(words, nbits, ball, probe):
+    """First row index whose ball meets another row's ball, or -1 (bitmap of 2^nbits bits).
+
+    Each row ``w`` marks ``w ^ m`` for the masks ``m`` in ``ball`` (weights <= r), stopping at
+    a word already marked (two rows within 2r). Then each row probes ``w ^ m`` for ``m`` in
+    ``probe`` (weight r + 1): a marked word there lies within r of another row, so the two rows
+    are within 2r + 1.
+    """
+    m = words.shape[0]
+    bitmap = np.zeros(((np.int64(1) << nbits) + 63) >> 6, dtype=np.uint64)
+    one = np.uint64(1)
+    six = np.uint64(6)
+    low6 = np.uint64(63)
+    for i in range(m):
+        for t in range(ball.shape[0]):
+            x = words[i] ^ ball[t]
+            slot = x >> six
+            bit = one << (x & low6)
+            if bitmap[slot] & bit:
+                return i
+            bitmap[slot] |= bit
+    for i in range(m):
+        for t in range(probe.shape[0]):
+            x = words[i] ^ probe[t]
+            if bitmap[x >> six] & (one << (x & low6)):
+                return i
+    return -1
+
+
+@nb.njit(nb.int64(nb.int64[::1], nb.int64, nb.int64, nb.int64[::1], nb.int64[::1],
+                  nb.int64[::1], nb.int64), cache=True)
+def qary_ball_clash(idx, q, n, pat_ptr, pat_pos, pat_add, probe_from):
+    """First row whose ball meets another row's ball, or -1; words given by their base-q
+    index (digit j = coordinate j), a bitmap of q^n bits.
+
+    Pattern t changes the digits ``pat_pos[pat_ptr[t]:pat_ptr[t+1]]`` by adding
+    ``pat_add[...]`` mod q. Patterns ``0..probe_from-1`` (the radius-r ball) are marked, a
+    word found marked means two rows within 2r; patterns ``probe_from..`` (the radius-(r+1)
+    sphere, for even d) are then probed: a marked word there means two rows within 2r + 1.
+    """
+    m = idx.shape[0]
+    total = 1
+    for _ in range(n):
+        total *= q
+    pw = np.ones(n, dtype=np.int64)
+    for j in range(1, n):
+        pw[j] = pw[j - 1] * q
+    bitmap = np.zeros((total + 63) >> 6, dtype=np.uint64)
+    one = np.uint64(1)
+    npat = pat_ptr.shape[0] - 1
+    for phase in range(2):
+        lo = 0 if phase == 0 else probe_from
+        hi = probe_from if phase == 0 else npat
+        for i in range(m):
+            x = idx[i]
+            for t in range(lo, hi):
+                y = x
+                for e in range(pat_ptr[t], pat_ptr[t + 1]):
+                    j = pat_pos[e]
+                    dig = (x // pw[j]) % q
+                    y += (((dig + pat_add[e]) % q) - dig) * pw[j]
+                slot = y >> 6
+                bit = one << np.uint64(y & 63)
+                if bitmap[slot] & bit:
+                    return i
+                if phase == 0:
+                    bitmap[slot] |= bit
+    return -1
+
+
 # ======================================================================= clique engine (exact search)
 #
 # Bitset branch and bound for the maximum (weight) clique, after BBMC (San Segundo, Rodriguez-Losada

@@ -81,6 +81,35 @@ def gf_rank(words: np.ndarray, p: int) -> int:
     return rank
 
 
+# ======================================================================= large binary codes
+
+
+def binary_span_check(words: list[int]) -> tuple[int, int, int]:
+    """Twin of the kernel: rank by :func:`gf_rank`, distinctness by a set, weights by bin()."""
+    n = max((int(w).bit_length() for w in words), default=0) or 1
+    rows = np.array([[(int(w) >> j) & 1 for j in range(n)] for w in words], dtype=np.uint8)
+    r = gf_rank(rows, 2) if len(words) else 0
+    distinct = int(len(words) == 2**r and len(set(int(w) for w in words)) == len(words))
+    minw = min((bin(int(w)).count("1") for w in words if int(w)), default=65)
+    return r, distinct, minw
+
+
+def qary_ball_clash(words: np.ndarray, r: int, probe: bool) -> bool:
+    """Twin of the q-ary kernel's verdict: two rows within 2r (2r + 1 with ``probe``)?"""
+    limit = 2 * r + (1 if probe else 0)
+    rows = [tuple(int(s) for s in w) for w in words]
+    return any(hamming(rows[i], rows[j]) <= limit
+               for i in range(len(rows)) for j in range(i + 1, len(rows)))
+
+
+def binary_ball_clash(words: list[int], r: int, probe: bool) -> bool:
+    """Twin of the kernel's verdict: do two rows lie within 2r (2r + 1 with ``probe``)?"""
+    limit = 2 * r + (1 if probe else 0)
+    ws = [int(w) for w in words]
+    return any(bin(ws[i] ^ ws[j]).count("1") <= limit
+               for i in range(len(ws)) for j in range(i + 1, len(ws)))
+
+
 # ======================================================================= clique engine (exact search)
 #
 # Graphs here are lists of Python sets (adj[v] = neighbours of v), converted from the kernels'

@@ -32,14 +32,17 @@ import time
 from dataclasses import dataclass, field
 from typing import Any, Callable, Iterable, Sequence
 
+import numpy as np
+
 from codesearch import verify
 from codesearch.errors import InputError, ParameterError, VerificationError
-from codesearch.model import Params, grid
+from codesearch.model import MAX_LISTED_WORDS, Code, LinearCode, Params, grid
 from codesearch.results import BoundResult, SearchResult, Status
 
 __all__ = [
     "CellTask",
     "CellOutcome",
+    "CellCode",
     "TableSummary",
     "table_cells",
     "run_cell",
@@ -51,6 +54,19 @@ Progress = Callable[[dict[str, Any]], None]
 
 #: Name of the bounds stage in the store's ``runs`` table.
 BOUNDS_TASK = "bounds"
+#: Name of the construction stage in the store's ``runs`` table (and the method of its codes).
+CONSTRUCTION_TASK = "construction"
+#: Codes with more words than this travel from the worker compactly (see :class:`CellCode`).
+SHIP_WORDS = 4096
+#: Seconds per word set aside for checking a code a search may return (the linear-time
+#: checks of :mod:`codesearch.verify` run at roughly 10^7 words per second; twice that is kept).
+VERIFY_SECONDS_PER_WORD = 2e-7
+#: Largest best stored code a record hunt hands its searches to start from
+#: (:attr:`codesearch.search.base.Context.incumbent`).
+INCUMBENT_WORDS = 1 << 16
+#: Least time limit a search is given, even when the budget is spent (so that every search
+#: named runs once per budget; a cell may overrun by this much per search).
+MIN_SEARCH_SECONDS = 0.05
 
 
 def table_cells(q: int, ns: Iterable[int], ds: Iterable[int]) -> list[Params]:
@@ -91,6 +107,52 @@ class CellTask:
     known_lower: int = 0
     known_upper: int | None = None
     sdp: bool = False
+    constructions: bool = False
+    hunt: bool = False
+    incumbent: Code | None = None
+
+
+@dataclass(frozen=True)
+class CellCode:
+    """A code a worker hands back for storing, with what the store records beside it.
+
+    Large binary codes travel compactly: a linear one as its generator matrix (a
+    :class:`~codesearch.model.LinearCode`), others packed 8 words to the byte per position
+    (:func:`codesearch.store.pack_code`) when pickled.
+    """
+
+    code: Code | LinearCode
+    method: str
+    status: str
+    seed: int | None = None
+    settings: dict[str, Any] = field(default_factory=dict)
+    seconds: float = 0.0
+    provenance: dict[str, Any] | None = None
+
+    def __reduce__(self) -> tuple:
+        c = self.code
+        if isinstance(c, Code) and c.size > SHIP_WORDS:
+            from codesearch.store import pack_code
+
+            return (_unship, (pack_code(c), c.q, c.n, c.size, self.method, self.status,
+                              self.seed, self.settings, self.seconds, self.provenance))
+        return (CellCode, (c, self.method, self.status, self.seed, self.settings,
+                           self.seconds, self.provenance))
+
+
+def _unship(blob: bytes, q: int, n: int, size: int, *rest: Any) -> CellCode:
+    from codesearch.store import unpack_code
+
+    return CellCode(unpack_code(blob, q, n, size), *rest)
+
+
+def compact(code: Code) -> Code | LinearCode:
+    """A large binary code that is a linear space as its generator matrix; others unchanged."""
+    if code.size > SHIP_WORDS:
+        basis = verify.binary_linear_basis(code)
+        if basis is not None:
+            return LinearCode(basis, 2)
+    return code
 
 
 @dataclass(frozen=True)
@@ -113,6 +175,12 @@ class CellOutcome:
         Failures, reported; the stage is retried by the next run.
     seconds : float
         Wall time of the whole cell.
+    codes : tuple of CellCode
+        Codes to store apart from the searches' own: the construction stage's, and the large
+        codes of searches (moved here from their ``SearchResult``, which then holds None).
+    stages : dict
+        Seconds of each stage: ``bounds``, ``construction``, ``search:NAME`` (the search and
+        the check of its code), and ``skipped:NAME`` (0.0) for a search left without time.
     """
 
     params: Params
@@ -122,6 +190,8 @@ class CellOutcome:
     refused: tuple[tuple[str, float], ...]
     errors: tuple[tuple[str, str], ...]
     seconds: float
+    codes: tuple[CellCode, ...] = ()
+    stages: dict[str, float] = field(default_factory=dict)
 
 
 def _one_line(exc: BaseException) -> str:
@@ -141,33 +211,119 @@ def _bounds_stage(task: CellTask, errors: list[tuple[str, str]]
     return tuple(found.values()), time.perf_counter() - t0
 
 
-def run_cell(task: CellTask) -> CellOutcome:
-    """Run one cell in a worker: bounds first, then each search with its share of the budget.
+def _construction_stage(task: CellTask, lower: int, errors: list[tuple[str, str]]
+                        ) -> CellCode | None:
+    """The largest code of the construction library for the cell, if it beats ``lower``:
+    linear codes as generator matrices whatever their size, others up to the listing cap."""
+    from codesearch import constructions
 
+    p = task.params
+    t0 = time.perf_counter()
+    try:
+        for cand in constructions.candidates(p):
+            if cand.size <= lower:
+                return None
+            if not cand.linear and cand.size > MAX_LISTED_WORDS:
+                continue
+            built = cand.build(MAX_LISTED_WORDS)
+            return CellCode(built.code, CONSTRUCTION_TASK, Status.FEASIBLE.value,
+                            settings={"steps": cand.steps},
+                            seconds=time.perf_counter() - t0,
+                            provenance={"construction": built.provenance, "family": cand.root,
+                                        "steps": cand.steps})
+    except Exception as exc:  # a failing construction must not lose the cell's searches
+        errors.append((CONSTRUCTION_TASK, _one_line(exc)))
+    return None
+
+
+_WARM: set[tuple[int, bool]] = set()
+
+
+def _warm_up(q: int, constructions: bool) -> float:
+    """Once per worker process and alphabet, before the cell's clock starts: load the
+    checker's compiled kernels and tabulate the construction library (about 1-3 s the first
+    time). Returns the seconds spent (0.0 when already done); the cell reports them apart."""
+    if (q, constructions) in _WARM:
+        return 0.0
+    t0 = time.perf_counter()
+    from codesearch.bounds import all_bounds
+
+    verify.prepare()
+    verify.assert_code(Code(np.eye(3, dtype=np.uint8), 2), Params(2, 3, 2))
+    all_bounds(Params(q, 4, 3))
+    if constructions:
+        from codesearch import constructions as lib
+
+        try:
+            lib.candidates(Params(q, 3, 3))[0].build()
+        except Exception:  # the construction stage reports its own failures
+            pass
+    _WARM.add((q, constructions))
+    return time.perf_counter() - t0
+
+
+def _check_reserve(p: Params, upper: int | None) -> float:
+    """Seconds kept back from a search for checking the largest code it could return."""
+    words = min(upper if upper is not None else p.q**p.n, p.q**p.n, 1 << 26)
+    return words * VERIFY_SECONDS_PER_WORD if words > SHIP_WORDS else 0.0
+
+
+def run_cell(task: CellTask) -> CellOutcome:
+    """Run one cell in a worker: bounds, the construction library, then each search with its
+    share of what is left of the budget.
+
+    Every stage runs under the cell's deadline ``start + budget``: the bounds and the
+    construction are short and accounted first; each search is given its share of the time
+    left minus a reserve for checking the code it returns (:func:`_check_reserve`), at least
+    :data:`MIN_SEARCH_SECONDS`. One-time costs of a worker process (loading kernels,
+    tabulating the constructions) come before the clock starts and are reported apart
+    (``stages["warm-up"]``).
     Never raises for a failing bound or search: the failure is reported in ``errors``.
     """
     from codesearch.search import run_method
 
     p = task.params
+    stages: dict[str, float] = {}
+    warm = _warm_up(p.q, task.constructions)
+    if warm:
+        stages["warm-up"] = warm
     start = time.perf_counter()
+    deadline = start + task.budget
     errors: list[tuple[str, str]] = []
     found, bounds_seconds = _bounds_stage(task, errors) if task.run_bounds else (None, 0.0)
+    if task.run_bounds:
+        stages[BOUNDS_TASK] = bounds_seconds
     usable = sorted((b for b in found or () if b.usable), key=lambda b: b.value)
     known = {"bound": usable[0]} if usable else {}  # else each method asks when it needs it
     upper = task.known_upper
     if usable and (upper is None or usable[0].value < upper):
         upper = usable[0].value
     lower = task.known_lower
+    codes: list[CellCode] = []
+    if task.constructions and (upper is None or lower < upper):
+        t0 = time.perf_counter()
+        built = _construction_stage(task, lower, errors)
+        stages[CONSTRUCTION_TASK] = time.perf_counter() - t0
+        if built is not None:
+            codes.append(built)
+            lower = max(lower, built.code.size)
     searches: list[SearchResult] = []
     refused: list[tuple[str, float]] = []
+    reserve = _check_reserve(p, upper)
     for i, spec in enumerate(task.methods):
         if upper is not None and lower >= upper:
             break  # settled: no search can improve the cell
-        remaining = task.budget - (time.perf_counter() - start)
-        share = max(remaining / (len(task.methods) - i), 0.05)
+        remaining = deadline - time.perf_counter()
+        share = max((remaining - reserve) / (len(task.methods) - i), MIN_SEARCH_SECONDS)
+        options = {}
+        if task.hunt and lower > 0 and spec.exhaustive and "size" in _options_of(spec):
+            options["size"] = lower + 1  # a record hunt asks for one word more than held
+        t0 = time.perf_counter()
         try:
-            res = run_method(spec, p, time_limit=share, seed=task.seed, **known)
+            res = run_method(spec, p, time_limit=share, seed=task.seed, options=options,
+                             incumbent=task.incumbent, **known)
         except Exception as exc:
+            stages[f"search:{spec.name}"] = time.perf_counter() - t0
             errors.append((spec.name, _one_line(exc)))
             # A method refusing the cell (bad input for it) will refuse again: mark it done.
             # Anything else (a missing module, a bug) is retried by the next run.
@@ -175,14 +331,30 @@ def run_cell(task: CellTask) -> CellOutcome:
                 refused.append((spec.name, time.perf_counter() - start))
             continue
         settings = {**res.settings, "cell_budget": task.budget, "nodes": res.nodes}
-        searches.append(dataclasses.replace(
-            res, settings=settings, seed=task.seed if res.seed is None else res.seed))
+        res = dataclasses.replace(res, settings=settings,
+                                  seed=task.seed if res.seed is None else res.seed)
+        if res.code is not None and res.code.size > SHIP_WORDS:
+            codes.append(CellCode(compact(res.code), res.method, res.status.value, res.seed,
+                                  dict(settings), res.seconds))
+            lower = max(lower, res.code.size)
+            res = dataclasses.replace(res, code=None)
+        stages[f"search:{spec.name}"] = time.perf_counter() - t0
+        searches.append(res)
         lower = max(lower, res.size)
         if spec.exhaustive and res.upper is not None and res.status in (
                 Status.OPTIMAL, Status.INFEASIBLE):
             upper = res.upper if upper is None else min(upper, res.upper)
     return CellOutcome(p, found, bounds_seconds, tuple(searches), tuple(refused),
-                       tuple(errors), time.perf_counter() - start)
+                       tuple(errors), time.perf_counter() - start, tuple(codes), stages)
+
+
+def _options_of(spec: Any) -> frozenset[str]:
+    from codesearch.search import _load
+
+    try:
+        return frozenset(_load(spec).OPTIONS)
+    except Exception:  # run_method reports the failure to load
+        return frozenset()
 
 
 def _store_outcome(store: Any, task: CellTask, out: CellOutcome) -> None:
@@ -194,6 +366,12 @@ def _store_outcome(store: Any, task: CellTask, out: CellOutcome) -> None:
             for b in out.bounds:
                 store.add_bound(b, seconds=out.bounds_seconds)
             store.mark_run(p, BOUNDS_TASK, budget=0.0, seconds=out.seconds, status="done")
+        if task.constructions:
+            store.mark_run(p, CONSTRUCTION_TASK, budget=0.0,
+                           seconds=out.stages.get(CONSTRUCTION_TASK, 0.0), status="done")
+        for c in out.codes:
+            store.add_code(c.code, p, method=c.method, status=c.status, seed=c.seed,
+                           settings=c.settings, seconds=c.seconds, provenance=c.provenance)
         for method, seconds in out.refused:
             store.mark_run(p, method, budget=task.budget, seconds=seconds, status="error",
                            seed=task.seed)
@@ -317,11 +495,17 @@ class TableSummary:
     seconds: float = 0.0
     interrupted: bool = False
     errors: list[str] = field(default_factory=list)
+    store_seconds: float = 0.0
+    propagate_seconds: float = 0.0
+    slowest: list[tuple[float, str]] = field(default_factory=list)
 
     def to_json(self) -> dict[str, Any]:
         return {"cells": self.cells, "skipped": self.skipped, "ran": self.ran,
                 "failed": self.failed, "derived_codes": self.derived_codes,
                 "derived_bounds": self.derived_bounds, "seconds": round(self.seconds, 3),
+                "store_seconds": round(self.store_seconds, 3),
+                "propagate_seconds": round(self.propagate_seconds, 3),
+                "slowest": [[round(t, 3), c] for t, c in self.slowest],
                 "interrupted": self.interrupted, "errors": list(self.errors)}
 
 
@@ -347,19 +531,29 @@ class _Plan:
     sdp: bool
     seed: int
     propagate: bool
+    constructions: bool = True
 
     def task(self, st: Any, p: Params) -> CellTask | None:
-        """The work left on cell ``p`` (None when nothing is left)."""
+        """The work left on cell ``p`` (None when nothing is left): only open cells
+        (lower < upper) run, and only the stages not yet run at this budget or a larger one.
+        A search that ran before with a smaller budget runs again as a record hunt: it gets
+        the best stored code to start from (methods declaring ``INCUMBENT``) and, for an
+        exhaustive method taking a target size, the question "one word more?"."""
         s = st.summary(p)
         if s.exact:
             return None
         run_bounds = self.bounds and st.run_budget(p, BOUNDS_TASK) is None
-        todo = tuple(spec for spec in self.specs
-                     if (st.run_budget(p, spec.name) or 0.0) < self.budget)
-        if not run_bounds and not todo:
+        build = self.constructions and st.run_budget(p, CONSTRUCTION_TASK) is None
+        before = {spec.name: st.run_budget(p, spec.name) for spec in self.specs}
+        todo = tuple(spec for spec in self.specs if (before[spec.name] or 0.0) < self.budget)
+        if not run_bounds and not todo and not build:
             return None
+        hunt = any(b is not None for b in before.values())
+        incumbent = None
+        if hunt and todo and s.code_id is not None and 2 <= s.lower <= INCUMBENT_WORDS:
+            incumbent = st.get_code(s.code_id)[1]
         return CellTask(p, float(self.budget), todo, run_bounds, cell_seed(self.seed, p),
-                        s.lower, s.upper, self.sdp)
+                        s.lower, s.upper, self.sdp, build, hunt, incumbent)
 
 
 class _Driver:
@@ -419,6 +613,8 @@ class _Driver:
             else:
                 self.fail(task.params, _one_line(exc))
             return
+        before = self.st.summary(task.params)
+        t0 = time.perf_counter()
         try:
             _store_outcome(self.st, task, out)
         except VerificationError as exc:
@@ -426,12 +622,28 @@ class _Driver:
             # the run goes on and reports the cell as failed.
             self.fail(task.params, f"verification failed, nothing stored: {exc}")
             return
+        stored = time.perf_counter() - t0
+        better = self.st.log_improvements(before, seconds=out.seconds, budget=task.budget)
         self.summary.errors += [f"{task.params} {stage}: {msg}" for stage, msg in out.errors]
         self.summary.ran += 1
-        self.derive()
+        t1 = time.perf_counter()
+        # Relations first (they may settle the next cells before they are submitted), then
+        # the workers get new cells, then the library's chains from the codes found, which
+        # may take seconds when a search beat the constructions.
+        self.derive(chains=False)
+        self.fill()
+        self.derive(chains=True)
+        derived = time.perf_counter() - t1
+        stages = {**out.stages, "store": stored, "propagate": derived}
+        self.st.log_cell(task.params, budget=task.budget, seconds=out.seconds, stages=stages)
+        self.summary.store_seconds += stored
+        self.summary.propagate_seconds += derived
+        self.summary.slowest = sorted(self.summary.slowest + [(out.seconds, str(task.params))],
+                                      reverse=True)[:10]
         s = self.st.summary(task.params)
         self.emit({"event": "done", "cell": task.params, "lower": s.lower, "upper": s.upper,
-                   "seconds": out.seconds})
+                   "seconds": out.seconds, "budget": task.budget, "stages": stages,
+                   "improved": [list(c) for c in better]})
 
     def requeue_after_crash(self, task: CellTask) -> None:
         """A worker died (e.g. out of memory): the executor rebuilt its pool, so every cell in
@@ -453,7 +665,7 @@ class _Driver:
         self.summary.errors.append(msg.splitlines()[0])
         self.emit({"event": "error", "cell": p, "error": msg})
 
-    def derive(self) -> None:
+    def derive(self, chains: bool = True) -> None:
         """Propagate between the cells of each alphabet (:mod:`codesearch.propagate`)."""
         from codesearch.propagate import propagate
 
@@ -463,7 +675,7 @@ class _Driver:
         for p in self.cells:
             by_q.setdefault(p.q, []).append(p)
         for group in by_q.values():
-            out = propagate(self.st, group, progress=self.emit)
+            out = propagate(self.st, group, chains=chains, progress=self.emit)
             self.summary.derived_codes += out.codes
             self.summary.derived_bounds += out.bounds
 
@@ -485,6 +697,7 @@ def run_table(
     bounds: bool = True,
     sdp: bool = False,
     propagate: bool = True,
+    constructions: bool = True,
     per_worker: int | None = None,
     progress: Progress | None = None,
 ) -> TableSummary:
@@ -509,6 +722,9 @@ def run_table(
         Run seed; each cell's seed is :func:`cell_seed` of it and is stored with its results.
     bounds, propagate : bool
         Run the bounds stage; propagate between cells after each finished cell.
+    constructions : bool
+        Ask the construction library (:mod:`codesearch.constructions`) for each cell before
+        the searches, once per cell.
     sdp : bool
         Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
         already ran are not redone).
@@ -518,7 +734,11 @@ def run_table(
         trip to remote workers).
     progress : callable, optional
         Receives event dicts (``start``, ``submit``, ``skip``, ``done``, ``derived``,
-        ``error``, ``finish``).
+        ``error``, ``finish``). A ``done`` event has ``cell``, ``lower``, ``upper``,
+        ``seconds`` (the worker's wall time for the cell), ``budget``, ``stages`` (seconds per
+        stage: ``bounds``, ``construction``, ``search:NAME``, ``skipped:NAME``, and the
+        driver's ``store`` and ``propagate``, which run outside the cell's budget) and
+        ``improved`` (``[side, old, new]`` for each value the cell improved).
 
     Returns
     -------
@@ -537,7 +757,8 @@ def run_table(
         raise ParameterError(f"workers must be at least 1, got {workers}")
     if per_worker is not None and per_worker < 1:
         raise ParameterError(f"per_worker must be at least 1, got {per_worker}")
-    plan = _Plan(float(budget), _resolve_methods(methods), bounds, sdp, seed, propagate)
+    plan = _Plan(float(budget), _resolve_methods(methods), bounds, sdp, seed, propagate,
+                 constructions)
 
     def new_executor() -> Any:
         if scheduler:

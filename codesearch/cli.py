@@ -369,6 +369,8 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--no-bounds", action="store_true", help="skip the bounds stage")
     p.add_argument("--sdp", action="store_true", help="bounds stage also tries the SDP bound")
     p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
+    p.add_argument("--no-constructions", action="store_true",
+                   help="do not ask the construction library before the searches")
     p.add_argument("--quiet", action="store_true", help="no progress on stderr")
     p.add_argument("--json", action="store_true",
                    help="print a JSON summary; progress goes to stderr as JSON lines (keys: "
@@ -389,7 +391,8 @@ def _cmd_table(args: argparse.Namespace) -> int:
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
-                  sdp=args.sdp, propagate=not args.no_propagate)
+                  sdp=args.sdp, propagate=not args.no_propagate,
+                  constructions=not args.no_constructions)
     _kernels_first()
     with table_progress(_progress_mode(args)) as display:
         summary = batch.run_table(args.store, cells, progress=display, **kwargs)
@@ -437,6 +440,9 @@ def _add_export(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--q", type=int, default=2, help="alphabet size (default 2)")
     _add_store_option(p)
     p.add_argument("--out", required=True, help="code file to write (.json for JSON)")
+    p.add_argument("--generator", action="store_true",
+                   help="for a linear code, write its generator rows instead of every word "
+                   "(done anyway past 2^22 words)")
     _COMMANDS["export"] = _cmd_export
 
 
@@ -444,8 +450,9 @@ def _cmd_export(args: argparse.Namespace) -> int:
     from codesearch import report
     from codesearch.model import Params
 
-    size = report.export_code(args.store, Params(args.q, args.n, args.d), args.out)
-    print(f"wrote {size} words to {args.out}")
+    rows = report.export_code(args.store, Params(args.q, args.n, args.d), args.out,
+                              generator=args.generator)
+    print(f"wrote {rows} rows to {args.out}")
     return 0
 
 

@@ -135,4 +135,45 @@ def test_bad_outcome_rolls_back_the_whole_cell(tmp_path):
     with Store(tmp_path / "s.sqlite") as s:
         with pytest.raises(VerificationError):
             _store_outcome(s, task, out)
-        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0}
+        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0,
+                              "improvements": 0, "cell_log": 0}
+
+
+def test_constructions_first_and_monotone_in_n(tmp_path):
+    # The binary Golay code [23,12,7] and its extension [24,12,8] (MacWilliams-Sloane Ch. 20)
+    # come from the construction library alone (no search named); shortening and padding keep
+    # A(n+1, d) >= A(n, d) across the table.
+    path = tmp_path / "t.sqlite"
+    cells = table_cells(2, range(20, 25), range(7, 9))
+    out = run_table(str(path), cells, budget=1.0, methods=[], workers=1, bounds=False)
+    assert not out.failed and not out.errors
+    with Store(path) as s:
+        from codesearch.propagate import code_label
+
+        top = s.summary(Params(2, 24, 8))  # built, or derived from the cell (23, 7) first
+        assert top.lower == 4096
+        assert "Golay" in code_label(top.lower_provenance, top.lower_method)
+        for d in (7, 8):
+            lows = [s.summary(Params(2, n, d)).lower for n in range(20, 25)]
+            assert lows == sorted(lows)
+        logged = {(r["n"], r["d"]) for r in s.cell_log()}
+        assert logged == {(p.n, p.d) for p in cells}
+        assert {r["side"] for r in s.improvements()} == {"lower"}
+        assert s.audit() == []
+
+
+def test_rerun_with_larger_budget_continues_open_cells_only(tmp_path):
+    path = tmp_path / "t.sqlite"
+    cells = table_cells(2, range(8, 12), range(3, 4))
+    run_table(str(path), cells, budget=0.5, methods=["stub-lex"], workers=1)
+    with Store(path) as s:
+        still_open = [p for p in cells if not s.summary(p).exact]
+    # A(10,3) = 72..79 and A(11,3) = 144..158 are open (from memory of the published
+    # tables); neither the library, the lexicode nor the bounds settle them
+    assert still_open
+    events = []
+    again = run_table(str(path), cells, budget=1.0, methods=["stub-lex"], workers=1,
+                      progress=events.append)
+    assert again.ran == len(still_open)
+    done = [e for e in events if e["event"] == "done"]
+    assert all(e["budget"] == 1.0 and "search:stub-lex" in e["stages"] for e in done)

@@ -8,9 +8,11 @@ from hypothesis import given, settings, strategies as st
 
 from codesearch.errors import VerificationError
 from codesearch.model import Code, Params
-from codesearch.propagate import (
-    direct_sum, pad, parity_extend, propagate, puncture, shorten, u_u_plus_v,
+from codesearch.constructions.operations import (
+    raw_direct_sum as direct_sum, raw_pad as pad, raw_parity_extend as parity_extend,
+    raw_puncture as puncture, raw_u_u_plus_v as u_u_plus_v,
 )
+from codesearch.propagate import propagate, shorten_best as shorten
 from codesearch.results import BoundResult
 from codesearch.store import Store
 from codesearch.verify import min_distance
@@ -138,3 +140,30 @@ def test_fixed_point_properties(tmp_path_factory, seeds, bounded):
             o = Params(2, p.n - 1, p.d)
             if up.get(o) is not None:
                 assert up[p] is not None and up[p] <= 2 * up[o]
+
+
+def test_derived_codes_cite_family_and_operations(tmp_path):
+    # Extended Golay [24,12,8] (MacWilliams-Sloane Ch. 20) stored as a generator matrix:
+    # shortening three times gives a [21,9,8] code, 512 words; each derived code is kept as a
+    # generator and labelled with the operations applied.
+    from codesearch.constructions import build_family
+    from codesearch.model import LinearCode
+
+    golay = build_family("golay", q=2, extended=1)
+    assert isinstance(golay.code, LinearCode)
+    cells = [Params(2, n, 8) for n in range(20, 25)]
+    with Store(tmp_path / "s.sqlite") as s:
+        s.add_code(golay.code, Params(2, 24, 8), method="construction",
+                   provenance={"construction": golay.provenance})
+        propagate(s, cells)
+        summ = s.summary(Params(2, 21, 8))
+        assert summ.lower == 512
+        assert summ.lower_provenance["label"] == "3x shortened extended Golay(24,12)"
+        assert isinstance(s.get_stored(summ.code_id)[1], LinearCode)
+        # never A(n+1, d) < A(n, d) in the table
+        lows = [s.summary(p).lower for p in cells]
+        assert lows == sorted(lows)
+    from codesearch.report import write_report
+
+    page = write_report(str(tmp_path / "s.sqlite"), "html")
+    assert "3x shortened extended Golay(24,12)" in page

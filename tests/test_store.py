@@ -30,7 +30,8 @@ def test_pack_round_trip(q, n, m, seed):
 def test_new_store_has_schema(tmp_path):
     path = tmp_path / "s.sqlite"
     with Store(path) as s:
-        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0}
+        assert s.counts() == {"codes": 0, "bounds": 0, "runs": 0, "published": 0,
+                              "improvements": 0, "cell_log": 0}
     con = sqlite3.connect(path)
     assert con.execute("PRAGMA application_id").fetchone()[0] == APPLICATION_ID
     assert con.execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION

@@ -348,6 +348,9 @@ def _code_download(store: Any, r: CellRow) -> str:
 
     if r.code_id is None:
         return ""
+    if (r.lower or 0) > MAX_INLINE_WORDS:  # large codes are never decoded for the page
+        return (f'<span class="big">{r.lower} words: <code>codesearch export {r.n} {r.d} '
+                f'--q {r.q}</code></span>')
     p, code = store.get_code(r.code_id)
     if code.size > MAX_INLINE_WORDS:
         return (f'<span class="big">{code.size} words: <code>codesearch export {r.n} {r.d} '
@@ -426,11 +429,20 @@ def _html_cell(r: CellRow | None, q: int, n: int, d: int) -> str:
             f"{e(r.text)}{sup}{e(r.mark)}</a>{meter}</td>")
 
 
+def _made_by(r: CellRow) -> str | None:
+    """How the cell's best code was made, when the store says ("3x shortened extended
+    Golay(24,12)"): the construction or derivation label in its provenance."""
+    prov = r.lower_provenance or {}
+    label = prov.get("label") or prov.get("construction")
+    return str(label) if label else None
+
+
 def _html_ledger_row(r: CellRow, store: Any) -> str:
     e = html.escape
     cell = f"A({r.n},{r.d})" if r.q == 2 else f"A<sub>{r.q}</sub>({r.n},{r.d})"
+    made = _made_by(r)
     lower = "-" if r.lower is None else (
-        f"{r.lower} by {e(r.lower_method or '-')}"
+        f"{r.lower} by {e(r.lower_method or '-')}" + (f" ({e(made)})" if made else "")
         + (f", {r.lower_seconds:.2f} s" if r.lower_seconds is not None else ""))
     dl = _code_download(store, r)
     if dl:
@@ -524,17 +536,32 @@ def write_report(store_path: str, fmt: str, *, q: int | None = None, out: str | 
     return text
 
 
-def export_code(store_path: str, params: Params, out: str) -> int:
-    """Write the best stored code of ``params`` to ``out`` (verified first); return its size."""
+def export_code(store_path: str, params: Params, out: str, *, generator: bool = False) -> int:
+    """Write the best stored code of ``params`` to ``out`` (verified first); return the
+    number of rows written.
+
+    A code the store keeps as a generator matrix is listed word by word up to
+    :data:`codesearch.model.MAX_LISTED_WORDS` words; with ``generator`` (or past that size)
+    its generator rows are written instead, the header saying so (``form: generator``).
+    """
     from codesearch.codefile import write_code
+    from codesearch.model import MAX_LISTED_WORDS, Code, LinearCode
     from codesearch.store import Store
 
     with Store(store_path, create=False) as st:
         s = st.summary(params)
         if s.code_id is None:
             raise InputError(f"the store holds no code for {params}")
-        _, code = st.get_code(s.code_id)
-    write_code(out, code, params.d, {"method": s.lower_method, "store": store_path})
+        _, code = st.get_stored(s.code_id)
+    meta = {"method": s.lower_method, "store": store_path}
+    if isinstance(code, LinearCode) and (generator or code.size > MAX_LISTED_WORDS):
+        meta.update({"form": "generator", "dimension": code.k,
+                     "words": f"{code.q}^{code.k}", "distance": params.d})
+        write_code(out, Code(code.generator, code.q), None, meta)
+        return code.k
+    if isinstance(code, LinearCode):
+        code = code.words(MAX_LISTED_WORDS)
+    write_code(out, code, params.d, meta)
     return code.size
 
 

@@ -171,12 +171,14 @@ def _recheck(code: Any, params: Params) -> None:
 def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = None,
                seed: int | None = None, progress: Callable[[dict[str, Any]], None] | None = None,
                options: Mapping[str, Any] | None = None,
-               bound: BoundResult | None = _UNSET) -> SearchResult:
+               bound: BoundResult | None = _UNSET, incumbent: Any = None) -> SearchResult:
     """:func:`search` for a registry entry given whole (a table run ships the entries it
     resolved to its workers; the portfolio shares its known bound with its steps).
 
     ``bound`` is the cell's least usable upper bound when the caller has it already (None:
     no usable bound is known); left out, it is computed when the method first asks.
+    ``incumbent`` is a code of the cell to start from; it is checked here and handed only to
+    methods that declare ``INCUMBENT = True`` (its size is recorded in the settings).
     """
     from codesearch import verify
 
@@ -195,8 +197,12 @@ def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = N
     size = options.pop("size", None)
     target = None if size is None else positive_int(size, "size")
     seeding = getattr(module, "SEEDING", "none")
+    if incumbent is not None and getattr(module, "INCUMBENT", False):
+        verify.assert_code(incumbent, params)
+    else:
+        incumbent = None
     ctx = Context(params, time_limit=time_limit, seed=resolve_seed(seed, seeding),
-                  target=target, progress=progress,
+                  target=target, progress=progress, incumbent=incumbent,
                   **({} if bound is _UNSET else {"bound": bound}))
     out: Outcome = module.run(ctx, **options)
     seconds = time.perf_counter() - ctx.start  # the search's own time, before the re-check
@@ -209,6 +215,8 @@ def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = N
     settings.setdefault("time_limit", time_limit)
     if "size" in module.OPTIONS:
         settings.setdefault("size", target)
+    if incumbent is not None:
+        settings["incumbent_size"] = incumbent.size
     settings["version"] = __version__
     return SearchResult(params, status_of(out.code, upper, target), out.code, upper, spec.name,
                         seconds, int(out.nodes), ctx.seed, settings, target)

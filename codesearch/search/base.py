@@ -94,13 +94,18 @@ class Context:
         With option ``size``: stop at a code of this size (or prove there is none).
     progress : callable or None
         The caller's progress callback (see :meth:`report`).
+    incumbent : Code or None
+        A verified code of the cell to start from (a record hunt's best stored code); only
+        methods declaring ``INCUMBENT = True`` receive one, others see None.
     """
 
     def __init__(self, params: Params, *, time_limit: float | None = None,
                  seed: int | None = None, target: int | None = None,
                  progress: Progress | None = None, bound: Any = _UNSET,
-                 start: float | None = None, deadline: Any = _UNSET) -> None:
+                 start: float | None = None, deadline: Any = _UNSET,
+                 incumbent: Any = None) -> None:
         self.params = params
+        self.incumbent = incumbent
         self.time_limit = time_limit
         self.start = time.perf_counter() if start is None else start
         if deadline is _UNSET:

@@ -53,6 +53,8 @@ __all__ = ["OPTIONS", "SEEDING", "run"]
 
 OPTIONS = frozenset({"size", "steps", "tenure", "parity"})
 SEEDING = "random"
+#: Starts from ``ctx.incumbent`` when it is larger than the greedy start (a record hunt).
+INCUMBENT = True
 #: Tiny runs, binary (with the parity extension) and q-ary (:func:`codesearch.search.prepare_method`).
 WARM_UP = (((2, 7, 3), {"steps": 200}), ((2, 8, 4), {"steps": 200}), ((3, 4, 3), {"steps": 200}))
 
@@ -115,9 +117,12 @@ def _setup(cell: Params, init: np.ndarray, tenure: int, seed: int) -> _State:
     # per move, ball counts cost two ball updates; pairwise scoring costs about (codewords in
     # conflict, typically a few) x candidates x M distances: take the cheaper
     use_counts = space <= MAX_COUNT_SPACE and 2 * ball <= 4 * n_cand * max(M, 1)
+    if M > 65534:
+        use_counts = False  # a start this large (a greedy code at n >= 22) overflows the counts
     mode = 1 if use_counts else 2
     if mode == 1:
         cap = min(cap, 65534)  # counts are uint16 and never exceed the code size
+    cap = max(cap, M)  # the start is a code: never more words than the packing bound allows
     empty = np.empty(0, dtype=np.int64)
     masks, pat_ptr, pat_pos, pat_add = empty, np.zeros(1, dtype=np.int64), empty, empty
     if mode == 1:
@@ -150,6 +155,10 @@ def _repair(st: _State, M: int, total: int, steps: int | None, ctx: Context
         work = 2 * st.ball + M * st.n_cand if st.mode == 1 else 4 * st.n_cand * M
         chunk = max(1, min(_CHUNK, 50_000_000 // work))
         left = ctx.time_left()
+        if rate is None and left is not None:
+            # the estimate above can be far off (q-ary balls of 10^5 words, where a move
+            # scores every candidate through its ball): measure on a few moves first
+            chunk = min(chunk, 8)
         if rate is not None and left is not None:
             # never plan a call past the deadline (nor longer than 0.1 s) at the rate seen
             chunk = max(1, min(chunk, int(rate * min(0.1, max(left, 0.0)))))
@@ -202,6 +211,10 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     # random greedy code it reaches 144 in a second)
     init, _, _ = greedy.greedy_indices(cell, "random", seed=ctx.seed, stream=0,
                                        deadline=ctx.deadline)
+    if ctx.incumbent is not None and ctx.incumbent.size > init.size:
+        # a verified code of the cell; punctured for the parity cell (distance d - 1 there)
+        words = ctx.incumbent.words[:, :n].astype(np.int64)
+        init = np.unique(words @ ws.powers(q, n))
     floor = np.empty(0, dtype=np.int64)
     if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
         floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=ctx.deadline)
@@ -239,4 +252,6 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     return Outcome(code, nodes=moves, settings={
         "steps": steps, "tenure": int(tenure), "parity": extended, "searched_cell": [q, n, d],
         "scoring": "ball-counts" if st.mode == 1 else "pairwise", "start_size": int(init.size),
-        "returned": returned, "moves_per_size": levels[-50:], "stopped_by_time": out_of_time})
+        "returned": returned, "moves_per_size": levels[-50:], "stopped_by_time": out_of_time,
+        "started_from": "incumbent" if ctx.incumbent is not None and int(init.size)
+        == ctx.incumbent.size else "greedy"})

@@ -28,7 +28,8 @@ from codesearch.model import Code, Params
 
 __all__ = ["CodeReport", "check_code", "assert_code", "assert_min_distance", "min_distance",
            "distance_distribution", "first_close_pair", "is_prime", "prepare",
-           "ball_check_cost", "assert_code_by_balls"]
+           "ball_check_cost", "assert_code_by_balls", "check_cost", "assert_large_binary", "binary_linear_basis", "assert_large_qary",
+           "PAIR_CHECK_WORDS", "BITMAP_MAX_N"]
 
 
 def is_prime(q: int) -> bool:
@@ -225,14 +226,205 @@ def assert_min_distance(code: Code, d: int) -> None:
 
 
 def assert_code(code: Code, params: Params) -> None:
-    """Raise :class:`VerificationError` unless ``code`` is a code of the cell ``params``."""
+    """Raise :class:`VerificationError` unless ``code`` is a code of the cell ``params``.
+
+    The check costs what :func:`check_cost` states: pairs of words up to
+    :data:`PAIR_CHECK_WORDS` words, and for larger binary codes (n <= 64) a time linear in M
+    (:func:`assert_large_binary`).
+    """
     if not isinstance(code, Code):
         raise VerificationError(f"expected a Code, got {type(code).__name__}")
     if code.q != params.q or code.n != params.n:
         raise VerificationError(
             f"code has q={code.q}, n={code.n}; the cell needs q={params.q}, n={params.n}"
         )
+    if code.q == 2 and code.n <= 64 and code.size > PAIR_CHECK_WORDS:
+        assert_large_binary(code, params.d)
+        return
+    if code.q > 2 and code.size > PAIR_CHECK_WORDS and _qary_bitmap_cost(code, params.d):
+        assert_large_qary(code, params.d)
+        return
     assert_min_distance(code, params.d)
+
+
+# ===================================================================== large codes, linear time
+# A binary code of M words is first tested for linearity in O(M k) (rank, then the 2^k
+# coordinates of the words on a reduced basis: M = 2^k distinct words in a k-dimensional
+# space are the whole space); its distances are then the weights of its words. A nonlinear
+# code is checked on a bitmap of all 2^n words: each word marks its radius-r ball
+# (r = floor((d-1)/2)), a word found marked twice means two words within 2r; for even d each
+# word also probes its radius-(r+1) sphere, which finds two words within 2r + 1. Codes over
+# q > 2 letters are checked the same way on a bitmap of the q^n words indexed in base q.
+
+#: Codes up to this many words are checked pair by pair.
+PAIR_CHECK_WORDS = 4096
+#: Longest binary length checked on a bitmap of 2^n bits (2^32 bits = 512 MiB).
+BITMAP_MAX_N = 32
+
+
+def _ball_masks(n: int, weights: range) -> np.ndarray:
+    import itertools
+
+    out = [sum(1 << j for j in c) for w in weights for c in itertools.combinations(range(n), w)]
+    return np.array(out, dtype=np.uint64)
+
+
+#: Largest q^n checked on a bitmap for q > 2 (2^32 bits = 512 MiB).
+QARY_BITMAP_MAX_WORDS = 1 << 32
+
+
+def _qary_patterns(q: int, n: int, radii: range) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    import itertools
+
+    ptr, pos, add = [0], [], []
+    for w in radii:
+        for support in itertools.combinations(range(n), w):
+            for adds in itertools.product(range(1, q), repeat=w):
+                pos.extend(support)
+                add.extend(adds)
+                ptr.append(len(pos))
+    return (np.array(ptr, dtype=np.int64), np.array(pos, dtype=np.int64),
+            np.array(add, dtype=np.int64))
+
+
+def qary_ball_patterns(q: int, n: int, d: int
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray, int]:
+    """The arguments of the kernel ``qary_ball_clash`` after the words: the patterns of the
+    radius-r ball (r = floor((d-1)/2)), then for even d those of the radius-(r+1) sphere, and
+    the index of the first sphere pattern."""
+    r = max(0, (d - 1) // 2)
+    ptr, pos, add = _qary_patterns(q, n, range(r + 1))
+    probe_from = ptr.size - 1
+    if d % 2 == 0:
+        p2, pos2, add2 = _qary_patterns(q, n, range(r + 1, r + 2))
+        ptr = np.concatenate([ptr, p2[1:] + ptr[-1]])
+        pos, add = np.concatenate([pos, pos2]), np.concatenate([add, add2])
+    return ptr, pos, add, probe_from
+
+
+def _qary_bitmap_cost(code: Code, d: int) -> tuple[str, int, int] | None:
+    q, n, m = code.q, code.n, code.size
+    if q**n > QARY_BITMAP_MAX_WORDS:
+        return None
+    r = max(0, (d - 1) // 2)
+    sphere = [math.comb(n, i) * (q - 1) ** i for i in range(r + 2)]
+    per = sum(sphere[: r + 1]) + (sphere[r + 1] if d % 2 == 0 else 0)
+    ops = m * per * (r + 1) + q**n // 64
+    return ("bitmap", ops, q**n // 8) if ops < m * (m - 1) // 2 else None
+
+
+def assert_large_qary(code: Code, d: int) -> str:
+    """Check a code over q > 2 letters at distance ``d`` on a bitmap of the q^n words (each
+    word marks its radius-r ball, probes its radius-(r+1) sphere for even d; see the comment
+    above :data:`PAIR_CHECK_WORDS`), when that is cheaper than the pairs. Returns the method
+    used ("bitmap" or "pairs").
+
+    Raises
+    ------
+    VerificationError
+        When two words are closer than ``d``.
+    """
+    if code.size < 2 or _qary_bitmap_cost(code, d) is None:
+        assert_min_distance(code, d)
+        return "pairs"
+    q, n = code.q, code.n
+    idx = code.words.astype(np.int64) @ (q ** np.arange(n, dtype=np.int64))
+    bad = int(_kernels().qary_ball_clash(np.ascontiguousarray(idx), q, n,
+                                         *qary_ball_patterns(q, n, d)))
+    if bad >= 0:
+        raise VerificationError(
+            f"row {bad} lies within distance {d - 1} of another row; the code does not have "
+            f"minimum distance {d}")
+    return "bitmap"
+
+
+def check_cost(code: Code, d: int) -> tuple[str, int, int]:
+    """How :func:`assert_code` will check ``code`` at distance ``d``, before it does.
+
+    Returns ``(method, operations, bytes)``: ``"pairs"`` (M(M-1)/2 distances), ``"linear"``
+    (M words reduced on a basis, 2^k flags; falls back to the next method if the code is not
+    linear), ``"bitmap"`` (M times the ball and sphere sizes, a 2^n-bit map).
+    """
+    m, n = code.size, code.n
+    pairs = ("pairs", m * (m - 1) // 2, 0)
+    if code.q > 2 and m > PAIR_CHECK_WORDS:
+        return _qary_bitmap_cost(code, d) or pairs
+    if code.q != 2 or n > 64 or m <= PAIR_CHECK_WORDS:
+        return pairs
+    if m & (m - 1) == 0:
+        return ("linear", m * n, m)
+    return _bitmap_cost(m, n, d) or pairs
+
+
+def _bitmap_cost(m: int, n: int, d: int) -> tuple[str, int, int] | None:
+    if n > BITMAP_MAX_N:
+        return None
+    r = max(0, (d - 1) // 2)
+    per = sum(math.comb(n, i) for i in range(r + 1)) + (math.comb(n, r + 1) if d % 2 == 0 else 0)
+    ops = m * per + (1 << n) // 64
+    return ("bitmap", ops, (1 << n) // 8) if ops < m * (m - 1) // 2 else None
+
+
+def _span(words: np.ndarray, n: int) -> tuple[np.ndarray | None, int]:
+    """(basis as a (k, n) uint8 array, least nonzero weight) when the packed binary words are
+    exactly a linear space, else (None, least nonzero weight or 65)."""
+    m = words.shape[0]
+    if m == 0 or m & (m - 1):
+        return None, 65
+    out = np.zeros(64, dtype=np.uint64)
+    rank, distinct, minw = (int(v) for v in _kernels().binary_span_check(words, out))
+    if not distinct:
+        return None, minw
+    bits = (out[:rank, None] >> np.arange(n, dtype=np.uint64)[None, :]) & np.uint64(1)
+    return bits.astype(np.uint8), minw
+
+
+def binary_linear_basis(code: Code) -> np.ndarray | None:
+    """A basis of ``code`` as a (k, n) uint8 array when its words are exactly a binary linear
+    space (n <= 64), else None. Time linear in the number of words; no distance is checked."""
+    if code.q != 2 or code.n > 64:
+        return None
+    words = np.ascontiguousarray(_kernels().pack_words(code.words, 2)[:, 0])
+    return _span(words, code.n)[0]
+
+
+def assert_large_binary(code: Code, d: int) -> tuple[str, np.ndarray | None]:
+    """Check a binary code (n <= 64) at distance ``d`` in time linear in its size when it is
+    linear or fits the bitmap (see the comment above), by pairs otherwise.
+
+    Returns
+    -------
+    (method, basis)
+        The method used ("linear", "bitmap" or "pairs") and, when the words are exactly a
+        linear space, a basis of it as a (k, n) uint8 array (else None).
+
+    Raises
+    ------
+    VerificationError
+        When two words are closer than ``d``.
+    """
+    k = _kernels()
+    m, n = code.size, code.n
+    if m < 2:
+        return "pairs", None
+    words = np.ascontiguousarray(k.pack_words(code.words, 2)[:, 0])
+    basis, minw = _span(words, n)
+    if basis is not None:
+        if minw < d:
+            raise VerificationError(
+                f"linear code of dimension {basis.shape[0]} has a word of weight {minw} < d={d}")
+        return "linear", basis
+    if _bitmap_cost(m, n, d) is None:
+        assert_min_distance(code, d)
+        return "pairs", None
+    r = max(0, (d - 1) // 2)
+    probe = _ball_masks(n, range(r + 1, r + 2)) if d % 2 == 0 else np.zeros(0, np.uint64)
+    bad = int(k.binary_ball_clash(words, n, _ball_masks(n, range(r + 1)), probe))
+    if bad >= 0:
+        raise VerificationError(
+            f"row {bad} lies within distance {d - 1} of another row; the code does not have "
+            f"minimum distance {d}")
+    return "bitmap", None
 
 
 # ===================================================================== large binary codes
