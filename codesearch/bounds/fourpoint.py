@@ -428,8 +428,7 @@ def check_four_point_fits(params: Params) -> FourPointSize:
 
 @lru_cache(maxsize=8)
 def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
-                    target: int | None = None, characters: bool = False,
-                    families: tuple = (2, 3, 4, 5)) -> FourPointData:
+                    families: tuple = (2, 3, 4)) -> FourPointData:
     """Build the exact four-point program of binary ``(n, d)``.
 
     Parameters
@@ -528,16 +527,6 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
                         blocks.append((family, key, len(sub), const, coef))
                         rows_of[(family, key)] = tuple(sub)
 
-    if characters:
-        for key, size, const, coef, rows in _character_blocks(n, d, even, var):
-            blocks.append((6, key, size, const, coef))
-            rows_of[(6, key)] = rows
-    for k, size, const, coef, rows in (_translation_blocks(n, d, even, target, var)
-                                       if 5 in families else ()):
-        key = (k, target is not None and k == 0)
-        blocks.append((5, key, size, const, coef))
-        rows_of[(5, key)] = rows
-
     collector = RowCollector()
     for label, cv, rhs in base.rows:
         collector.add(label, [(v, c) for v, c in cv.items()], rhs)
@@ -599,13 +588,13 @@ def _pow2(x: float) -> int:
     return int(round(math.log2(x)))
 
 
-def _program(n: int, d: int, *, quad_rows: bool = True, target: int | None = None,
-             characters: bool = False, families: tuple = (2, 3, 4, 5)):
+def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3, 4)):
+    """The solver's view of the program: the exact data, proven caps, the first scaling and
+    the names written into the certificate (families 2-4 name their rows ``(i1, i2)``)."""
     from codesearch.bounds.sdp import SdpProgram
     from codesearch.bounds.terwilliger import shape_count, variable_cap
 
-    data = four_point_data(n, d, True, quad_rows=quad_rows, target=target,
-                           characters=characters, families=families)
+    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families)
     radius = (d - 1) // 2
     m0 = 2.0**n / sum(comb(n, r) for r in range(radius + 1))
     caps, shapes = [], []
@@ -618,7 +607,7 @@ def _program(n: int, d: int, *, quad_rows: bool = True, target: int | None = Non
             cap = quad_cap(n, d, key)
             caps.append(cap)
             shapes.append(m0 / float(cap))  # scaling only: solver variable x / cap
-    exps, offsets, labels = {}, {}, {}
+    exps, offsets, labels, row_labels = {}, {}, {}, {}
     for family, key, size, _c, _cf in data.blocks:
         if family in (0, 1):
             k = key
@@ -633,24 +622,16 @@ def _program(n: int, d: int, *, quad_rows: bool = True, target: int | None = Non
                 mag = abs(_c.get((r, r), 0)) + sum(abs(c) * float(caps[v])
                                                    for v, c in _cf.get((r, r), {}).items())
                 e.append(_pow2(mag) // 2 if mag > 0 else 0)
-            if family == 6:
-                m, k1, k2 = key
-                mult = (comb(n, m) * (comb(m, k1) - (comb(m, k1 - 1) if k1 else 0))
-                        * (comb(n - m, k2) - (comb(n - m, k2 - 1) if k2 else 0)))
-                labels[key] = {"m": m, "k1": k1, "k2": k2}
-            elif family == 5:
-                k = key[0]
-                mult = comb(n, k) - (comb(n, k - 1) if k else 0)
-                labels[key] = {"k": k, "target": target if key[1] else None}
-            else:
-                i, k1, k2, sign, parity = key
-                mult = ((comb(i, k1) - (comb(i, k1 - 1) if k1 else 0))
-                        * (comb(n - i, k2) - (comb(n - i, k2 - 1) if k2 else 0)) * comb(n, i))
-                labels[key] = {"i": i, "k1": k1, "k2": k2, "sign": sign, "parity": parity}
+            i, k1, k2, sign, parity = key
+            mult = ((comb(i, k1) - (comb(i, k1 - 1) if k1 else 0))
+                    * (comb(n - i, k2) - (comb(n - i, k2 - 1) if k2 else 0)) * comb(n, i))
+            labels[key] = {"i": i, "k1": k1, "k2": k2, "sign": sign}
             offsets[key] = 0
+            row_labels[(family, key)] = data.block_rows[(family, key)]
         exps[(family, key)] = (e, _pow2(m0 / mult))
     return SdpProgram(data=data, caps=tuple(caps), shapes=tuple(shapes), m0=m0,
-                      kind="four-point-sdp", exps=exps, offsets=offsets, labels=labels)
+                      kind="four-point-sdp", exps=exps, offsets=offsets, labels=labels,
+                      row_labels=row_labels)
 
 
 @lru_cache(maxsize=64)
@@ -672,7 +653,7 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     best["seconds"] = time.perf_counter() - t0
     if best["certificate"] is not None:
         best["certificate"].update({"q": 2, "n": n, "d": d, "sdp_n": n, "sdp_d": d,
-                                    "even": True, "quad_rows": quad_rows})
+                                    "even": True})
         t1 = time.perf_counter()
         valid, bound, reason = check_certificate(best["certificate"])
         best["check_seconds"] = time.perf_counter() - t1
@@ -716,179 +697,3 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
         note += f"; uncertified: {res['reason']}"
     return BoundResult(params=params, value=value, method="four-point-sdp", certificate=cert,
                        certified=res["certified"], note=note)
-
-
-def _pair_sum_terms(n: int, q: int, qq: int, t: int, d: int, even: bool, var):
-    """``G(w, w') = sum_z x({0, w, z, z + w'})`` for ``|w| = q``, ``|w'| = qq``, ``t``
-    common ones, as ``[(variable, coefficient)]`` (``-1`` the constant ``x(single) = 1``).
-
-    ``z`` has ``h_ab`` ones among the ``N_ab`` columns where ``(w, w') = (a, b)``: the points
-    ``(0, w, z, z + w')`` then have the profile ``(h10, N10 - h10, h01, N01 - h01, h00,
-    N11 - h11, h11)``."""
-    n00, n10, n01, n11 = n - q - qq + t, q - t, qq - t, t
-    out: dict = {}
-    for h00 in range(n00 + 1):
-        c00 = comb(n00, h00)
-        for h10 in range(n10 + 1):
-            c10 = c00 * comb(n10, h10)
-            for h01 in range(n01 + 1):
-                c01 = c10 * comb(n01, h01)
-                for h11 in range(n11 + 1):
-                    prof = (h10, n10 - h10, h01, n01 - h01, h00, n11 - h11, h11)
-                    v = var(_set_key(prof, (0, 1, 2, 3), d, even))
-                    if v is not None:
-                        out[v] = out.get(v, 0) + c01 * comb(n11, h11)
-    return list(out.items())
-
-
-def translation_rows(n: int, d: int, even: bool, k: int) -> list[int]:
-    """Rows ``|w|`` of block ``k`` of the translation-invariant part (``w = 0`` is the sum of
-    the singletons; the other weights must be allowed distances)."""
-    return [q for q in range(k, n - k + 1)
-            if q == 0 or (q >= d and not (even and q % 2))]
-
-
-def _translation_blocks(n: int, d: int, even: bool, target: int | None, var):
-    """Family 5: the translation-invariant part of the moment matrix of the sets of at most
-    two words (``D`` empty), reduced by ``S_n``; with a target ``T`` the block ``k = 0`` is
-    bordered by the empty set's row (row -1): ``[[T, T A_q], [T A_q, B_0]]``,
-    ``A_q = C(n, q) x(q,0,0)``, valid for every code of at least ``T`` words."""
-    from codesearch.bounds.terwilliger import beta
-
-    memo: dict = {}
-
-    def g_terms(q, qq, t):
-        key = (min(q, qq), max(q, qq), t)
-        if key not in memo:
-            memo[key] = _pair_sum_terms(n, key[0], key[1], t, d, even, var)
-        return memo[key]
-
-    for k in range(n // 2 + 1):
-        rows = translation_rows(n, d, even, k)
-        if not rows:
-            continue
-        border = target is not None and k == 0
-        full = ([-1] if border else []) + rows
-        const: dict = {}
-        coef: dict = {}
-        for r_, q in enumerate(full):
-            for s_ in range(r_, len(full)):
-                qq = full[s_]
-                c0 = 0
-                cv: dict[int, int] = {}
-                if q == -1 and qq == -1:
-                    c0 = target
-                elif q == -1:
-                    pair = var((qq, qq, 0)) if qq else -1
-                    if pair is not None:
-                        if pair == -1:
-                            c0 = target
-                        else:
-                            cv[pair] = target * comb(n, qq)
-                else:
-                    for t in range(max(0, q + qq - n), min(q, qq) + 1):
-                        b = beta(n, q, qq, k, t)
-                        if b:
-                            for v, c in g_terms(q, qq, t):
-                                if v == -1:
-                                    c0 += b * c
-                                else:
-                                    cv[v] = cv.get(v, 0) + b * c
-                    cv = {v: c for v, c in cv.items() if c}
-                if c0:
-                    const[(r_, s_)] = c0
-                if cv:
-                    coef[(r_, s_)] = cv
-        yield k, len(full), const, coef, tuple(full)
-
-
-def _kraw_vec(n_in: int, n_out: int) -> list[int]:
-    """``K(h) = sum_h' (-1)^h' C(n_in, h') C(n_out, h - h')`` for ``h = 0..n_in + n_out``."""
-    return [sum((-1) ** a * comb(n_in, a) * comb(n_out, h - a)
-                for a in range(max(0, h - n_out), min(n_in, h) + 1))
-            for h in range(n_in + n_out + 1)]
-
-
-def _character_blocks(n: int, d: int, even: bool, var):
-    """Family 6: the part of the moment matrix of the sets of at most two words on which
-    translations act by the character ``chi_a`` (``|a| = m >= 1``), reduced by
-    ``S_m x S_(n-m)``. Rows ``(p, r)``: ``w`` in ``a``-perp (``p`` even ones on the support of
-    ``a``, ``r`` off it), ``w = 0`` standing for the sum of the singletons; entries
-    ``F_a(w, w') = sum_z chi_a(z) x({0, w, z, z + w'})``."""
-    import numpy as np
-    from codesearch.bounds.terwilliger import beta
-
-    grids: dict = {}
-
-    def grid(N):
-        if N not in grids:
-            shape = tuple(v + 1 for v in N)
-            V = np.full(shape, -2, dtype=np.int64)
-            n00, n10, n01, n11 = N
-            for h in itertools.product(*(range(v + 1) for v in N)):
-                h00, h10, h01, h11 = h
-                prof = (h10, n10 - h10, h01, n01 - h01, h00, n11 - h11, h11)
-                v = var(_set_key(prof, (0, 1, 2, 3), d, even))
-                if v is not None:
-                    V[h] = v
-            grids[N] = V
-        return grids[N]
-
-    fmemo: dict = {}
-
-    def f_terms(m, p, pp, t1, r, rr, t2):
-        key = (m, p, pp, t1, r, rr, t2)
-        if key in fmemo:
-            return fmemo[key]
-        nin = (m - p - pp + t1, p - t1, pp - t1, t1)
-        nout = (n - m - r - rr + t2, r - t2, rr - t2, t2)
-        N = tuple(a + b for a, b in zip(nin, nout))
-        V = grid(N)
-        ks = [np.array(_kraw_vec(a, b), dtype=np.int64) for a, b in zip(nin, nout)]
-        W = (ks[0][:, None, None, None] * ks[1][None, :, None, None]
-             * ks[2][None, None, :, None] * ks[3][None, None, None, :])
-        mask = V != -2
-        idx = V[mask]
-        wts = W[mask]
-        out: dict = {}
-        for v, c in zip(idx.tolist(), wts.tolist()):
-            if c:
-                out[v] = out.get(v, 0) + c
-        res = [(v, c) for v, c in out.items() if c]
-        fmemo[key] = res
-        return res
-
-    for m in range(1, n + 1):
-        for k1 in range(m // 2 + 1):
-            for k2 in range((n - m) // 2 + 1):
-                rows = [(p, r) for p in range(k1, m - k1 + 1) if p % 2 == 0
-                        for r in range(k2, n - m - k2 + 1)
-                        if (p + r == 0) or (p + r >= d and not (even and (p + r) % 2))]
-                if not rows:
-                    continue
-                const: dict = {}
-                coef: dict = {}
-                for r_, (p, r) in enumerate(rows):
-                    for s_ in range(r_, len(rows)):
-                        pp, rr = rows[s_]
-                        c0 = 0
-                        cv: dict = {}
-                        for t1 in range(max(0, p + pp - m), min(p, pp) + 1):
-                            b1 = beta(m, p, pp, k1, t1)
-                            if not b1:
-                                continue
-                            for t2 in range(max(0, r + rr - (n - m)), min(r, rr) + 1):
-                                b2 = beta(n - m, r, rr, k2, t2)
-                                if not b2:
-                                    continue
-                                for v, c in f_terms(m, p, pp, t1, r, rr, t2):
-                                    if v == -1:
-                                        c0 += b1 * b2 * c
-                                    else:
-                                        cv[v] = cv.get(v, 0) + b1 * b2 * c
-                        cv = {v: c for v, c in cv.items() if c}
-                        if c0:
-                            const[(r_, s_)] = c0
-                        if cv:
-                            coef[(r_, s_)] = cv
-                yield (m, k1, k2), len(rows), const, coef, tuple(rows)

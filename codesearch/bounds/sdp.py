@@ -263,6 +263,9 @@ class SdpProgram:
         ``key -> weight of the block's first row`` (row r has weight ``offset + r``).
     labels : dict
         ``key -> fields naming the block in the certificate``.
+    row_labels : dict
+        ``(family, key) -> names of the block's rows`` for blocks whose rows are not single
+        weights: the certificate lists them as ``rows`` instead of ``weights``.
     """
 
     data: Any
@@ -273,6 +276,7 @@ class SdpProgram:
     exps: dict = field(hash=False)
     offsets: dict = field(hash=False)
     labels: dict = field(hash=False)
+    row_labels: dict = field(default_factory=dict, hash=False)
 
 
 def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
@@ -608,11 +612,14 @@ def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
     blocks_cert = []
     for family, k, weights, zint, es, g in zmats:
         m = len(weights)
+        names = prog.row_labels.get((family, k))
+        rows_field = ({"rows": [list(names[w - prog.offsets[k]]) for w in weights]}
+                      if names is not None else {"weights": weights})
         blocks_cert.append(
             {
                 "family": family,
                 **prog.labels[k],
-                "weights": weights,
+                **rows_field,
                 "matrix": [
                     [
                         _frac_str(
