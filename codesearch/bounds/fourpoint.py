@@ -120,6 +120,10 @@ MEMORY_BYTES = 20 * 10**9
 #: Largest program built: terms of the block entries (the build and the check are linear
 #: in it; about 20 s of Python per 10^7).
 MAX_BUILD_TERMS = 6 * 10**7
+#: From this length on the program is refused without being counted: the blocks of family 4
+#: (whose rows do not depend on d) alone have 9.9 * 10^7 terms at n = 28 (counted), past
+#: :data:`MAX_BUILD_TERMS`, and more for longer codes.
+UNCOUNTED_N = 28
 
 #: family -> (name, the point subsets of {0:0, 1:w, 2:u, 3:v} with their signs)
 FAMILIES: dict[int, tuple[str, tuple[tuple[tuple[int, ...], int], ...]]] = {
@@ -414,6 +418,10 @@ def check_four_point_fits(params: Params) -> FourPointSize:
     if params.d < 3:
         raise ParameterError("the four-point bound needs d >= 3 (A(n,1), A(n,2) are known)")
     n, d = _program_cell(params)
+    if n >= UNCOUNTED_N:
+        raise ParameterError(f"four-point SDP for A({n},{d}): length {n} >= {UNCOUNTED_N}, its "
+                             f"family-4 blocks alone have more than 9.9*10^7 terms, past the "
+                             f"{MAX_BUILD_TERMS:,} this machine builds; not built")
     size = four_point_size(n, d)
     if not size.fits:
         raise ParameterError(f"{size.describe()}: beyond this machine "
@@ -680,9 +688,11 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
         raise ParameterError(f"unknown solver {solver!r}; choose from {', '.join(SOLVERS)}")
     if params.q != 2 or params.d < 3:
         return None
-    n, d = _program_cell(params)
-    if not four_point_size(n, d).fits:
+    try:
+        check_four_point_fits(params)
+    except ParameterError:
         return None
+    n, d = _program_cell(params)
     res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
     value = res["value"]
