@@ -63,6 +63,8 @@ def run_cell(n: int, d: int) -> dict:
     rss = re.search(r"Maximum resident set size \(kbytes\): (\d+)", proc.stderr)
     wall = re.search(r"Elapsed \(wall clock\) time \(h:mm:ss or m:ss\): ([\d:.]+)", proc.stderr)
     out["peak_mb"] = int(rss.group(1)) / 1024 if rss else None
+    cpu = [re.search(rf"{k} time \(seconds\): ([\d.]+)", proc.stderr) for k in ("User", "System")]
+    out["cpu_s"] = sum(float(c.group(1)) for c in cpu if c)
     parts = [float(p) for p in wall.group(1).split(":")] if wall else []
     out["wall_s"] = sum(p * 60 ** k for k, p in enumerate(reversed(parts))) if parts else None
     try:
@@ -78,12 +80,13 @@ def row(r: dict) -> str:
             f"| {r['four_exact']:.4f} | {r['three']} ({r['three_float']:.4f}) | {r['published']} "
             f"| {r['variables']:,} / {r['blocks']:,} / {r['largest']} | {r['four_s']:.0f} "
             f"(build {r['build_s']:.0f}, check {r['check_s'] or 0:.0f}) | {r['wall_s']:.0f} "
+            f"| {r['cpu_s']:.0f} "
             f"| {r['peak_mb']:.0f} |")
 
 
 HEADER = ("| cell | four-point | exact dual bound | three-point (float) | published upper "
-          "| variables / blocks / largest | four-point s | wall s | peak MB |\n"
-          "|---|---|---|---|---|---|---|---|---|")
+          "| variables / blocks / largest | four-point s | wall s | CPU s | peak MB |\n"
+          "|---|---|---|---|---|---|---|---|---|---|")
 
 
 def main() -> None:

@@ -173,7 +173,7 @@ def test_four_point_request_is_refused_with_its_size(capsys):
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and "four-point SDP for A(26,8)" in err and "terms" in err
     with pytest.raises(SystemExit) as exc:
-        raise SystemExit(main(["bounds", "31", "8", "--four-point"]))
+        raise SystemExit(main(["bounds", "31", "7", "--four-point"]))
     assert exc.value.code == 2
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and "A(32,8)" in err  # odd d through A(n+1, d+1)

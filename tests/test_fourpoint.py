@@ -18,9 +18,9 @@ import numpy as np
 import pytest
 
 import known_codes
-from codesearch.bounds import sdp
+from fuzz_readers import four_point_pass_certificate
 from codesearch.bounds.fourpoint import (
-    _RELABEL, _program, _quad_profiles, canonical_profile, check_four_point_fits, four_point_bound,
+    _RELABEL, _quad_profiles, canonical_profile, check_four_point_fits, four_point_bound,
     four_point_data, four_point_size, solve_four_point)
 from codesearch.bounds.sdp import solve_three_point
 from codesearch.cli import main
@@ -168,21 +168,10 @@ def test_bound_between_code_and_three_point(n, d, exact):
     assert ok and bound == res.value, reason
 
 
-def _sdp_pass_certificate(n: int, d: int) -> dict:
-    """The certificate of one semidefinite pass (small cells keep the Delsarte pass when it
-    certifies the same integer, so the new families are exercised this way)."""
-    prog = _program(n, d)
-    cap = np.array([float(c) for c in prog.caps])
-    sv = np.sqrt(np.array([float(s) for s in prog.shapes]) / prog.m0 / cap)
-    res = sdp._certify(prog, sdp._solve_scaled(prog.data, prog.m0, sv, dict(prog.exps), None))
-    assert res["certified"], res["reason"]
-    return dict(res["certificate"], q=2, n=n, d=d, sdp_n=n, sdp_d=d, even=True)
-
-
 @pytest.fixture(scope="module")
 def cert():
     """A(8,4) = 16 (extended Hamming code, optimal: published table row n=8, d=4)."""
-    c = _sdp_pass_certificate(8, 4)
+    c = four_point_pass_certificate(8, 4)
     assert {b["family"] for b in c["blocks"]} == {0, 1, 2, 3, 4}
     assert any(m["row"][0] == "quad" for m in c["multipliers"])
     return c
@@ -191,7 +180,7 @@ def cert():
 def test_checker_agrees_with_the_solver_on_every_family(cert):
     ok, bound, reason = check_certificate(cert)
     assert ok and bound == 16, reason
-    c = _sdp_pass_certificate(10, 6)  # A(10,6) = 6 (published table row n=10, d=6)
+    c = four_point_pass_certificate(10, 6)  # A(10,6) = 6 (published table row n=10, d=6)
     ok, bound, reason = check_certificate(c)
     assert ok and bound == 6, reason
 

@@ -78,11 +78,25 @@ whatever the splits; the splits lose nothing because ``B`` is their direct sum.
 
 What is and is not in the program
 ---------------------------------
-It contains Schrijver's three-point program, so its value is never above the three-point
-bound. Gijswijt, Mittelmann and Schrijver also require the moment matrix indexed by all sets
-of at most two words (``D`` empty) to be PSD; that matrix is inhomogeneous in ``x`` (its
-corner entry is ``1 / y({0}) = 2^n / |C|``) and is not built here. The families 3 and 4 and
-the diagonal inequalities are built instead.
+It contains Schrijver's three-point program (his two block families, all his linear rows),
+so its value is never above the three-point bound; added are the families 2-4 above and the
+diagonal inequalities of every free 4-set. Gijswijt, Mittelmann and Schrijver also require the
+moment matrix indexed by all sets of at most two words (``D`` empty) to be PSD; that matrix
+is inhomogeneous in ``x`` (its corner entry is ``1 / y({0}) = 2^n / |C|``) and is not built
+here, so the value can be above theirs (measured: A(17,8) 38, A(18,8) 74 where they list 36
+and 72 from memory; benchmarks/results_fourpoint.md).
+
+Size, refusal and certificate
+-----------------------------
+:func:`four_point_size` counts the program exactly before anything is built: only free
+variables (sets with a distance in ``1..d-1`` or odd are zero and never become variables),
+the blocks after the splits with their vanishing rows dropped, and the terms of the block
+entries. :func:`check_four_point_fits` refuses (one line naming the size) a cell past
+:data:`MEMORY_BYTES`, :data:`MAX_BUILD_TERMS` or :data:`MAX_SECONDS` of estimated time;
+from :data:`UNCOUNTED_N` on without counting. The solve and the rigorous rounding are
+:func:`codesearch.bounds.sdp.solve_program`'s; the certificate (kind ``four-point-sdp``)
+names the rows ``(i1, i2)`` and the ``sign`` of each new block, and
+:mod:`codesearch.verify.four_point` re-checks it from scratch before it is returned.
 
 References
 ----------
@@ -113,13 +127,21 @@ from codesearch.results import BoundResult
 
 __all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "four_point_bound",
            "four_point_data", "FourPointData", "canonical_profile", "profile_distances",
-           "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS"]
+           "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS", "MAX_SECONDS",
+           "UNCOUNTED_N", "quad_cap", "solve_four_point"]
 
 #: Memory allowed to one solve (this machine has 24 GB, shared).
 MEMORY_BYTES = 20 * 10**9
 #: Largest program built: terms of the block entries (the build and the check are linear
 #: in it; about 20 s of Python per 10^7).
 MAX_BUILD_TERMS = 6 * 10**7
+#: Longest estimated run accepted (seconds of wall time on this machine, see
+#: :attr:`FourPointSize.seconds`).
+MAX_SECONDS = 4 * 3600
+#: The time model: ``_SECONDS_AT * (terms / _TERMS_AT) ** _SECONDS_POWER``, fitted on the
+#: measured runs of benchmarks/results_fourpoint.md (build, three numerical passes,
+#: rounding and the independent re-check; wall time on the shared, loaded machine).
+_SECONDS_AT, _TERMS_AT, _SECONDS_POWER = 143.0, 2.43e6, 2.75
 #: From this length on the program is refused without being counted: the blocks of family 4
 #: (whose rows do not depend on d) alone have 9.9 * 10^7 terms at n = 28 (counted), past
 #: :data:`MAX_BUILD_TERMS`, and more for longer codes.
@@ -324,14 +346,21 @@ class FourPointSize:
         return self.quads + self.triangles
 
     @property
+    def seconds(self) -> float:
+        """Estimated wall time of the whole run (a power law in :attr:`terms` fitted on the
+        measured cells; rough, and the machine is shared)."""
+        return _SECONDS_AT * (self.terms / _TERMS_AT) ** _SECONDS_POWER
+
+    @property
     def fits(self) -> bool:
-        return self.kkt_bytes <= MEMORY_BYTES and self.terms <= MAX_BUILD_TERMS
+        return (self.kkt_bytes <= MEMORY_BYTES and self.terms <= MAX_BUILD_TERMS
+                and self.seconds <= MAX_SECONDS)
 
     def describe(self) -> str:
-        return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} variables "
+        return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} free variables "
                 f"({self.quads:,} on 4-sets), {self.blocks:,} blocks up to order "
                 f"{self.largest}, interior-point system >= {self.kkt_bytes / 1e9:.1f} GB, "
-                f"{self.terms:,} block terms")
+                f"{self.terms:,} block terms, about {self.seconds / 60:,.0f} min")
 
 
 def _program_cell(params: Params) -> tuple[int, int]:
@@ -425,8 +454,8 @@ def check_four_point_fits(params: Params) -> FourPointSize:
     size = four_point_size(n, d)
     if not size.fits:
         raise ParameterError(f"{size.describe()}: beyond this machine "
-                             f"({MEMORY_BYTES / 1e9:.0f} GB, {MAX_BUILD_TERMS:,} terms), "
-                             "not built")
+                             f"({MEMORY_BYTES / 1e9:.0f} GB, {MAX_BUILD_TERMS:,} terms, "
+                             f"{MAX_SECONDS / 3600:.0f} h), not built")
     return size
 
 
