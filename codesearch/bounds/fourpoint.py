@@ -255,25 +255,6 @@ def block_rows(n: int, d: int, even: bool, family: int, i: int, k1: int, k2: int
     return rows
 
 
-def _block_keys(n: int, d: int, even: bool):
-    """Every new block: ``(family, i, k1, k2, sign, parity)`` with its rows.
-
-    ``sign`` is +1 / -1 for the two halves of the swap split, 0 when not split; ``parity`` is
-    that of ``i1 + i2`` (-1: not split, odd d)."""
-    for family in (2, 3, 4):
-        for i in range(1, n + 1):
-            if family != 4 and not (i >= d and not (even and i % 2)):
-                continue
-            for k1 in range(i // 2 + 1):
-                for k2 in range((n - i) // 2 + 1):
-                    rows = block_rows(n, d, even, family, i, k1, k2)
-                    if not rows:
-                        continue
-                    for sign, parity, sub in _splits(family, i, even, rows):
-                        if sub:
-                            yield (family, i, k1, k2, sign, parity), sub
-
-
 def _splits(family: int, i: int, even: bool, rows: list[tuple[int, int]]):
     """The (sign, parity, rows) of the split blocks; rows of a swap half are the
     representatives ``i1 <= i - i1`` (``<`` for the minus half)."""

@@ -58,8 +58,8 @@ from typing import Any, Mapping
 from codesearch.errors import InputError
 from codesearch.verify import strict
 from codesearch.verify.three_point import (
-    MAX_N, _add_block, _add_multiplier, _Objective, _ROW_SHAPES, _tp_beta, _tp_binom,
-    _tp_johnson, _tp_psd, block_psd_work, compare_claims, read_block, read_row)
+    MAX_N, _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
+    block_psd_work, compare_claims, read_block, read_row)
 
 __all__ = ["check_four_point_certificate", "MAX_FOUR_POINT_N", "FOUR_POINT_WORK"]
 
@@ -370,26 +370,14 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
     strict.check_work(_work(n, schrijver, pair, mults), f"four-point certificate for n={n}",
                       cap=FOUR_POINT_WORK)
     obj = _FourPointObjective(n, d, even)
-    for i in range(1, n + 1):
-        obj.add(obj.tri(i, 0, 0), Fraction(_tp_binom(n, i)))
-    seen: set = set()
-    beta_memo: dict = {}
-    for block in schrijver:
-        reason = _add_block(obj, block, seen, beta_memo)
-        if reason is not None:
-            return False, None, reason
+    johnson_memo: dict = {}
+    reason = add_schrijver_part(obj, schrijver, mults, johnson_memo, {"quad": _add_quad_row})
     entry_memo: dict = {}
     for block in pair:
+        if reason is not None:
+            break
         reason = _add_pair_block(obj, block, entry_memo)
-        if reason is not None:
-            return False, None, reason
-    johnson_memo: dict = {}
-    for name, idx, mu in mults:
-        if name == "quad":
-            reason = _add_quad_row(obj, idx, mu)
-        else:
-            reason = _add_multiplier(obj, (name, idx, mu), johnson_memo)
-        if reason is not None:
-            return False, None, reason
+    if reason is not None:
+        return False, None, reason
     total = _capped_total(obj, johnson_memo)
     return compare_claims(total, exact_claim, claimed, f"four-point SDP bound A({n0},{d0})")

@@ -22,7 +22,8 @@ from typing import Any, Mapping
 from codesearch.errors import InputError
 from codesearch.verify import strict
 
-__all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row"]
+__all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row",
+           "add_schrijver_part"]
 
 #: Longest code whose three-point certificate is read.
 MAX_N = 128
@@ -373,6 +374,20 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
              for j, m in enumerate(strict.get_list(cert, "multipliers", _WHAT, strict.MAX_ROWS))]
     strict.check_work(_work(n, blocks, mults), f"three-point certificate for n={n}")
     obj = _Objective(n, d, even)
+    johnson_memo: dict = {}
+    reason = add_schrijver_part(obj, blocks, mults, johnson_memo)
+    if reason is not None:
+        return False, None, reason
+    total = _capped_total(obj, johnson_memo)
+    return compare_claims(total, exact_claim, claimed, f"three-point SDP bound A({n0},{d0})")
+
+
+def add_schrijver_part(obj: _Objective, blocks: list, mults: list, johnson_memo: dict,
+                       other_rows: Mapping[str, Any] | None = None) -> str | None:
+    """Add ``|C| - 1`` (the pairs), Schrijver's dual blocks and the multipliers of the linear
+    rows to ``obj``; rows named in ``other_rows`` are added by the function given there
+    (``f(obj, indices, mu) -> reason or None``). The reason a part is rejected, or None."""
+    n = obj.n
     for i in range(1, n + 1):
         obj.add(obj.tri(i, 0, 0), Fraction(_tp_binom(n, i)))
     seen: set = set()
@@ -380,14 +395,15 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
     for block in blocks:
         reason = _add_block(obj, block, seen, beta_memo)
         if reason is not None:
-            return False, None, reason
-    johnson_memo: dict = {}
-    for mult in mults:
-        reason = _add_multiplier(obj, mult, johnson_memo)
+            return reason
+    for name, idx, mu in mults:
+        if other_rows is not None and name in other_rows:
+            reason = other_rows[name](obj, idx, mu)
+        else:
+            reason = _add_multiplier(obj, (name, idx, mu), johnson_memo)
         if reason is not None:
-            return False, None, reason
-    total = _capped_total(obj, johnson_memo)
-    return compare_claims(total, exact_claim, claimed, f"three-point SDP bound A({n0},{d0})")
+            return reason
+    return None
 
 
 def compare_claims(total: Fraction, exact_claim: Fraction | None, claimed: int, what: str
