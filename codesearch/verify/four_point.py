@@ -58,8 +58,8 @@ from typing import Any, Mapping
 from codesearch.errors import InputError
 from codesearch.verify import strict
 from codesearch.verify.three_point import (
-    MAX_N, _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
-    block_psd_work, compare_claims, read_block, read_row)
+    _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
+    block_psd_work, compare_claims, read_binary_cell, read_block, read_row)
 
 __all__ = ["check_four_point_certificate", "MAX_FOUR_POINT_N", "FOUR_POINT_WORK"]
 
@@ -341,21 +341,10 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
     InputError
         A malformed field, or a check past :data:`FOUR_POINT_WORK` (said before the work).
     """
-    q = strict.get_int(cert, "q", _WHAT, 2, None)
-    if q != 2:
-        return False, None, "four-point certificates are for binary codes"
-    n0 = strict.get_int(cert, "n", _WHAT, 1, MAX_FOUR_POINT_N)
-    d0 = strict.get_int(cert, "d", _WHAT, 1, n0)
-    n = strict.get_int(cert, "sdp_n", _WHAT, 1, min(MAX_N, MAX_FOUR_POINT_N + 1))
-    d = strict.get_int(cert, "sdp_d", _WHAT, 1, n)
-    even = strict.get_bool(cert, "even", _WHAT)
-    claimed = strict.get_int(cert, "value", _WHAT, 0, None)
-    exact_claim = (strict.rational(cert["bound"], "certificate: bound", allow_int=False)
-                   if "bound" in cert else None)
-    if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
-        return False, None, f"program cell ({n},{d}) does not bound A({n0},{d0})"
-    if even and d % 2:
-        return False, None, "the even-distance restriction needs even d"
+    cell = read_binary_cell(cert, MAX_FOUR_POINT_N, "four-point")
+    if isinstance(cell, str):
+        return False, None, cell
+    n0, d0, n, d, even, claimed, exact_claim = cell
     max_blocks = 2 * (n // 2 + 1) + 3 * (n + 1) * (n // 2 + 1) ** 2 * 4
     schrijver, pair = [], []
     for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, max_blocks)):
