@@ -83,8 +83,8 @@ so its value is never above the three-point bound; added are the families 2-4 ab
 diagonal inequalities of every free 4-set. Gijswijt, Mittelmann and Schrijver also require the
 moment matrix indexed by all sets of at most two words (``D`` empty) to be PSD; that matrix
 is inhomogeneous in ``x`` (its corner entry is ``1 / y({0}) = 2^n / |C|``) and is not built
-here, so the value can be above theirs (measured: A(17,8) 38, A(18,8) 74 where they list 36
-and 72 from memory; benchmarks/results_fourpoint.md).
+here, so the value can be above theirs (measured: A(17,8) <= 38, A(18,8) <= 74, where
+data/published_binary.csv lists 37 and 72 from memory; benchmarks/results_fourpoint.md).
 
 Size, refusal and certificate
 -----------------------------
