@@ -465,3 +465,11 @@ def read_certificate(path: str) -> dict[str, Any] | None:
         return None
     obj = read_json(path, MAX_CERTIFICATE_BYTES)
     return obj if isinstance(obj, dict) and "kind" in obj else None
+
+
+def file_sha256(path: str) -> str:
+    """Hex SHA-256 of a file's bytes (proof bundles and stored refutations bind their files)."""
+    import hashlib
+
+    with open(path, "rb") as fh:
+        return hashlib.file_digest(fh, "sha256").hexdigest()

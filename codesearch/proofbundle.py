@@ -72,7 +72,6 @@ using expressive clausal proofs", SAT 2014.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import os
 import time
@@ -81,6 +80,7 @@ from typing import Any, Mapping, Sequence
 
 import numpy as np
 
+from codesearch.codefile import file_sha256
 from codesearch.errors import InputError
 from codesearch.search import sat
 
@@ -152,14 +152,6 @@ class BundleCheck:
 
 def _cell(q: int, n: int, d: int) -> str:
     return f"A({n},{d})" if q == 2 else f"A_{q}({n},{d})"
-
-
-def _sha256(path: str) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
 
 
 def _rests_on(symmetry: str) -> list[str]:
@@ -323,7 +315,7 @@ def check_bundle(path: str, expect: tuple[int, int, int, int] | None = None) -> 
                                                                    "proof")):
             if not os.path.isfile(f):
                 raise InputError(f"{f}: {what} file of {label} not found")
-            if _sha256(f) != digest:
+            if file_sha256(f) != digest:
                 done.append(BranchCheck(w, False, f"{what} file differs from the manifest"))
                 return verdict(False, f"{label}: {what} file {os.path.basename(f)} differs "
                                f"from the manifest's digest", done)

@@ -46,6 +46,7 @@ from typing import Any, Iterator, Mapping, Sequence
 import numpy as np
 
 from codesearch._version import __version__
+from codesearch.codefile import file_sha256
 from codesearch.errors import InputError, VerificationError
 from codesearch.model import MAX_LISTED_WORDS, Code, LinearCode, Params
 from codesearch.results import BoundResult, SearchResult, Status
@@ -998,13 +999,8 @@ def refutation_record(manifest: str, q: int, n: int, d: int, size: int, reason: 
     (manifest ``manifest``) was just re-checked by :func:`codesearch.proofbundle.check_bundle`."""
     path = os.path.abspath(manifest)
     return {"kind": "sat-refutation", "q": q, "n": n, "d": d, "value": size - 1,
-            "manifest": path, "manifest_sha256": _file_sha256(path), "checked": _now(),
+            "manifest": path, "manifest_sha256": file_sha256(path), "checked": _now(),
             "checker": f"codesearch {__version__}", "reason": reason}
-
-
-def _file_sha256(path: str) -> str:
-    with open(path, "rb") as fh:
-        return hashlib.file_digest(fh, "sha256").hexdigest()
 
 
 def _refutation_problem(record: Mapping[str, Any]) -> str | None:
@@ -1013,7 +1009,7 @@ def _refutation_problem(record: Mapping[str, Any]) -> str | None:
     path = record.get("manifest")
     if not isinstance(path, str) or not os.path.isfile(path):
         return None
-    if _file_sha256(path) != record.get("manifest_sha256"):
+    if file_sha256(path) != record.get("manifest_sha256"):
         return f"refutation manifest {path} changed since it was re-checked"
     return None
 

@@ -94,6 +94,24 @@ def test_greedy_sample_matches_twin(cell, d, seed):
     assert out[:c].tolist() == R.heur_greedy_sample(q, n, d, q**n, 20, [seed], q**n)
 
 
+@given(cell=cells, d=st.integers(2, 4), seed=st.integers(1, 2**62), m=st.integers(1, 30),
+       cut=st.integers(0, 30))
+def test_ball_counts_added_in_slices_match_the_twin(cell, d, seed, m, cut):
+    # the local search fills its ball counts in slices under the clock: any split gives the
+    # counts of the definition (twin: codesearch._reference.heur_ball_counts)
+    q, n = cell
+    d = min(d, n)
+    m = min(m, q**n)
+    cut = min(cut, m)
+    words = np.random.default_rng(seed).choice(q**n, m, replace=False).astype(np.int64)
+    masks, ptr, pos, add = _pattern_args(q, n, d - 1)
+    counts = np.zeros(q**n, dtype=np.uint16)
+    pw = ws.powers(q, n)
+    K.heur_local_add_balls(q, n, 0, cut, words, pw, masks, ptr, pos, add, counts)
+    K.heur_local_add_balls(q, n, cut, m, words, pw, masks, ptr, pos, add, counts)
+    assert counts.tolist() == R.heur_ball_counts(words, q, n, d)
+
+
 @pytest.mark.parametrize("mode", [1, 2])
 @given(cell=cells, d=st.integers(2, 4), seed=st.integers(1, 2**62), m=st.integers(2, 30))
 def test_local_search_keeps_exact_conflict_counts(mode, cell, d, seed, m):

@@ -156,13 +156,16 @@ _UNSET: Any = object()
 
 
 def _recheck(code: Any, params: Params) -> None:
-    """Re-verify a returned code by the checker's cheaper route: all pair distances, or for
-    a binary code with small d the disjoint-balls check (M V(n, r) ball words, sorted)."""
+    """Re-verify a returned code by the checker's cheaper route: :func:`verify.assert_code`
+    (pair distances up to 4096 words, then a span check or a ball bitmap, linear in M), or,
+    where that would be all pairs of a large binary code (n > 32), the disjoint-balls check
+    (M V(n, r) ball words, sorted)."""
     from codesearch import verify
 
     ok = isinstance(code, Code) and code.q == 2 and (code.q, code.n) == (params.q, params.n)
     balls = verify.ball_check_cost(code, params.d) if ok else None
-    if balls is not None and balls < code.size * (code.size - 1) // 2:
+    route = verify.check_cost(code, params.d)[0] if ok else None
+    if balls is not None and route == "pairs" and balls < code.size * (code.size - 1) // 2:
         verify.assert_code_by_balls(code, params)
     else:
         verify.assert_code(code, params)

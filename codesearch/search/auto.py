@@ -81,6 +81,11 @@ _SCAN_MAX_WORDS = 1 << 28
 _SAMPLED_SPACE = 1 << 22
 #: Largest ball the scans mark (:data:`codesearch.search.greedy.MAX_BALL`).
 _MAX_BALL = 1 << 23
+#: The same for q > 2, where the ball is a table of digit patterns (8 bytes per digit) and
+#: each mark applies them one by one: at A_4(12,9) (5.9e6 patterns, 700 MB) the lexicode
+#: spent a 10 s share on its first codeword; codes with balls this large have a few dozen
+#: words at most, which the construction library and the orbit steps give
+_MAX_QARY_BALL = 1 << 20
 
 # Rates for the cost estimates, measured on a loaded 2-core machine (benchmarks/
 # bench_portfolio.py) and divided by about two, so that estimates err on the long side.
@@ -92,6 +97,9 @@ _BALL_WORDS_PER_S = 2.0e7
 _SCAN_PER_S = 5.0e7
 #: Seconds per XOR mask of a ball built for the scans (measured 4e-8).
 _MASK_S = 1.0e-7
+#: Seconds per ball word marked by a q-ary scan (patterns applied digit by digit): measured
+#: 1.2e-7 .. 2.8e-7 on a loaded machine (A_4(11,8), A_4(12,9)); a binary mark is one XOR.
+_MARK_QARY_S = 3.0e-7
 #: Words per second of the scans' bitmap set-up.
 _BITMAP_PER_S = 1.0e9
 #: Orbit-graph distance evaluations per second, counting every orbit as admissible
@@ -170,8 +178,11 @@ def recheck_seconds(params: Params, words: int) -> float:
     cheaper of all pair distances and, binary, the disjoint-balls check)."""
     pairs = words * (words - 1) / 2 / _PAIRS_PER_S
     if params.q == 2:
-        balls = words * _ball(2, params.n, (params.d - 1) // 2) / _BALL_WORDS_PER_S
-        pairs = min(pairs, balls)
+        # past 4096 words a ball bitmap: the radius-r ball of every word and, for even d, its
+        # radius-(r+1) sphere (A(27,4): 379 words each, not 28)
+        r = (params.d - 1) // 2
+        per = _ball(2, params.n, r) + (math.comb(params.n, r + 1) if params.d % 2 == 0 else 0)
+        pairs = min(pairs, words * per / _BALL_WORDS_PER_S)
     return pairs
 
 
@@ -229,9 +240,13 @@ def step_need(method: str, params: Params, *, order: int | None = None,
             return math.inf
         ball = _ball(params.q, params.n, params.d - 1)
         sampled = method != "lexicode" and space > _SAMPLED_SPACE  # random order: no masks
-        if ball > _MAX_BALL and not sampled:
+        if ball > (_MAX_BALL if params.q == 2 else _MAX_QARY_BALL) and not sampled:
             return math.inf
         setup = _STEP_OVERHEAD + space / _BITMAP_PER_S + (0 if sampled else ball * _MASK_S)
+        if params.q > 2 and not sampled:
+            # the first codeword's ball is marked before any code can be returned (5.9e6
+            # words at A_4(12,9): 1-4 s, one kernel call)
+            setup += ball * _MARK_QARY_S
         return setup if method != "local" else 0.1 + 2 * setup
     if method == "orbit":
         if space > _ORBIT_MAX_WORDS:

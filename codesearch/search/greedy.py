@@ -118,15 +118,24 @@ def greedy_indices(
         fail_state = np.zeros(1, dtype=np.int64)
         count = 0
         draws = 0
+        per_call = _SAMPLE_DRAWS
         while True:
-            before = fail_state[0]
-            count = K.heur_greedy_sample(q, n, d, space, _SAMPLE_FAILS, _SAMPLE_DRAWS,
+            call = time.perf_counter()
+            count = K.heur_greedy_sample(q, n, d, space, _SAMPLE_FAILS, per_call,
                                          fail_state, rng, out, count)
-            draws += _SAMPLE_DRAWS
+            draws += per_call
             if fail_state[0] >= _SAMPLE_FAILS or count >= out.shape[0]:
                 break
-            if deadline is not None and time.perf_counter() > deadline:
+            now = time.perf_counter()
+            if deadline is not None and now > deadline:
                 break
+            # a draw costs one distance per word kept so far: calls grow longer with the code
+            # (2 s each at 6000 words of A_5(12,4)); aim at 0.1 s a call and never plan one
+            # past the deadline at the rate just seen
+            rate = per_call / max(now - call, 1e-6)
+            per_call = max(1, min(4 * per_call, int(0.1 * rate)))
+            if deadline is not None:
+                per_call = max(1, min(per_call, int(rate * (deadline - now))))
         return out[:count].copy(), False, draws
     if space > MAX_MARK_SPACE:
         raise ParameterError(
@@ -147,17 +156,27 @@ def greedy_indices(
         pat_ptr, pat_pos, pat_add = ws.ball_patterns(q, n, radius)
     count = 0
     t = 0
+    # the longest kernel call so far: a call that marks the ball of a new codeword costs
+    # ball-size memory writes (seconds for q-ary balls of 10^6+ words), so a scan under a
+    # deadline stops when the next call, as long as the longest one, would end past it
+    longest = 0.0
+    # about one codeword per call where balls are large (space / cap words hold one on
+    # average at the packing bound), so that the longest call is about one ball's marking
+    chunk = min(_CHUNK, max(1 << 16, space // cap))
     while t < space:
-        t1 = min(space, t + _CHUNK)
+        t1 = min(space, t + chunk)
+        call = time.perf_counter()
         if q == 2:
             count = K.heur_greedy_mark_binary(t, t1, kind, n, perm, masks, blocked, out, count)
         else:
             count = K.heur_greedy_mark_qary(t, t1, kind, q, n, pw, perm, pat_ptr, pat_pos,
                                             pat_add, blocked, out, count)
         t = t1
+        now = time.perf_counter()
+        longest = max(longest, now - call)
         if progress is not None:
-            progress({"incumbent": count, "nodes": t, "elapsed": time.perf_counter() - start})
-        if deadline is not None and time.perf_counter() > deadline and t < space:
+            progress({"incumbent": count, "nodes": t, "elapsed": now - start})
+        if deadline is not None and now + longest > deadline and t < space:
             break
     return out[:count].copy(), t >= space, t
 

@@ -37,6 +37,7 @@ F. J. MacWilliams and N. J. A. Sloane, The Theory of Error-Correcting Codes, Nor
 
 from __future__ import annotations
 
+import math
 import time
 
 from dataclasses import dataclass
@@ -66,6 +67,8 @@ MAX_WORDS = 2**20
 _N_RANDOM = 8
 #: Moves per kernel call, between time-limit checks.
 _CHUNK = 4000
+#: Largest q-ary ball for the lexicode floor (the portfolio's limit for q-ary scans).
+_FLOOR_MAX_QARY_BALL = 1 << 20
 
 
 def _work_cell(params: Params, parity: bool) -> tuple[Params, bool]:
@@ -139,6 +142,47 @@ def _setup(cell: Params, init: np.ndarray, tenure: int, seed: int) -> _State:
                   np.zeros(cap + 1, dtype=np.int32), tabu, ws.xorshift_state(seed, 1))
 
 
+def _share(ctx: Context, left: float | None, fraction: float) -> float | None:
+    """Deadline for a preliminary step: ``fraction`` of ``left`` seconds from now."""
+    if left is None:
+        return ctx.deadline
+    return min(ctx.deadline, time.perf_counter() + fraction * max(left, 0.0))
+
+
+def _finish_seconds(params: Params, M: int) -> float:
+    """Generous seconds to list an M-word code of the cell and have it re-checked twice (by
+    the front end of this method and by the portfolio's, when it runs inside one): a bitmap
+    check marks the radius-r ball of every word and, for even d, probes its radius-(r+1)
+    sphere; 2e-8 to 3e-8 s per marked or probed word on a loaded machine (464896 words of
+    A(27,4): 379 each, 3.5 s a check)."""
+    r = (params.d - 1) // 2
+    per = ws.ball_size(params.q, params.n, r)
+    if params.d % 2 == 0:
+        per += math.comb(params.n, r + 1) * (params.q - 1) ** (r + 1)
+    return M * (params.n + 2 * per) * 3e-8 + params.space_size * 1e-9
+
+
+def _count_balls(st: _State, M: int, ctx: Context) -> bool:
+    """Fill ``st.counts`` for the start code ``st.words[:M]``; False if the deadline came first.
+
+    One random access into the q^n counts per word of each ball: 10^3 words with balls of
+    46666 words over 4^12 took 10 s in one kernel call (A_4(12,5)), so the balls are added in
+    slices of about 2 * 10^6 accesses with the clock read between them.
+    """
+    from codesearch import _kernels as K
+
+    q, n = st.cell.q, st.cell.n
+    per = max(1, 2_000_000 // st.ball)
+    st.counts[:] = 0
+    for lo in range(0, M, per):
+        K.heur_local_add_balls(q, n, lo, min(M, lo + per), st.words, *st.kernel_args())
+        if ctx.expired():
+            return False
+    st.conf[:M] = st.counts[st.words[:M]].astype(np.int32) - 1
+    assert not st.conf[:M].any()  # the start is a code
+    return True
+
+
 def _repair(st: _State, M: int, total: int, steps: int | None, ctx: Context
             ) -> tuple[int, int, bool]:
     """Tabu moves at size M until no conflict is left, the step budget or the deadline.
@@ -209,26 +253,30 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     # as a floor: it is often larger than what the search reaches (A(15,5)), but as a start
     # it is a rigid local optimum (measured: from the lexicode A(12,4) stays at 128, from a
     # random greedy code it reaches 144 in a second)
+    # the preliminary steps get shares of the time (a random greedy pass over 4^12 words can
+    # take a whole 3 s budget on its own, measured at A_4(12,5))
+    left = ctx.time_left()
     init, _, _ = greedy.greedy_indices(cell, "random", seed=ctx.seed, stream=0,
-                                       deadline=ctx.deadline)
+                                       deadline=_share(ctx, left, 0.4))
     if ctx.incumbent is not None and ctx.incumbent.size > init.size:
         # a verified code of the cell; punctured for the parity cell (distance d - 1 there)
         words = ctx.incumbent.words[:, :n].astype(np.int64)
         init = np.unique(words @ ws.powers(q, n))
     floor = np.empty(0, dtype=np.int64)
-    if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= greedy.MAX_BALL:
-        floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=ctx.deadline)
+    # (not where the ball is a table of millions of q-ary patterns: building it alone passes
+    # a 10 s budget, measured at A_5(11,8))
+    max_ball = greedy.MAX_BALL if q == 2 else _FLOOR_MAX_QARY_BALL
+    if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= max_ball:
+        floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=_share(ctx, left, 0.2))
     st = _setup(cell, init, int(tenure), ctx.seed)
     best, M = init.copy(), int(init.size)
-    if st.mode == 1:
-        total = K.heur_local_init(q, n, d, M, st.words, st.conf, st.mode, *st.kernel_args())
-        assert total == 0  # a greedy code has no conflicts
-    else:
-        total = 0  # a greedy code has no conflicts: conf = 0 is exact, no O(M^2) recount
+    # the start is a code: no conflicts, so conf = 0 is exact (pairwise scoring needs no
+    # O(M^2) recount); ball scoring needs the counts, filled in slices under the clock
+    total = 0
+    out_of_time = st.mode == 1 and not _count_balls(st, M, ctx)
     moves = 0
     levels: list[int] = []
-    out_of_time = False
-    while M < st.cap and (ctx.target is None or max(best.size, floor.size) < ctx.target):
+    while not out_of_time and M < st.cap and (ctx.target is None or max(best.size, floor.size) < ctx.target):
         total += K.heur_local_grow(q, n, d, q**n, M, st.words, st.conf, st.mode,
                                    *st.kernel_args(), st.rng, 4 * _N_RANDOM)
         M += 1
@@ -239,7 +287,10 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
             break
         best = st.words[:M].copy()
         ctx.report(incumbent=int(best.size), nodes=moves)
-        if ctx.expired():
+        left = ctx.time_left()
+        if left is not None and left < _finish_seconds(ctx.params, M):
+            # what is left would not even list and re-check the code found (729088 words of
+            # A(27,4): 2.5 s), so stop growing it
             out_of_time = True
             break
     returned = "local search"

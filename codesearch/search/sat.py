@@ -47,7 +47,6 @@ expressive clausal proofs", SAT 2014.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import os
 import time
@@ -56,6 +55,7 @@ from typing import Any, Callable, Mapping, Sequence
 
 import numpy as np
 
+from codesearch.codefile import file_sha256
 from codesearch.errors import InputError, ParameterError
 from codesearch.model import Params
 from codesearch.search import _wordspace as ws
@@ -639,14 +639,6 @@ def _pysat_version() -> str:
 
 
 # ------------------------------------------------------------------------------ manifest
-def _sha256(path: str) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
-
-
 def rests_on(symmetry: str) -> list[str]:
     """The statements a refutation at this symmetry level rests on."""
     level = SYMMETRY.index(symmetry)
@@ -668,8 +660,8 @@ def write_manifest(proof: str, q: int, n: int, d: int, size: int, symmetry: str,
             if os.path.dirname(os.path.abspath(f)) != base:
                 raise InputError(f"{f}: proof files must sit next to the manifest {path}")
         branches.append({"weight": w, "formula": os.path.basename(cnf),
-                         "formula_sha256": _sha256(cnf), "proof": os.path.basename(prf),
-                         "proof_sha256": _sha256(prf)})
+                         "formula_sha256": file_sha256(cnf), "proof": os.path.basename(prf),
+                         "proof_sha256": file_sha256(prf)})
     manifest = {
         "format": MANIFEST_FORMAT,
         "claim": {"q": q, "n": n, "d": d, "size": size},
