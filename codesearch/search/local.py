@@ -296,6 +296,13 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     returned = "local search"
     if floor.size > best.size:
         best, returned = floor, "lexicode (larger than the local search reached)"
+    left = ctx.time_left()
+    if left is not None and best.size > 1 and _finish_seconds(ctx.params, best.size) > left:
+        # a code the time left cannot list and re-check (a lexicode prefix of 460800 words at
+        # A(28,4)) is cut to one it can: any subset of a code is a code
+        keep = max(1, int(best.size * max(left, 0.0) / _finish_seconds(ctx.params, best.size)))
+        best = np.sort(best)[:keep]
+        returned += f", cut to {keep} words for the time left"
     code = None
     if best.size:
         cwords = ws.indices_to_words(np.sort(best), q, n)
