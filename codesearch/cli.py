@@ -217,8 +217,9 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
                    help="write the certificate of the upper bound (any kind) as JSON; for a "
                    "grid FILE must contain {n} and {d}; re-check with 'codesearch check FILE'")
     p.add_argument("--four-point", action="store_true",
-                   help="ask for the four-point SDP bound (binary): prints its estimated size "
-                   "and refuses (not built in this version)")
+                   help="also the four-point SDP bound (binary, d >= 3; contains the three-point "
+                   "program; minutes per cell from n = 17). A cell whose program would not fit "
+                   "this machine is refused with its size before anything is solved")
     p.add_argument("--no-relations", action="store_true",
                    help="each cell on its own (no A(n,d) <= 2 A(n-1,d) etc. across the grid)")
     _COMMANDS["bounds"] = _cmd_bounds
@@ -237,10 +238,12 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
         from codesearch.bounds.fourpoint import check_four_point_fits
 
         for p in cells:
-            check_four_point_fits(p)  # raises, naming the program's estimated size
-    if args.sdp:
+            if p.q != 2 or p.d >= 3:
+                check_four_point_fits(p)  # raises, naming the program's size
+    if args.sdp or args.four_point:
         _require_sdp_solver()
-    options = dict(lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp)
+    options = dict(lp=not args.no_lp, lp_fallback=not args.fast, sdp=args.sdp,
+                   four_point=args.four_point)
     result = bounds.grid_bounds(cells, lambda p: bounds.all_bounds(p, **options),
                                 relations=not args.no_relations)
     summaries = [bounds.summarize(p, result[p].bounds, result[p].upper, result[p].cites)
@@ -249,7 +252,7 @@ def _cmd_bounds(args: argparse.Namespace) -> int:
         for s in summaries:
             _print_json(s)
     else:
-        print(text.bounds_table(summaries, lp=options["lp"], sdp=args.sdp))
+        print(text.bounds_table(summaries, lp=options["lp"], sdp=args.sdp or args.four_point))
     if pattern is not None:
         from codesearch.codefile import write_certificate
 

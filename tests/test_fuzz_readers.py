@@ -39,6 +39,7 @@ def _fuzz(reader: Reader, examples: int, outcomes: collections.Counter) -> None:
 
 READERS = ["certificate:delsarte-lp", "certificate:delsarte-lp-qcw",
            "certificate:three-point-sdp", "certificate:qary-three-point-sdp",
+           "certificate:four-point-sdp",
            "certificate:lp-odd-size", "certificate:distance-enumeration",
            "certificate:relation-chain", "certificate:theorem", "certificate:profile-lp",
            "code file (text)",

@@ -79,7 +79,7 @@ def compute_bound(params: Params, name: str) -> BoundResult | None:
 
 
 def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
-               lp_fallback: bool = True) -> dict[str, BoundResult]:
+               lp_fallback: bool = True, four_point: bool = False) -> dict[str, BoundResult]:
     """Every applicable bound for one cell, by canonical name.
 
     Parameters
@@ -97,6 +97,10 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         Let the LPs fall back to the high-precision simplex when double precision cannot
         certify them (LP values beyond about 2^40; warm-started from the neighbouring
         distance, so a whole binary grid n <= 128 stays well under a minute).
+    four_point : bool
+        Also compute the four-point semidefinite bound (binary, d >= 3) where its program
+        fits this machine (:func:`codesearch.bounds.fourpoint.four_point_size`; minutes per
+        cell from n = 17 on). Off by default: no fast path turns it on.
 
     Returns
     -------
@@ -124,17 +128,24 @@ def all_bounds(params: Params, *, sdp: bool = False, lp: bool = True,
         result = semidefinite(params)
         if result is not None:
             out[result.method] = result
+    if four_point and params.q == 2 and params.d >= 3:
+        from codesearch.bounds.fourpoint import four_point_bound
+
+        result = four_point_bound(params)  # None when the program does not fit
+        if result is not None:
+            out[result.method] = result
     return out
 
 
 def upper_bound(params: Params, *, sdp: bool = False, lp: bool = True,
-                lp_fallback: bool = True) -> BoundResult:
+                lp_fallback: bool = True, four_point: bool = False) -> BoundResult:
     """The least usable upper bound on ``A_q(n,d)`` (certified, valid for every code).
 
     Ties go to the earlier bound in :data:`BOUNDS` (the plainest argument). Options as in
     :func:`all_bounds`.
     """
-    return least_usable(all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback))
+    return least_usable(all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback,
+                                   four_point=four_point))
 
 
 def least_usable(bounds: dict[str, BoundResult]) -> BoundResult:
@@ -153,7 +164,7 @@ def gv_lower_bound(params: Params) -> int:
 
 
 def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
-                 lp_fallback: bool = True) -> dict:
+                 lp_fallback: bool = True, four_point: bool = False) -> dict:
     """The machine-readable summary of one cell (one line of ``codesearch bounds --json``).
 
     Keys: ``q, n, d``; ``bounds`` (name -> int, usable bounds only); ``upper`` and
@@ -161,7 +172,7 @@ def cell_summary(params: Params, *, sdp: bool = False, lp: bool = True,
     ``linear`` (name -> int, bounds valid for linear codes only); ``uncertified`` (names
     whose solver answer failed its exact check; never used).
     """
-    found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback)
+    found = all_bounds(params, sdp=sdp, lp=lp, lp_fallback=lp_fallback, four_point=four_point)
     return summarize(params, found)
 
 

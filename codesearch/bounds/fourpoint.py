@@ -1,100 +1,731 @@
-"""Size of the four-point semidefinite program for binary codes, announced before anything is built.
+"""A four-point semidefinite upper bound on A(n, d) for binary codes, proved in exact arithmetic.
 
 Problem
 -------
-The four-point bound of Gijswijt, Mittelmann and Schrijver has one variable per orbit of
-codes ``S`` with ``|S| <= 4`` under the automorphisms of the cube, and requires the matrix
-``(x(C u C'))`` indexed by codes of size at most 2 to be PSD. This module does not solve it:
-it estimates the program's size from first principles, so that a request can be refused
-with one line naming that size before any memory is spent.
+Bound the size of every binary code ``C`` of length ``n`` and minimum distance ``d`` with
+constraints on how the code's *quadruples* of words sit in the cube, as in the method of
+Gijswijt, Mittelmann and Schrijver (2012), on top of Schrijver's three-point program
+(:mod:`codesearch.bounds.sdp`).
 
-Estimate
---------
-An ordered 4-tuple ``(0, u, v, w)`` is determined up to coordinate permutations by how many
-of its ``n`` columns ``(0, u_i, v_i, w_i)`` take each of the 8 possible values: ``C(n+7, 7)``
-orbits. An unordered 4-set modulo translations gives at most ``4! = 24`` of them, so the
-program has at least ``m = C(n+7, 7) / 24`` variables. Every interior-point method (Clarabel,
-SCS's direct mode, SDPA) factors an ``m x m`` Schur-complement matrix at each iteration:
-at least ``8 m^2`` bytes of memory and ``m^3 / 3`` floating-point operations per iteration,
-whatever the block structure. These are lower bounds: the program is at least this large.
+Variables
+---------
+Let ``G`` be the automorphism group of the cube (translations and coordinate permutations)
+and, for a set ``S`` of words, ``y(S)`` the probability that ``g(S)`` lies in ``C`` for ``g``
+uniform in ``G``; ``y`` depends only on the ``G``-orbit of ``S``. Put
+``x(S) = y(S) / y({0})``: ``x`` of a single word is 1, ``x`` of a pair or triple is
+Schrijver's three-point variable of its triangle of distances
+(:mod:`codesearch.bounds.terwilliger`), and ``x`` of a 4-set is new. A 4-set
+``{P0, P1, P2, P3}`` is described by its *profile* ``(s0, s1, s2, s3, m1, m2, m3)``: ``s_a``
+columns in which ``P_a`` differs from the three others, ``m_b`` columns that split the four
+points as ``{P0, P_b} | {the other two}``; the rest of the ``n`` columns are constant. The
+``G``-orbits of 4-sets are the profiles modulo the 24 relabellings of the points (the
+canonical profile is the least one); the pairwise distances are
+``d(P_a, P_b) = s_a + s_b + (the two m's whose matching separates a and b)``. A 4-set with a
+distance in ``1..d-1`` never lies in a code, so its variable is zero and left out; for even
+``d`` only codes with all distances even are considered (some largest code is one:
+puncture, then extend by parity), which also zeroes every set with an odd distance.
 
-On this machine (24 GB, 2 cores, about 8 * 10^9 flop/s per core measured with numpy's
-Cholesky on 5000 x 5000) that is: n = 17, m >= 14 421, 1.7 GB, ~1 minute per iteration;
-n = 20, m >= 37 001, 11 GB, ~18 minutes per iteration; n = 21, m >= 49 335, 19.5 GB,
-~40 minutes; from n = 22 on (m >= 65 032, 34 GB) the factor alone does not fit in memory.
+Constraints (every one holds for every code; proofs)
+----------------------------------------------------
+For a code ``C`` and a set ``D`` of words, the matrix indexed by words ``u, v``
+
+    E_g[ 1(g u in C) 1(g v in C) prod_{a in A} 1(g a in C) prod_{b in B} (1 - 1(g b in C)) ]
+
+with ``D = A u B`` is an average of matrices ``f f^T`` (``f_u = 1(g u in C) * ...``), hence
+positive semidefinite; expanding the product it is a signed sum of ``y`` of sets, and dividing
+by ``y({0}) > 0`` keeps it PSD. For ``|D| = 1`` these are Schrijver's two matrices (kept as
+they are, with all of Schrijver's linear rows). New here: ``D = {0, w}`` with ``|w| = i``,
+
+* family 2 (``0, w`` in ``C``):      ``N_uv = x({0, w, u, v})``, ``i >= d``;
+* family 3 (``0`` in, ``w`` out):    ``N_uv = x({0, u, v}) - x({0, w, u, v})``, ``i >= d``;
+* family 4 (``0, w`` both out):      ``N_uv = x({u, v}) - x({0, u, v}) - x({w, u, v})
+  + x({0, w, u, v})``, ``1 <= i <= n``
+
+(family 3 with ``i < d`` is Schrijver's first matrix again, so it is left out), and the
+diagonal inequalities of the same kind for every 4-set ``S`` of the program and every split
+``S = A u B`` with ``A`` not empty: ``sum_{B' in B} (-1)^|B'| x(A u B') >= 0``.
+
+Symmetry reduction (block diagonalisation)
+------------------------------------------
+``N`` is invariant under the permutations fixing ``w``, ``S_i x S_{n-i}`` (support of ``w``
+and its complement). The matrices indexed by ``F^i x F^{n-i}`` invariant under that group are
+the tensor product of two Terwilliger algebras of cubes, so Schrijver's block
+diagonalisation of each factor gives theirs: with ``u`` of weights ``(i1, i2)`` on the two
+parts, ``v`` of weights ``(j1, j2)`` and ``t1, t2`` common ones, ``N`` is PSD if and only if
+for all ``0 <= k1 <= i/2``, ``0 <= k2 <= (n-i)/2`` the block
+
+    B[(i1,i2),(j1,j2)] = sum_{t1,t2} beta^(i)[i1,j1,k1,t1] beta^(n-i)[i2,j2,k2,t2] N(i1,j1,t1,i2,j2,t2)
+
+(``k1 <= i1, j1 <= i - k1``, ``k2 <= i2, j2 <= n - i - k2``; ``beta^(m)`` Schrijver's coefficient
+at length ``m``, :func:`codesearch.bounds.terwilliger.beta`) is PSD: the blocks are the images of
+``N`` under the tensor product of the two *-isomorphisms, up to a positive diagonal
+congruence, with multiplicity ``(C(i,k1) - C(i,k1-1)) (C(n-i,k2) - C(n-i,k2-1))``. Rows whose
+diagonal entry vanishes for every code (the words ``u`` that cannot lie in ``C`` together with
+the set ``A``) are dropped. Two further splits, each a congruence of the block:
+
+* *parity* (even ``d``): entries between rows with ``i1 + i2`` of different parities are
+  zero (the sets involved have an odd distance), so the block is the direct sum of its two
+  parity classes;
+* *swap* (families 2 and 4): translation by ``w`` exchanges ``0`` and ``w``, maps row
+  ``(i1, i2)`` to ``(i - i1, i2)`` and leaves ``N`` invariant; with ``f_r = e_r + e_r'`` and
+  ``f_r = e_r - e_r'`` (``r'`` the mirror row) the block splits into a ``+`` and a ``-`` part.
+  For odd ``i`` (family 4 with even ``d``) the mirror exchanges the parity classes, so only
+  the class of even ``i1 + i2`` is kept.
+
+Each split block is ``F^T B F`` for a fixed integer matrix ``F``, so it is PSD for every code
+whatever the splits; the splits lose nothing because ``B`` is their direct sum.
+:mod:`codesearch.verify.four_point` rebuilds every coefficient itself.
+
+What is and is not in the program
+---------------------------------
+It contains Schrijver's three-point program (his two block families, all his linear rows),
+so its value is never above the three-point bound; added are the families 2-4 above and the
+diagonal inequalities of every free 4-set. Gijswijt, Mittelmann and Schrijver also require the
+moment matrix indexed by all sets of at most two words (``D`` empty) to be PSD; that matrix
+is inhomogeneous in ``x`` (its corner entry is ``1 / y({0}) = 2^n / |C|``) and is not built
+here, so the value can be above theirs (measured: A(17,8) <= 38, A(18,8) <= 74, where
+data/published_binary.csv lists 37 and 72 from memory; benchmarks/results_fourpoint.md).
+
+Size, refusal and certificate
+-----------------------------
+:func:`four_point_size` counts the program exactly before anything is built: only free
+variables (sets with a distance in ``1..d-1`` or odd are zero and never become variables),
+the blocks after the splits with their vanishing rows dropped, and the terms of the block
+entries. :func:`check_four_point_fits` refuses (one line naming the size) a cell past
+:data:`MEMORY_BYTES`, :data:`MAX_BUILD_TERMS` or :data:`MAX_SECONDS` of estimated time;
+from :data:`UNCOUNTED_N` on without counting. The solve and the rigorous rounding are
+:func:`codesearch.bounds.sdp.solve_program`'s; the certificate (kind ``four-point-sdp``)
+names the rows ``(i1, i2)`` and the ``sign`` of each new block, and
+:mod:`codesearch.verify.four_point` re-checks it from scratch before it is returned.
 
 References
 ----------
 D. C. Gijswijt, H. D. Mittelmann and A. Schrijver, "Semidefinite code bounds based on
-quadruple distances", IEEE Trans. Inform. Theory 58 (2012) 2697-2705.
+quadruple distances", IEEE Trans. Inform. Theory 58 (2012) 2697-2705 (the variables on
+4-sets, the matrices ``M_D`` and their reduction by the stabiliser of ``D``).
+A. Schrijver, "New code upper bounds from the Terwilliger algebra and semidefinite
+programming", IEEE Trans. Inform. Theory 51 (2005) 2859-2866 (the block diagonalisation of
+the Terwilliger algebra used for each factor).
+M. Laurent, "Strengthened semidefinite programming bounds for codes", Math. Program. 109
+(2007) 239-261 (the matrices as moment matrices of 0/1 variables).
 """
 
 from __future__ import annotations
 
+import itertools
+import math
+import time
 from dataclasses import dataclass
+from fractions import Fraction
+from functools import lru_cache
 from math import comb
+from typing import Any
 
 from codesearch.errors import ParameterError
 from codesearch.model import Params
+from codesearch.results import BoundResult
 
-__all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "MEMORY_BYTES",
-           "FLOPS_PER_SECOND"]
+__all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "four_point_bound",
+           "four_point_data", "FourPointData", "canonical_profile", "profile_distances",
+           "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS", "MAX_SECONDS",
+           "UNCOUNTED_N", "quad_cap", "solve_four_point"]
 
-#: Memory available to one solve (the machine's 24 GB).
-MEMORY_BYTES = 24 * 10**9
-#: Sustained dense floating-point rate of both cores together (numpy Cholesky, measured).
-FLOPS_PER_SECOND = 16 * 10**9
+#: Memory allowed to one solve (this machine has 24 GB, shared).
+MEMORY_BYTES = 20 * 10**9
+#: Largest program built: terms of the block entries (the build and the check are linear
+#: in it; about 20 s of Python per 10^7).
+MAX_BUILD_TERMS = 6 * 10**7
+#: Longest estimated run accepted (seconds of wall time on this machine, see
+#: :attr:`FourPointSize.seconds`).
+MAX_SECONDS = 4 * 3600
+#: The time model: ``_SECONDS_AT * (terms / _TERMS_AT) ** _SECONDS_POWER``, a least-squares
+#: fit in logarithms on the measured runs of benchmarks/results_fourpoint.md (A(17,8),
+#: A(18,8), A(20,8): 143 s, 463 s, 1368 s of wall time for 2.4, 3.7, 8.4 million terms;
+#: build, three numerical passes, rounding and the independent re-check, on the shared,
+#: loaded machine).
+_SECONDS_AT, _TERMS_AT, _SECONDS_POWER = 361.0, 3.75e6, 1.8
+#: The memory model: peak bytes ``_BASE_BYTES + _BYTES_PER_TERM * terms`` (same runs: 0.9,
+#: 1.5, 3.9 GB peak resident, 370-460 bytes per term; the dict-of-dicts program dominates,
+#: not the solver).
+_BASE_BYTES, _BYTES_PER_TERM = 3 * 10**8, 500
+#: From this length on the program is refused without being counted: the blocks of family 4
+#: (whose rows do not depend on d) alone have 9.9 * 10^7 terms at n = 28 (counted), past
+#: :data:`MAX_BUILD_TERMS`, and more for longer codes.
+UNCOUNTED_N = 28
+
+#: family -> (name, the point subsets of {0:0, 1:w, 2:u, 3:v} with their signs)
+FAMILIES: dict[int, tuple[str, tuple[tuple[tuple[int, ...], int], ...]]] = {
+    2: ("0 and w in the code", (((0, 1, 2, 3), 1),)),
+    3: ("0 in, w out", (((0, 2, 3), 1), ((0, 1, 2, 3), -1))),
+    4: ("0 and w out", (((2, 3), 1), ((0, 2, 3), -1), ((1, 2, 3), -1), ((0, 1, 2, 3), 1))),
+}
+
+# The three perfect matchings of the points {0,1,2,3}, named by the partner of point 0.
+_PARTNERS = (1, 2, 3)
+
+
+def _matching_pairs(b: int) -> tuple[frozenset, frozenset]:
+    rest = [p for p in (1, 2, 3) if p != b]
+    return frozenset((0, b)), frozenset(rest)
+
+
+def _relabellings() -> list[tuple[tuple[int, ...], tuple[int, ...]]]:
+    """For each permutation ``p`` (new point ``a`` = old point ``p[a]``): the old index of
+    each new ``s`` and of each new ``m`` entry."""
+    out = []
+    for p in itertools.permutations(range(4)):
+        mperm = []
+        for b in _PARTNERS:
+            pair = {p[0], p[b]}
+            if 0 in pair:
+                old = (pair - {0}).pop()
+            else:
+                old = ({1, 2, 3} - pair).pop()
+            mperm.append(old - 1)
+        out.append((tuple(p), tuple(mperm)))
+    return out
+
+
+_RELABEL = _relabellings()
+
+
+def canonical_profile(prof: tuple[int, ...]) -> tuple[int, ...]:
+    """The least profile ``(s0, s1, s2, s3, m1, m2, m3)`` over the 24 relabellings."""
+    s, m = prof[:4], prof[4:]
+    return min(tuple(s[a] for a in p) + tuple(m[b] for b in mp) for p, mp in _RELABEL)
+
+
+def _separates(b: int, x: int, y: int) -> bool:
+    first, _second = _matching_pairs(b)
+    return (x in first) != (y in first)
+
+
+_SEP = {(x, y): tuple(b - 1 for b in _PARTNERS if _separates(b, x, y))
+        for x in range(4) for y in range(4) if x != y}
+
+
+def profile_distances(prof: tuple[int, ...]) -> dict[tuple[int, int], int]:
+    """``d(P_a, P_b)`` for ``a < b``."""
+    return {(a, b): prof[a] + prof[b] + sum(prof[4 + c] for c in _SEP[(a, b)])
+            for a in range(4) for b in range(a + 1, 4)}
+
+
+def _profile_of(i: int, i1: int, j1: int, t1: int, i2: int, j2: int, t2: int
+                ) -> tuple[int, ...]:
+    """Profile of ``(0, w, u, v)``: ``|w| = i``; ``u``, ``v`` of weights ``i1, j1`` on the
+    support of ``w`` (``t1`` in common) and ``i2, j2`` off it (``t2`` in common)."""
+    return (t1, i - i1 - j1 + t1, i2 - t2, j2 - t2, t2, j1 - t1, i1 - t1)
+
+
+def _allowed(dist: int, d: int, even: bool) -> bool:
+    return dist == 0 or (dist >= d and not (even and dist % 2))
+
+
+def _set_key(prof: tuple[int, ...], points: tuple[int, ...], d: int, even: bool):
+    """Orbit of the set of the given points: ``()`` for one word, a triangle ``(a, b, c)``
+    (Schrijver's, ``(i, i, 0)`` for a pair) for two or three distinct words, a canonical
+    profile for four; None when the set has a forbidden distance (its variable is 0)."""
+    dist = profile_distances(prof)
+    reps: list[int] = []
+    for p in points:
+        if not any(dist[(min(p, r), max(p, r))] == 0 for r in reps):
+            reps.append(p)
+    sides = [dist[(a, b)] for a, b in itertools.combinations(reps, 2)]
+    if not all(_allowed(x, d, even) for x in sides):
+        return None
+    if len(reps) == 1:
+        return ()
+    if len(reps) == 2:
+        return (sides[0], sides[0], 0)
+    if len(reps) == 3:
+        return tuple(sorted(sides, reverse=True))
+    return canonical_profile(prof)
+
+
+def block_rows(n: int, d: int, even: bool, family: int, i: int, k1: int, k2: int
+               ) -> list[tuple[int, int]]:
+    """Rows ``(i1, i2)`` of block ``(k1, k2)`` of ``family`` whose diagonal is not zero for
+    every code (before the parity and swap splits), in order."""
+    rows = []
+    for i1 in range(k1, i - k1 + 1):
+        for i2 in range(k2, n - i - k2 + 1):
+            a, b = i1 + i2, i - i1 + i2  # d(0, u), d(w, u)
+            if family == 2:
+                ok = _allowed(a, d, even) and _allowed(b, d, even)
+            elif family == 3:
+                ok = _allowed(a, d, even) and b != 0
+            else:
+                ok = a != 0 and b != 0
+            if ok:
+                rows.append((i1, i2))
+    return rows
+
+
+def _splits(family: int, i: int, even: bool, rows: list[tuple[int, int]]):
+    """The (sign, parity, rows) of the split blocks; rows of a swap half are the
+    representatives ``i1 <= i - i1`` (``<`` for the minus half)."""
+    parities = (0, 1) if even else (-1,)
+    swap = family in (2, 4) and (not even or i % 2 == 0)
+    for parity in parities:
+        if even and i % 2 and parity == 1:
+            continue  # congruent to parity 0 through the mirror
+        cls = [r for r in rows if parity < 0 or (r[0] + r[1]) % 2 == parity]
+        if swap:
+            yield 1, parity, [r for r in cls if 2 * r[0] <= i]
+            yield -1, parity, [r for r in cls if 2 * r[0] < i]
+        else:
+            yield 0, parity, cls
+
+
+@dataclass(frozen=True)
+class FourPointData:
+    """The exact four-point program of one cell, in the layout of
+    :class:`codesearch.bounds.terwilliger.ThreePointData`: Schrijver's triangles first
+    (their indices unchanged), then the 4-set profiles; Schrijver's blocks (key ``k``) and rows,
+    then the new blocks (key ``(i, k1, k2, sign, parity)``, family 2..4) and the diagonal
+    rows ``("quad", *profile, mask)`` (``mask``: the bits of the points in ``A``)."""
+
+    n: int
+    d: int
+    even: bool
+    triangles: tuple
+    objective: tuple
+    blocks: tuple
+    rows: tuple
+    block_rows: dict
+    terms: int
 
 
 @dataclass(frozen=True)
 class FourPointSize:
-    """Lower bounds on the size of the four-point program of length ``n``.
+    """Exact size of the four-point program of a cell, counted before it is built.
 
     Attributes
     ----------
-    n : int
-    variables : int
-        At least this many variables (orbits of 4-point codes).
-    schur_bytes : int
-        Memory of the dense Schur complement, ``8 * variables^2``.
-    seconds_per_iteration : float
-        ``variables^3 / 3`` floating-point operations at :data:`FLOPS_PER_SECOND`.
+    n, d : int
+        The program's cell (even ``d``).
+    quads : int
+        Free 4-set variables (orbits of 4-sets with every distance allowed).
+    triangles : int
+        Schrijver's free variables.
+    blocks : int
+        New PSD blocks (after the splits, zero rows dropped).
+    largest : int
+        Order of the largest block.
+    kkt_bytes : int
+        Memory of the dense parts of the interior-point system: ``8 (m(m+1)/2)^2`` per block
+        of order ``m`` plus the dense ``8 V^2`` of the variables.
+    terms : int
+        Terms of the block entries (work of the build and of the check).
     """
 
     n: int
-    variables: int
-    schur_bytes: int
-    seconds_per_iteration: float
+    d: int
+    quads: int
+    triangles: int
+    blocks: int
+    largest: int
+    kkt_bytes: int
+    terms: int
+
+    @property
+    def variables(self) -> int:
+        return self.quads + self.triangles
+
+    @property
+    def seconds(self) -> float:
+        """Estimated wall time of the whole run (a power law in :attr:`terms` fitted on the
+        measured cells; rough, and the machine is shared)."""
+        return _SECONDS_AT * (self.terms / _TERMS_AT) ** _SECONDS_POWER
+
+    @property
+    def peak_bytes(self) -> int:
+        """Estimated peak memory of the whole run (linear in :attr:`terms`, fitted on the
+        measured cells), at least the dense interior-point parts."""
+        return max(self.kkt_bytes, _BASE_BYTES + _BYTES_PER_TERM * self.terms)
 
     @property
     def fits(self) -> bool:
-        return self.schur_bytes <= MEMORY_BYTES
+        return (self.peak_bytes <= MEMORY_BYTES and self.terms <= MAX_BUILD_TERMS
+                and self.seconds <= MAX_SECONDS)
 
     def describe(self) -> str:
-        return (f"four-point SDP for n={self.n}: at least {self.variables:,} variables, "
-                f"Schur complement >= {self.schur_bytes / 1e9:.1f} GB, "
-                f">= {self.seconds_per_iteration / 60:.0f} min per interior-point iteration")
+        return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} free variables "
+                f"({self.quads:,} on 4-sets), {self.blocks:,} blocks up to order "
+                f"{self.largest}, {self.terms:,} block terms, about "
+                f"{self.peak_bytes / 1e9:.1f} GB and {self.seconds / 60:,.0f} min")
 
 
-def four_point_size(n: int) -> FourPointSize:
-    """Lower bounds on the four-point program of binary length ``n`` (see the module notes)."""
-    m = comb(n + 7, 7) // 24
-    return FourPointSize(n=n, variables=m, schur_bytes=8 * m * m,
-                         seconds_per_iteration=m**3 / 3 / FLOPS_PER_SECOND)
+def _program_cell(params: Params) -> tuple[int, int]:
+    if params.d % 2:
+        return params.n + 1, params.d + 1
+    return params.n, params.d
+
+
+def _quad_profiles(n: int, d: int, even: bool) -> list[tuple[int, ...]]:
+    """Every canonical profile of a 4-set with all six distances allowed, sorted.
+
+    Enumerated as ``(0, w, u, v)`` with ``|w|`` the least distance of the set is not needed:
+    every orbit contains a representative with ``P0 = 0``, so the loops run over ``|w| = i``
+    and the weights of ``u``, ``v`` on and off the support of ``w``."""
+    seen = set()
+    for i in range(d, n + 1):
+        if even and i % 2:
+            continue
+        for i1 in range(i + 1):
+            for i2 in range(n - i + 1):
+                if not (_allowed(i1 + i2, d, even) and _allowed(i - i1 + i2, d, even)):
+                    continue
+                if i1 + i2 == 0 or i - i1 + i2 == 0:
+                    continue
+                for j1 in range(i1, i + 1):
+                    for j2 in range(n - i + 1):
+                        if (j1, j2) < (i1, i2) or j1 + j2 == 0 or i - j1 + j2 == 0:
+                            continue
+                        if not (_allowed(j1 + j2, d, even) and _allowed(i - j1 + j2, d, even)):
+                            continue
+                        for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
+                            for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
+                                duv = i1 + j1 - 2 * t1 + i2 + j2 - 2 * t2
+                                if duv == 0 or not _allowed(duv, d, even):
+                                    continue
+                                seen.add(canonical_profile(_profile_of(i, i1, j1, t1, i2, j2,
+                                                                       t2)))
+    return sorted(seen)
+
+
+def _count_terms(n: int, i: int, rows: list, k1: int, k2: int) -> int:
+    total = 0
+    for i1, i2 in rows:
+        for j1, j2 in rows:
+            total += ((min(i1, j1) - max(0, i1 + j1 - i) + 1)
+                      * (min(i2, j2) - max(0, i2 + j2 - (n - i)) + 1))
+    return total
+
+
+@lru_cache(maxsize=64)
+def four_point_size(n: int, d: int) -> FourPointSize:
+    """The exact size of the four-point program of binary ``(n, d)`` (``d`` even; odd ``d``
+    is bounded through ``A(n+1, d+1)`` by the callers), counted without building it."""
+    from codesearch.bounds.terwilliger import three_point_data
+
+    even = d % 2 == 0
+    quads = len(_quad_profiles(n, d, even))
+    tris = len(three_point_data(n, d, even).triangles)
+    sizes = []
+    terms = 0
+    for family in (2, 3, 4):
+        for i in range(1, n + 1):
+            if family != 4 and not (i >= d and not (even and i % 2)):
+                continue
+            for k1 in range(i // 2 + 1):
+                for k2 in range((n - i) // 2 + 1):
+                    rows = block_rows(n, d, even, family, i, k1, k2)
+                    if rows:
+                        terms += _count_terms(n, i, rows, k1, k2)
+                    for _s, _p, sub in _splits(family, i, even, rows):
+                        if sub:
+                            sizes.append(len(sub))
+    nv = quads + tris
+    kkt = 8 * sum((m * (m + 1) // 2) ** 2 for m in sizes) + 8 * nv * nv
+    return FourPointSize(n=n, d=d, quads=quads, triangles=tris, blocks=len(sizes),
+                         largest=max(sizes, default=0), kkt_bytes=kkt, terms=terms)
 
 
 def check_four_point_fits(params: Params) -> FourPointSize:
-    """Raise :class:`ParameterError` with one line naming the estimated size.
-
-    The program is refused when it cannot fit in :data:`MEMORY_BYTES`, and also when it
-    would fit: its symmetry reduction (the S_n-isotypic decomposition of the matrices
-    indexed by pairs of words) is not built in this version, so nothing is solved.
-    """
+    """The size of the cell's four-point program; :class:`ParameterError` (one line naming
+    the size) when it is not for this machine or the cell is not binary."""
     if params.q != 2:
         raise ParameterError("the four-point bound is for binary codes")
-    size = four_point_size(params.n)
+    if params.d < 3:
+        raise ParameterError("the four-point bound needs d >= 3 (A(n,1), A(n,2) are known)")
+    n, d = _program_cell(params)
+    if n >= UNCOUNTED_N:
+        raise ParameterError(f"four-point SDP for A({n},{d}): length {n} >= {UNCOUNTED_N}, its "
+                             f"family-4 blocks alone have more than 9.9*10^7 terms, past the "
+                             f"{MAX_BUILD_TERMS:,} this machine builds; not built")
+    size = four_point_size(n, d)
     if not size.fits:
-        raise ParameterError(f"{size.describe()}: beyond the {MEMORY_BYTES / 1e9:.0f} GB "
-                             "of this machine, not built")
-    raise ParameterError(f"{size.describe()}: its symmetry reduction is not implemented, "
-                         "not built")
+        raise ParameterError(f"{size.describe()}: beyond this machine "
+                             f"({MEMORY_BYTES / 1e9:.0f} GB, {MAX_BUILD_TERMS:,} terms, "
+                             f"{MAX_SECONDS / 3600:.0f} h), not built")
+    return size
+
+
+# --------------------------------------------------------------------------------------------
+# The exact program.
+
+
+@lru_cache(maxsize=8)
+def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
+                    families: tuple = (2, 3, 4)) -> FourPointData:
+    """Build the exact four-point program of binary ``(n, d)``.
+
+    Parameters
+    ----------
+    n, d : int
+        Cell.
+    even : bool
+        Only codes with all distances even (valid for even ``d``).
+    quad_rows : bool
+        Add the diagonal inequalities of the 4-sets.
+
+    Returns
+    -------
+    FourPointData
+    """
+    from codesearch.bounds.terwilliger import (RowCollector, add_terms, beta,
+                                               three_point_data)
+
+    base = three_point_data(n, d, even)
+    tri_index = {tri: v for v, tri in enumerate(base.triangles)}
+    quads = _quad_profiles(n, d, even)
+    quad_index = {q: len(base.triangles) + v for v, q in enumerate(quads)}
+
+    def var(key) -> int | None:
+        if key is None:
+            return None
+        if key == ():
+            return -1
+        if len(key) == 3:
+            if key == (0, 0, 0):
+                return -1
+            return tri_index.get(key)
+        return quad_index[key]
+
+    blocks = list(base.blocks)
+    rows_of: dict = {}
+    total_terms = 0
+    for family in [f for f in (2, 3, 4) if f in families]:
+        subsets = FAMILIES[family][1]
+        for i in range(1, n + 1):
+            if family != 4 and not (i >= d and not (even and i % 2)):
+                continue
+            xmemo: dict = {}
+
+            def xterms(i1, j1, t1, i2, j2, t2, i=i, subsets=subsets, xmemo=xmemo):
+                key = (i1, j1, t1, i2, j2, t2)
+                got = xmemo.get(key)
+                if got is None:
+                    prof = _profile_of(i, *key)
+                    got = [(var(_set_key(prof, pts, d, even)), sgn) for pts, sgn in subsets]
+                    xmemo[key] = got
+                return got
+
+            for k1 in range(i // 2 + 1):
+                for k2 in range((n - i) // 2 + 1):
+                    rows = block_rows(n, d, even, family, i, k1, k2)
+                    if not rows:
+                        continue
+                    entry: dict = {}
+
+                    def full_entry(r, s, i=i, k1=k1, k2=k2, entry=entry, xterms=xterms):
+                        if (r, s) in entry:
+                            return entry[(r, s)]
+                        (i1, i2), (j1, j2) = r, s
+                        c0 = 0
+                        cv: dict[int, int] = {}
+                        count = 0
+                        for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
+                            b1 = beta(i, i1, j1, k1, t1)
+                            if not b1:
+                                continue
+                            for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
+                                b2 = beta(n - i, i2, j2, k2, t2)
+                                if not b2:
+                                    continue
+                                count += 1
+                                c0 += add_terms(cv, xterms(i1, j1, t1, i2, j2, t2), b1 * b2)
+                        entry[(r, s)] = entry[(s, r)] = (c0, cv)
+                        return c0, cv
+
+                    for sign, parity, sub in _splits(family, i, even, rows):
+                        if not sub:
+                            continue
+                        key = (i, k1, k2, sign, parity)
+                        const: dict = {}
+                        coef: dict = {}
+                        for r_, r in enumerate(sub):
+                            for s_ in range(r_, len(sub)):
+                                s = sub[s_]
+                                c0, cv = _split_entry(full_entry, r, s, sign, i)
+                                total_terms += 1
+                                if c0:
+                                    const[(r_, s_)] = c0
+                                if cv:
+                                    coef[(r_, s_)] = cv
+                        blocks.append((family, key, len(sub), const, coef))
+                        rows_of[(family, key)] = tuple(sub)
+
+    collector = RowCollector()
+    for label, cv, rhs in base.rows:
+        collector.add(label, [(v, c) for v, c in cv.items()], rhs)
+    if quad_rows:
+        for prof in quads:
+            for mask in range(1, 15):
+                a_pts = [p for p in range(4) if mask >> p & 1]
+                b_pts = [p for p in range(4) if not mask >> p & 1]
+                terms = []
+                for r in range(len(b_pts) + 1):
+                    for extra in itertools.combinations(b_pts, r):
+                        pts = tuple(sorted(a_pts + list(extra)))
+                        # sum (-1)^|B'| x(A u B') >= 0, written as <= 0
+                        terms.append((var(_set_key(prof, pts, d, even)), -(-1) ** r))
+                collector.add(("quad", *prof, mask), terms, 0)
+    objective = tuple(list(base.objective) + [0] * len(quads))
+    return FourPointData(n=n, d=d, even=even, triangles=tuple(base.triangles) + tuple(quads),
+                         objective=objective, blocks=tuple(blocks),
+                         rows=tuple(collector.rows), block_rows=rows_of, terms=total_terms)
+
+
+def _mirror_list(r: tuple[int, int], sign: int, i: int) -> list[tuple[tuple[int, int], int]]:
+    """The rows combined in split row ``r`` with their signs (``f_r = e_r + sign e_r'``)."""
+    if sign == 0:
+        return [(r, 1)]
+    return [(r, 1), ((i - r[0], r[1]), sign)]
+
+
+def _split_entry(full_entry, r, s, sign: int, i: int) -> tuple[int, dict[int, int]]:
+    c0 = 0
+    cv: dict[int, int] = {}
+    for a, sa in _mirror_list(r, sign, i):
+        for b, sb in _mirror_list(s, sign, i):
+            e0, ev = full_entry(a, b)
+            c0 += sa * sb * e0
+            for v, c in ev.items():
+                cv[v] = cv.get(v, 0) + sa * sb * c
+    return c0, {v: c for v, c in cv.items() if c}
+
+
+# --------------------------------------------------------------------------------------------
+# Caps, scaling and the solve.
+
+
+def quad_cap(n: int, d: int, prof: tuple[int, ...]) -> Fraction:
+    """A proven cap on the variable of a 4-set: ``x(S) <= x(T)`` for every 3-subset ``T``
+    (a code containing ``S`` contains ``T``), and ``x(T)`` is at most Schrijver's cap of its
+    triangle (:func:`codesearch.bounds.terwilliger.variable_cap`)."""
+    from codesearch.bounds.terwilliger import variable_cap
+
+    caps = []
+    for pts in itertools.combinations(range(4), 3):
+        tri = _set_key(prof, pts, 1, False)
+        caps.append(variable_cap(n, d, tri))
+    return min(caps)
+
+
+def _pow2(x: float) -> int:
+    return int(round(math.log2(x)))
+
+
+def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3, 4)):
+    """The solver's view of the program: the exact data, proven caps, the first scaling and
+    the names written into the certificate (families 2-4 name their rows ``(i1, i2)``)."""
+    from codesearch.bounds.sdp import SdpProgram
+    from codesearch.bounds.terwilliger import shape_count, variable_cap
+
+    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families)
+    radius = (d - 1) // 2
+    m0 = 2.0**n / sum(comb(n, r) for r in range(radius + 1))
+    caps, shapes = [], []
+    for key in data.triangles:
+        if len(key) == 3:
+            cap = variable_cap(n, d, key)
+            caps.append(cap)
+            shapes.append(shape_count(n, *key))
+        else:
+            cap = quad_cap(n, d, key)
+            caps.append(cap)
+            shapes.append(m0 / float(cap))  # scaling only: solver variable x / cap
+    exps, offsets, labels, row_labels = {}, {}, {}, {}
+    for family, key, size, _c, _cf in data.blocks:
+        if family in (0, 1):
+            k = key
+            e = [_pow2(comb(n - 2 * k, r)) // 2 for r in range(size)]
+            mult = comb(n, k) - (comb(n, k - 1) if k else 0)
+            offsets[k] = k
+            labels[k] = {"k": k}
+        else:
+            # rows scaled by the size of their diagonal at the caps
+            e = []
+            for r in range(size):
+                mag = abs(_c.get((r, r), 0)) + sum(abs(c) * float(caps[v])
+                                                   for v, c in _cf.get((r, r), {}).items())
+                e.append(_pow2(mag) // 2 if mag > 0 else 0)
+            i, k1, k2, sign, parity = key
+            mult = ((comb(i, k1) - (comb(i, k1 - 1) if k1 else 0))
+                    * (comb(n - i, k2) - (comb(n - i, k2 - 1) if k2 else 0)) * comb(n, i))
+            labels[key] = {"i": i, "k1": k1, "k2": k2, "sign": sign}
+            offsets[key] = 0
+            row_labels[(family, key)] = data.block_rows[(family, key)]
+        exps[(family, key)] = (e, _pow2(m0 / mult))
+    return SdpProgram(data=data, caps=tuple(caps), shapes=tuple(shapes), m0=m0,
+                      kind="four-point-sdp", exps=exps, offsets=offsets, labels=labels,
+                      row_labels=row_labels)
+
+
+@lru_cache(maxsize=64)
+def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
+                     solver: str = "clarabel", quad_rows: bool = True) -> dict[str, Any]:
+    """Solve and certify the four-point program of binary ``(n, d)``, ``d`` even (see
+    :func:`codesearch.bounds.sdp.solve_program`); the certificate is re-checked by the
+    independent checker before returning (a disagreement raises
+    :class:`~codesearch.errors.VerificationError`)."""
+    from codesearch.bounds.sdp import solve_program
+    from codesearch.errors import VerificationError
+    from codesearch.verify import check_certificate
+
+    t0 = time.perf_counter()
+    prog = _program(n, d, quad_rows=quad_rows)
+    build = time.perf_counter() - t0
+    best = solve_program(prog, time_limit=time_limit, solver=solver)
+    best["build_seconds"] = build
+    best["seconds"] = time.perf_counter() - t0
+    if best["certificate"] is not None:
+        best["certificate"].update({"q": 2, "n": n, "d": d, "sdp_n": n, "sdp_d": d,
+                                    "even": True})
+        t1 = time.perf_counter()
+        valid, bound, reason = check_certificate(best["certificate"])
+        best["check_seconds"] = time.perf_counter() - t1
+        if not valid or bound != best["value"]:
+            raise VerificationError(f"four-point certificate for A({n},{d}) rejected: {reason}")
+    return best
+
+
+def four_point_bound(params: Params, *, time_limit: float | None = None,
+                     solver: str | None = None) -> BoundResult | None:
+    """The four-point bound on ``A(n, d)`` with an exact certificate.
+
+    Returns
+    -------
+    BoundResult or None
+        ``method="four-point-sdp"``; ``certified=False`` (never used) when the rounded dual
+        could not be certified. None when the bound does not apply (``q != 2``, ``d < 3``)
+        or the program is past this machine (:func:`check_four_point_fits`).
+    """
+    from codesearch.bounds.sdp import SOLVERS
+
+    solver = (solver or "clarabel").lower()
+    if solver not in SOLVERS:
+        raise ParameterError(f"unknown solver {solver!r}; choose from {', '.join(SOLVERS)}")
+    if params.q != 2 or params.d < 3:
+        return None
+    try:
+        check_four_point_fits(params)
+    except ParameterError:
+        return None
+    n, d = _program_cell(params)
+    res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
+    cert = dict(res["certificate"]) if res["certificate"] is not None else None
+    value = res["value"]
+    if cert is not None:
+        cert.update({"n": params.n, "d": params.d})
+    elif math.isfinite(res["float_value"]):
+        value = math.floor(res["float_value"] + 1e-6)  # informative only: not usable
+    via = "" if (n, d) == (params.n, params.d) else f" via A({n},{d})"
+    note = (f"four-point SDP{via}; float optimum {res['float_value']:.6f}, exact dual bound "
+            f"{res['exact_float']:.6f}")
+    if not res["certified"]:
+        note += f"; uncertified: {res['reason']}"
+    return BoundResult(params=params, value=value, method="four-point-sdp", certificate=cert,
+                       certified=res["certified"], note=note)

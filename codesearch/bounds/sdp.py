@@ -263,6 +263,9 @@ class SdpProgram:
         ``key -> weight of the block's first row`` (row r has weight ``offset + r``).
     labels : dict
         ``key -> fields naming the block in the certificate``.
+    row_labels : dict
+        ``(family, key) -> names of the block's rows`` for blocks whose rows are not single
+        weights: the certificate lists them as ``rows`` instead of ``weights``.
     """
 
     data: Any
@@ -273,6 +276,7 @@ class SdpProgram:
     exps: dict = field(hash=False)
     offsets: dict = field(hash=False)
     labels: dict = field(hash=False)
+    row_labels: dict = field(default_factory=dict, hash=False)
 
 
 def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
@@ -345,7 +349,8 @@ def _delsarte_pass(prog: SdpProgram) -> dict:
     data, m0 = prog.data, prog.m0
     kinds = ("delsarte", "weight")
     rows = [a for a, (label, _cv, _rhs) in enumerate(data.rows) if label[0] in kinds]
-    single = [v for v, tri in enumerate(data.triangles) if tri[2] == 0]  # x[i,0,0]
+    # x[i,0,0]: the variables of the objective (the only ones in the Delsarte and weight rows)
+    single = [v for v, c in enumerate(data.objective) if c]
     col = {v: c for c, v in enumerate(single)}
     a_ub = np.zeros((len(rows), len(single)))
     b_ub = np.zeros(len(rows))
@@ -607,11 +612,14 @@ def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
     blocks_cert = []
     for family, k, weights, zint, es, g in zmats:
         m = len(weights)
+        names = prog.row_labels.get((family, k))
+        rows_field = ({"rows": [list(names[w - prog.offsets[k]]) for w in weights]}
+                      if names is not None else {"weights": weights})
         blocks_cert.append(
             {
                 "family": family,
                 **prog.labels[k],
-                "weights": weights,
+                **rows_field,
                 "matrix": [
                     [
                         _frac_str(

@@ -27,6 +27,7 @@ BOUND_LABELS = {
     "distance-enumeration": "lp-int",
     "three-point-sdp": "sdp",
     "qary-three-point-sdp": "sdp-q",
+    "four-point-sdp": "sdp4",
 }
 
 

@@ -17,6 +17,7 @@ linear        generator matrices over GF(p): enumeration, or information sets fo
 certificates  the table kind -> checker and :func:`check_certificate`
 lp            Delsarte LP certificates (``delsarte-lp``, ``delsarte-lp-qcw``)
 three_point   Schrijver's three-point SDP certificates (``three-point-sdp``)
+four_point    four-point SDP certificates (``four-point-sdp``)
 relations     bounds derived between cells of a table (``cell-relation``)
 exact         exact rationals read from certificates
 """

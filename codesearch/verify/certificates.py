@@ -14,6 +14,7 @@ from typing import Any, Callable, Mapping
 from codesearch.errors import InputError
 from codesearch.model import MAX_Q
 from codesearch.verify import strict
+from codesearch.verify.four_point import check_four_point_certificate
 from codesearch.verify.integral import check_distance_enumeration, check_odd_size
 from codesearch.verify.lp import check_delsarte_lp, check_delsarte_lp_qcw
 from codesearch.verify.profile_lp import check_profile_lp
@@ -33,6 +34,7 @@ CERTIFICATE_CHECKERS: dict[str, Checker] = {
     "delsarte-lp-qcw": check_delsarte_lp_qcw,
     "three-point-sdp": check_three_point_certificate,
     "qary-three-point-sdp": check_qary_three_point,
+    "four-point-sdp": check_four_point_certificate,
     # these nest certificates of any kind, re-checked through the table's entry point
     "lp-odd-size": lambda cert: check_odd_size(cert, check_certificate),
     "distance-enumeration": lambda cert: check_distance_enumeration(cert, check_certificate),

@@ -22,7 +22,8 @@ from typing import Any, Mapping
 from codesearch.errors import InputError
 from codesearch.verify import strict
 
-__all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row"]
+__all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row",
+           "add_schrijver_part", "read_binary_cell"]
 
 #: Longest code whose three-point certificate is read.
 MAX_N = 128
@@ -352,27 +353,30 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
     InputError
         A malformed field, or a check past the caps (said before the work starts).
     """
-    q = strict.get_int(cert, "q", _WHAT, 2, None)
-    if q != 2:
-        return False, None, "three-point certificates are for binary codes"
-    n0 = strict.get_int(cert, "n", _WHAT, 1, MAX_N)
-    d0 = strict.get_int(cert, "d", _WHAT, 1, n0)
-    n = strict.get_int(cert, "sdp_n", _WHAT, 1, MAX_N + 1)
-    d = strict.get_int(cert, "sdp_d", _WHAT, 1, n)
-    even = strict.get_bool(cert, "even", _WHAT)
-    claimed = strict.get_int(cert, "value", _WHAT, 0, None)
-    exact_claim = (strict.rational(cert["bound"], "certificate: bound", allow_int=False)
-                   if "bound" in cert else None)
-    if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
-        return False, None, f"program cell ({n},{d}) does not bound A({n0},{d0})"
-    if even and d % 2:
-        return False, None, "the even-distance restriction needs even d"
+    cell = read_binary_cell(cert, MAX_N, "three-point")
+    if isinstance(cell, str):
+        return False, None, cell
+    n0, d0, n, d, even, claimed, exact_claim = cell
     blocks = [read_block(b, j, n, ("family", "k"))
               for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, 2 * (n // 2 + 1)))]
     mults = [read_row(m, j, _ROW_SHAPES)
              for j, m in enumerate(strict.get_list(cert, "multipliers", _WHAT, strict.MAX_ROWS))]
     strict.check_work(_work(n, blocks, mults), f"three-point certificate for n={n}")
     obj = _Objective(n, d, even)
+    johnson_memo: dict = {}
+    reason = add_schrijver_part(obj, blocks, mults, johnson_memo)
+    if reason is not None:
+        return False, None, reason
+    total = _capped_total(obj, johnson_memo)
+    return compare_claims(total, exact_claim, claimed, f"three-point SDP bound A({n0},{d0})")
+
+
+def add_schrijver_part(obj: _Objective, blocks: list, mults: list, johnson_memo: dict,
+                       other_rows: Mapping[str, Any] | None = None) -> str | None:
+    """Add ``|C| - 1`` (the pairs), Schrijver's dual blocks and the multipliers of the linear
+    rows to ``obj``; rows named in ``other_rows`` are added by the function given there
+    (``f(obj, indices, mu) -> reason or None``). The reason a part is rejected, or None."""
+    n = obj.n
     for i in range(1, n + 1):
         obj.add(obj.tri(i, 0, 0), Fraction(_tp_binom(n, i)))
     seen: set = set()
@@ -380,14 +384,39 @@ def check_three_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | 
     for block in blocks:
         reason = _add_block(obj, block, seen, beta_memo)
         if reason is not None:
-            return False, None, reason
-    johnson_memo: dict = {}
-    for mult in mults:
-        reason = _add_multiplier(obj, mult, johnson_memo)
+            return reason
+    for name, idx, mu in mults:
+        if other_rows is not None and name in other_rows:
+            reason = other_rows[name](obj, idx, mu)
+        else:
+            reason = _add_multiplier(obj, (name, idx, mu), johnson_memo)
         if reason is not None:
-            return False, None, reason
-    total = _capped_total(obj, johnson_memo)
-    return compare_claims(total, exact_claim, claimed, f"three-point SDP bound A({n0},{d0})")
+            return reason
+    return None
+
+
+def read_binary_cell(cert: Mapping[str, Any], max_n: int, name: str) -> tuple | str:
+    """Strictly read the cell fields of a binary SDP certificate: ``q = 2``, ``n, d``
+    (``n <= max_n``), the program's cell ``sdp_n, sdp_d`` (the same, or ``n+1, d+1`` for odd
+    ``d``), ``even`` (needs even ``sdp_d``), the claimed ``value`` and the optional exact
+    ``bound``. Returns ``(n, d, sdp_n, sdp_d, even, value, bound)``, or the reason the cell
+    is not one this certificate may bound."""
+    q = strict.get_int(cert, "q", _WHAT, 2, None)
+    if q != 2:
+        return f"{name} certificates are for binary codes"
+    n0 = strict.get_int(cert, "n", _WHAT, 1, max_n)
+    d0 = strict.get_int(cert, "d", _WHAT, 1, n0)
+    n = strict.get_int(cert, "sdp_n", _WHAT, 1, max_n + 1)
+    d = strict.get_int(cert, "sdp_d", _WHAT, 1, n)
+    even = strict.get_bool(cert, "even", _WHAT)
+    claimed = strict.get_int(cert, "value", _WHAT, 0, None)
+    exact_claim = (strict.rational(cert["bound"], "certificate: bound", allow_int=False)
+                   if "bound" in cert else None)
+    if (n, d) != (n0, d0) and not (d0 % 2 == 1 and (n, d) == (n0 + 1, d0 + 1)):
+        return f"program cell ({n},{d}) does not bound A({n0},{d0})"
+    if even and d % 2:
+        return "the even-distance restriction needs even d"
+    return n0, d0, n, d, even, claimed, exact_claim
 
 
 def compare_claims(total: Fraction, exact_claim: Fraction | None, claimed: int, what: str

@@ -1,0 +1,372 @@
+"""Checker of the four-point semidefinite bound certificates (kind ``four-point-sdp``).
+
+The certificate is re-checked from its own data alone. Schrijver's two block families and
+his linear rows are checked as for ``three-point-sdp`` (:mod:`codesearch.verify.three_point`);
+this module adds the blocks built on pairs of words ``D = {0, w}`` and the diagonal
+inequalities of 4-sets, rebuilding every coefficient itself: the words are described by how
+many columns take each pattern of four bits, the orbit of a set of words is found by trying
+the 24 orders of its points, and nothing is shared with :mod:`codesearch.bounds.fourpoint`.
+
+The inequality checked
+----------------------
+For a binary code ``C`` of length ``n`` and distance ``d`` (all distances even when
+``even``) and a set ``S`` of words let ``x(S)`` be the probability that a random automorphism
+of the cube maps ``S`` into ``C``, divided by that of one word. For ``|w| = i`` and any split
+of ``{0, w}`` into ``A`` (in the code) and ``B`` (out of it), the matrix indexed by words
+
+    N_uv = sum_{B' in B} (-1)^|B'| x(A u B' u {u, v})
+
+is an average of rank-one matrices ``f f^T``, hence PSD (family 2: ``A = {0, w}``;
+family 3: ``A = {0}``, ``B = {w}``; family 4: ``A`` empty). It is invariant under the
+coordinate permutations fixing ``w``, so it lies in the tensor product of the Terwilliger
+algebras of the cubes of length ``i`` and ``n - i``; Schrijver's block diagonalisation of each
+factor shows that for every ``k1, k2`` the matrix
+
+    B[(i1,i2),(j1,j2)] = sum_{t1,t2} beta_i(i1,j1,k1,t1) beta_{n-i}(i2,j2,k2,t2) N(...)
+
+(``u`` with ``i1`` ones on the support of ``w`` and ``i2`` off it, ``v`` likewise with
+``j1, j2``, ``t1, t2`` ones in common) is PSD for every code, and so is ``F^T B F`` for any
+real ``F``: a block of the certificate names its rows ``(i1, i2)`` and a ``sign``; row ``r``
+of ``F`` is ``e_r`` (sign 0) or ``e_r + sign e_r'`` with ``r' = (i - i1, i2)``. For a 4-set
+``S`` and a split ``S = A u B`` the same argument gives the scalar inequality
+``sum_{B' in B} (-1)^|B'| x(A u B') >= 0`` (row ``quad``). Then, with every dual matrix ``Z``
+PSD and every multiplier ``mu >= 0``,
+
+    |C| = 1 + sum_i C(n,i) x(pair at distance i)
+        <= 1 + sum <Z, B(x)> + sum mu (rhs - row(x)) + sum_i C(n,i) x(...)
+         = const + sum_S r_S x(S)  <=  const + sum_S max(r_S, 0) cap(S),
+
+``cap`` of a pair or triple as in the three-point checker, of a 4-set the least cap of its
+four triples (a code containing ``S`` contains each of them). Variables of sets with a
+distance in ``1..d-1`` (or odd, when ``even``) are zero and left out.
+
+References
+----------
+D. C. Gijswijt, H. D. Mittelmann and A. Schrijver, "Semidefinite code bounds based on
+quadruple distances", IEEE Trans. Inform. Theory 58 (2012) 2697-2705.
+A. Schrijver, "New code upper bounds from the Terwilliger algebra and semidefinite
+programming", IEEE Trans. Inform. Theory 51 (2005) 2859-2866.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from fractions import Fraction
+from typing import Any, Mapping
+
+from codesearch.errors import InputError
+from codesearch.verify import strict
+from codesearch.verify.three_point import (
+    _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
+    block_psd_work, compare_claims, read_binary_cell, read_block, read_row)
+
+__all__ = ["check_four_point_certificate", "MAX_FOUR_POINT_N", "FOUR_POINT_WORK"]
+
+#: Longest code whose four-point certificate is read (the program is past any machine
+#: long before this).
+MAX_FOUR_POINT_N = 64
+#: Work cap of one four-point check: its blocks are many and large (about 10^9 elementary
+#: steps for A(20,8)), so it gets a cap of its own, still refused before the work starts.
+FOUR_POINT_WORK = 25 * strict.MAX_WORK
+_WHAT = "certificate"
+
+# A column of four words (P0, P1, P2, P3) is a 4-bit pattern, bit a = the bit of P_a,
+# complemented when P0's bit is 1 (translations act on columns by complementing them): the
+# patterns 0, 2, 4, ..., 14 (index = pattern >> 1). A set of four words up to the cube's
+# automorphisms is the count of columns of each pattern, up to the 24 orders of its points.
+_PERMS = tuple(itertools.permutations(range(4)))
+
+
+def _pattern_map(perm: tuple[int, ...]) -> tuple[int, ...]:
+    """Index of each pattern after reordering the points (new point a = old point perm[a])."""
+    out = []
+    for idx in range(8):
+        old = idx << 1
+        new = sum(((old >> perm[a]) & 1) << a for a in range(4))
+        if new & 1:
+            new ^= 15
+        out.append(new >> 1)
+    return tuple(out)
+
+
+_PATTERN_MAPS = tuple(_pattern_map(p) for p in _PERMS)
+#: The quad row's profile (s0, s1, s2, s3, m1, m2, m3) as patterns: s_a columns where P_a
+#: alone differs, m_b columns splitting {P0, P_b} from the two others.
+_PROFILE_PATTERNS = (14, 2, 4, 8, 12, 10, 6)
+
+
+def _distance(counts: tuple[int, ...], a: int, b: int) -> int:
+    return sum(c for idx, c in enumerate(counts) if ((idx << 1) >> a ^ (idx << 1) >> b) & 1)
+
+
+class _FourPointObjective(_Objective):
+    """The three-point checker's linear form, with the 4-set variables added (keyed
+    ``("quad", counts)`` by the least column count over the orders of the points)."""
+
+    def __init__(self, n: int, d: int, even: bool) -> None:
+        super().__init__(n, d, even)
+        self._keys: dict = {}
+
+    def zero_distance(self, dist: int) -> bool:
+        return 0 < dist < self.d or (self.even and dist % 2 == 1)
+
+    def set_key(self, counts: tuple[int, ...], points: tuple[int, ...]):
+        """Key of the variable of the set of the given points of a configuration; None
+        when it is zero for these codes; ``(0, 0, 0)`` for a single word."""
+        memo_key = (counts, points)
+        if memo_key in self._keys:
+            return self._keys[memo_key]
+        reps: list[int] = []
+        for p in points:
+            if all(_distance(counts, p, r) for r in reps):
+                reps.append(p)
+        sides = [_distance(counts, a, b) for a, b in itertools.combinations(reps, 2)]
+        if any(self.zero_distance(s) for s in sides):
+            key = None
+        elif len(reps) == 1:
+            key = (0, 0, 0)
+        elif len(reps) == 2:
+            key = (sides[0], sides[0], 0)
+        elif len(reps) == 3:
+            key = tuple(sorted(sides, reverse=True))
+        else:
+            key = ("quad", min(tuple(sum(counts[j] for j in range(8) if mp[j] == idx)
+                                     for idx in range(8)) for mp in _PATTERN_MAPS))
+        self._keys[memo_key] = key
+        return key
+
+
+def _config(n: int, i: int, i1: int, j1: int, t1: int, i2: int, j2: int, t2: int
+            ) -> tuple[int, ...]:
+    """Column counts of the words (0, w, u, v): ``|w| = i``; ``u``, ``v`` with ``i1, j1``
+    ones on the support of ``w`` (``t1`` common) and ``i2, j2`` off it (``t2`` common)."""
+    counts = [0] * 8
+    # on the support of w: bit 1 set; u is bit 2, v is bit 3
+    counts[14 >> 1] += t1
+    counts[6 >> 1] += i1 - t1
+    counts[10 >> 1] += j1 - t1
+    counts[2 >> 1] += i - i1 - j1 + t1
+    counts[12 >> 1] += t2
+    counts[4 >> 1] += i2 - t2
+    counts[8 >> 1] += j2 - t2
+    counts[0] += n - i - i2 - j2 + t2
+    return tuple(counts)
+
+
+#: family -> the sets (as points of (0, w, u, v) = 0, 1, 2, 3) of N_uv with their signs
+_FAMILY_SETS = {
+    2: (((0, 1, 2, 3), 1),),
+    3: (((0, 2, 3), 1), ((0, 1, 2, 3), -1)),
+    4: (((2, 3), 1), ((0, 2, 3), -1), ((1, 2, 3), -1), ((0, 1, 2, 3), 1)),
+}
+
+
+def _read_pair_block(block: Any, j: int, n: int) -> tuple:
+    """Strictly read a block of family 2..4: ``i``, ``k1``, ``k2``, ``sign``, its ``rows``
+    (``[i1, i2]`` within the block's ranges) and its square ``matrix``."""
+    where = f"certificate: blocks[{j}]"
+    family = strict.get_int(block, "family", where, 2, 4)
+    i = strict.get_int(block, "i", where, 1, n)
+    k1 = strict.get_int(block, "k1", where, 0, i // 2)
+    k2 = strict.get_int(block, "k2", where, 0, (n - i) // 2)
+    sign = strict.get_int(block, "sign", where, -1, 1)
+    rows = []
+    for r, row in enumerate(strict.get_list(block, "rows", where, (i + 1) * (n - i + 1))):
+        if not isinstance(row, list) or len(row) != 2:
+            raise InputError(f"{where}: rows[{r}] must be a list [i1, i2]")
+        rows.append((strict.integer(row[0], f"{where}: rows[{r}][0]", k1, i - k1),
+                     strict.integer(row[1], f"{where}: rows[{r}][1]", k2, n - i - k2)))
+    m = len(rows)
+    mat = []
+    for r, row in enumerate(strict.get_list(block, "matrix", where, m, length=m)):
+        if not isinstance(row, list) or len(row) != m:
+            raise InputError(f"{where}: matrix row {r} must be a list of {m} rationals")
+        mat.append([strict.rational(v, f"{where}: matrix[{r}][{s}]") for s, v in enumerate(row)])
+    return (family, i, k1, k2, sign), rows, mat
+
+
+def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict) -> str | None:
+    """Add ``<Z, F^T B F>`` of one block of family 2..4; the reason it is rejected, or None."""
+    n = obj.n
+    (family, i, k1, k2, sign), rows, mat = block
+    name = f"block family={family}, i={i}, k1={k1}, k2={k2}, sign={sign}"
+    if len(set(rows)) != len(rows):
+        return f"repeated rows in {name}"
+    m = len(rows)
+    if any(mat[r][s] != mat[s][r] for r in range(m) for s in range(r)):
+        return f"{name} is not symmetric"
+    if not _tp_psd(mat):
+        return f"{name} is not positive semidefinite"
+    den = strict.common_denominator((z for row in mat for z in row), "certificate: block")
+    sets = _FAMILY_SETS[family]
+    acc: dict = {}
+
+    def column(r: tuple[int, int]) -> list[tuple[tuple[int, int], int]]:
+        if sign == 0:
+            return [(r, 1)]
+        return [(r, 1), ((i - r[0], r[1]), sign)]
+
+    def entry(a: tuple[int, int], b: tuple[int, int]) -> list:
+        """``B[a, b]`` as ``[(key, integer coefficient)]``."""
+        key = (family, i, k1, k2, a, b)
+        got = memo.get(key)
+        if got is not None:
+            return got
+        (i1, i2), (j1, j2) = a, b
+        terms: dict = {}
+        for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
+            b1 = _tp_beta(i, i1, j1, k1, t1)
+            if not b1:
+                continue
+            for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
+                b2 = _tp_beta(n - i, i2, j2, k2, t2)
+                if not b2:
+                    continue
+                counts = _config(n, i, i1, j1, t1, i2, j2, t2)
+                for pts, sgn in sets:
+                    v = obj.set_key(counts, pts)
+                    if v is not None:
+                        terms[v] = terms.get(v, 0) + sgn * b1 * b2
+        got = memo[key] = [(v, c) for v, c in terms.items() if c]
+        return got
+
+    for r in range(m):
+        for s in range(m):
+            z = mat[r][s]
+            if not z:
+                continue
+            zi = z.numerator * (den // z.denominator)
+            for a, sa in column(rows[r]):
+                for b, sb in column(rows[s]):
+                    for v, c in entry(a, b):
+                        acc[v] = acc.get(v, 0) + zi * sa * sb * c
+    for v, value in acc.items():
+        obj.add(v, Fraction(value, den))
+    return None
+
+
+def _add_quad_row(obj: _FourPointObjective, idx: list[int], mu: Fraction) -> str | None:
+    """``mu * sum_{B' in B} (-1)^|B'| x(A u B')`` for the row ``["quad", *profile, mask]``."""
+    prof, mask = idx[:7], idx[7]
+    if any(v < 0 for v in prof) or sum(prof) > obj.n or not 1 <= mask <= 15:
+        return f"bad row {['quad', *idx]}"
+    if mu < 0:
+        return f"negative multiplier on row {['quad', *idx]}"
+    counts = [0] * 8
+    for pattern, c in zip(_PROFILE_PATTERNS, prof):
+        counts[pattern >> 1] += c
+    counts[0] += obj.n - sum(prof)
+    counts_t = tuple(counts)
+    a_pts = [p for p in range(4) if mask >> p & 1]
+    b_pts = [p for p in range(4) if not mask >> p & 1]
+    for size in range(len(b_pts) + 1):
+        for extra in itertools.combinations(b_pts, size):
+            obj.add(obj.set_key(counts_t, tuple(sorted(a_pts + list(extra)))),
+                    mu * (-1) ** size)
+    return None
+
+
+def _capped_total(obj: _FourPointObjective, johnson_memo: dict) -> Fraction:
+    """``const + sum_S max(r_S, 0) cap_S`` (see the module notes)."""
+    n = obj.n
+    half = (obj.d + 1) // 2
+    tri_caps: dict = {}
+
+    def tri_cap(tri: tuple[int, int, int]) -> Fraction:
+        if tri not in tri_caps:
+            a, b, c = tri
+            caps = sorted(1 if s == 0 else _tp_johnson(n, half, s, johnson_memo)
+                          for s in (a, b, c))
+            p = (a + b + c) // 2
+            shapes = math.factorial(n) // (
+                math.factorial(p - a) * math.factorial(p - b) * math.factorial(p - c)
+                * math.factorial(n - p))
+            tri_caps[tri] = min(Fraction(1), Fraction(caps[0] * caps[1], shapes))
+        return tri_caps[tri]
+
+    total = obj.const
+    for key, r in obj.coef.items():
+        if r <= 0:
+            continue
+        if key[0] == "quad":
+            counts = key[1]
+            caps = []
+            for pts in itertools.combinations(range(4), 3):
+                sides = sorted((_distance(counts, a, b) for a, b in itertools.combinations(pts, 2)),
+                               reverse=True)
+                caps.append(tri_cap(tuple(sides)))
+            total += r * min(caps)
+        else:
+            total += r * tri_cap(key)
+    return total
+
+
+def _work(n: int, schrijver: list, pair: list, multipliers: list) -> int:
+    """Elementary steps: per Schrijver block entry the beta loops, per family 2..4 entry the
+    (t1, t2) loops with four sets each (times four for a signed row pair), the exact PSD test
+    of every block, n^2 per Delsarte row and 64 per quad row."""
+    steps = n ** 3
+    for j, (_, weights, mat) in enumerate(schrijver):
+        steps += len(weights) ** 2 * (n // 2 + 1) ** 2 + block_psd_work(mat, j)
+    for j, ((family, i, k1, k2, sign), rows, mat) in enumerate(pair):
+        m = len(rows)
+        per = (i // 2 + 1) * ((n - i) // 2 + 1) * 4 * (4 if sign else 1)
+        steps += m * m * per + block_psd_work(mat, j)
+    steps += sum(n * n if name == "delsarte" else 64 for name, _, _ in multipliers)
+    return steps
+
+
+#: Row label -> number of integer indices (Schrijver's rows and the 4-set rows).
+_ROWS = dict(_ROW_SHAPES, quad=8)
+
+
+def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Re-check a ``"four-point-sdp"`` certificate in exact arithmetic.
+
+    The certificate holds the cell (``q = 2, n, d``), the program's cell (``sdp_n, sdp_d``:
+    the same, or ``n+1, d+1`` for odd ``d``), ``even``, dual ``blocks`` (``family`` 0 or 1
+    with ``k`` and ``weights`` as in ``three-point-sdp``; ``family`` 2, 3 or 4 with ``i``,
+    ``k1``, ``k2``, ``sign`` and ``rows`` ``[i1, i2]``; each with a symmetric ``matrix`` of
+    ``"p/q"`` strings), ``multipliers`` (``row`` label: Schrijver's rows or
+    ``["quad", s0, s1, s2, s3, m1, m2, m3, mask]``, and a ``"p/q"`` value), the exact
+    ``bound`` and the claimed integer ``value`` (its floor).
+
+    Returns
+    -------
+    (valid, bound, reason)
+
+    Raises
+    ------
+    InputError
+        A malformed field, or a check past :data:`FOUR_POINT_WORK` (said before the work).
+    """
+    cell = read_binary_cell(cert, MAX_FOUR_POINT_N, "four-point")
+    if isinstance(cell, str):
+        return False, None, cell
+    n0, d0, n, d, even, claimed, exact_claim = cell
+    max_blocks = 2 * (n // 2 + 1) + 3 * (n + 1) * (n // 2 + 1) ** 2 * 4
+    schrijver, pair = [], []
+    for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, max_blocks)):
+        strict.mapping(b, f"certificate: blocks[{j}]")
+        family = strict.get_int(b, "family", f"certificate: blocks[{j}]", 0, 4)
+        if family in (0, 1):
+            schrijver.append(read_block(b, j, n, ("family", "k")))
+        else:
+            pair.append(_read_pair_block(b, j, n))
+    mults = [read_row(m, j, _ROWS)
+             for j, m in enumerate(strict.get_list(cert, "multipliers", _WHAT, strict.MAX_ROWS))]
+    strict.check_work(_work(n, schrijver, pair, mults), f"four-point certificate for n={n}",
+                      cap=FOUR_POINT_WORK)
+    obj = _FourPointObjective(n, d, even)
+    johnson_memo: dict = {}
+    reason = add_schrijver_part(obj, schrijver, mults, johnson_memo, {"quad": _add_quad_row})
+    entry_memo: dict = {}
+    for block in pair:
+        if reason is not None:
+            break
+        reason = _add_pair_block(obj, block, entry_memo)
+    if reason is not None:
+        return False, None, reason
+    total = _capped_total(obj, johnson_memo)
+    return compare_claims(total, exact_claim, claimed, f"four-point SDP bound A({n0},{d0})")
