@@ -163,12 +163,12 @@ def _recheck(code: Any, params: Params) -> None:
     from codesearch import verify
 
     ok = isinstance(code, Code) and code.q == 2 and (code.q, code.n) == (params.q, params.n)
-    balls = verify.ball_check_cost(code, params.d) if ok else None
-    route = verify.check_cost(code, params.d)[0] if ok else None
-    if balls is not None and route == "pairs" and balls < code.size * (code.size - 1) // 2:
-        verify.assert_code_by_balls(code, params)
-    else:
-        verify.assert_code(code, params)
+    if ok and verify.check_cost(code, params.d)[0] == "pairs":
+        balls = verify.ball_check_cost(code, params.d)
+        if balls is not None and balls < code.size * (code.size - 1) // 2:
+            verify.assert_code_by_balls(code, params)
+            return
+    verify.assert_code(code, params)
 
 
 def run_method(spec: MethodSpec, params: Params, *, time_limit: float | None = None,

@@ -10,13 +10,13 @@ described once, relative to its centre: XOR masks for q = 2, otherwise a CSR lis
 
 from __future__ import annotations
 
-from itertools import combinations, product
 from math import comb
 
 import numpy as np
 
 from codesearch.errors import ParameterError
 from codesearch.model import Code, Params
+from codesearch.verify.codes import digit_patterns
 
 __all__ = [
     "MAX_INDEX_SPACE",
@@ -71,20 +71,7 @@ def ball_patterns(q: int, n: int, r: int) -> tuple[np.ndarray, np.ndarray, np.nd
     Pattern k adds ``pat_add[t]`` (in ``1..q-1``, mod q) at coordinate ``pat_pos[t]`` for t in
     ``pat_ptr[k]:pat_ptr[k+1]``; pattern 0 is the empty change (the centre itself).
     """
-    # built with numpy one weight at a time (supports outer, additions inner): the ball of
-    # radius 8 in 4^12 has 5.9e6 patterns, 7 s in a Python loop
-    sizes = [np.zeros(1, dtype=np.int64)]
-    pos = [np.empty(0, dtype=np.int64)]
-    add = [np.empty(0, dtype=np.int64)]
-    for k in range(1, min(r, n) + 1):
-        supports = np.array(list(combinations(range(n), k)), dtype=np.int64).reshape(-1, k)
-        adds = np.array(list(product(range(1, q), repeat=k)), dtype=np.int64).reshape(-1, k)
-        shape = (supports.shape[0], adds.shape[0], k)
-        pos.append(np.broadcast_to(supports[:, None, :], shape).reshape(-1))
-        add.append(np.broadcast_to(adds[None, :, :], shape).reshape(-1))
-        sizes.append(np.full(shape[0] * shape[1], k, dtype=np.int64))
-    ptr = np.concatenate([np.zeros(1, dtype=np.int64), np.cumsum(np.concatenate(sizes))])
-    return ptr, np.concatenate(pos), np.concatenate(add)
+    return digit_patterns(q, n, range(min(r, n) + 1))
 
 
 def indices_to_words(idx: np.ndarray, q: int, n: int) -> np.ndarray:

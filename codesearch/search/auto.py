@@ -81,10 +81,9 @@ _SCAN_MAX_WORDS = 1 << 28
 _SAMPLED_SPACE = 1 << 22
 #: Largest ball the scans mark (:data:`codesearch.search.greedy.MAX_BALL`).
 _MAX_BALL = 1 << 23
-#: The same for q > 2, where the ball is a table of digit patterns (8 bytes per digit) and
-#: each mark applies them one by one: at A_4(12,9) (5.9e6 patterns, 700 MB) the lexicode
-#: spent a 10 s share on its first codeword; codes with balls this large have a few dozen
-#: words at most, which the construction library and the orbit steps give
+#: The same for q > 2 (:data:`codesearch.search.greedy.MAX_QARY_SCAN_BALL`); codes with balls
+#: this large have a few dozen words at most, which the construction library and the orbit
+#: steps give
 _MAX_QARY_BALL = 1 << 20
 
 # Rates for the cost estimates, measured on a loaded 2-core machine (benchmarks/

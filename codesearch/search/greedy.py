@@ -65,6 +65,10 @@ _SAMPLE_DRAWS = 4096
 #: Largest number of stored ball patterns (memory ~ 8 bytes x radius per pattern).
 MAX_BALL = 2**23
 #: Scan positions per kernel call, between time-limit checks.
+#: Largest q-ary ball (q > 2) a scan is planned over (the portfolio's steps, the local search's
+#: lexicode floor): the ball is a table of digit patterns applied one by one; at A_4(12,9)
+#: (5.9e6 patterns, 700 MB) the lexicode spent a 10 s share on its first codeword
+MAX_QARY_SCAN_BALL = 1 << 20
 _CHUNK = 1 << 20
 
 

@@ -67,8 +67,6 @@ MAX_WORDS = 2**20
 _N_RANDOM = 8
 #: Moves per kernel call, between time-limit checks.
 _CHUNK = 4000
-#: Largest q-ary ball for the lexicode floor (the portfolio's limit for q-ary scans).
-_FLOOR_MAX_QARY_BALL = 1 << 20
 
 
 def _work_cell(params: Params, parity: bool) -> tuple[Params, bool]:
@@ -265,7 +263,7 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     floor = np.empty(0, dtype=np.int64)
     # (not where the ball is a table of millions of q-ary patterns: building it alone passes
     # a 10 s budget, measured at A_5(11,8))
-    max_ball = greedy.MAX_BALL if q == 2 else _FLOOR_MAX_QARY_BALL
+    max_ball = greedy.MAX_BALL if q == 2 else greedy.MAX_QARY_SCAN_BALL
     if q**n <= greedy.MAX_MARK_SPACE and ws.ball_size(q, n, d - 1) <= max_ball:
         floor, _, _ = greedy.greedy_indices(cell, "lex", deadline=_share(ctx, left, 0.2))
     st = _setup(cell, init, int(tenure), ctx.seed)
@@ -297,12 +295,12 @@ def run(ctx: Context, *, steps: int | None = None, tenure: int = 10,
     if floor.size > best.size:
         best, returned = floor, "lexicode (larger than the local search reached)"
     left = ctx.time_left()
-    if (best is floor and left is not None and best.size > 1
-            and _finish_seconds(ctx.params, best.size) > left):
+    finish = _finish_seconds(ctx.params, best.size)
+    if best is floor and left is not None and best.size > 1 and finish > left:
         # a lexicode prefix the time left cannot list and re-check (460800 words at A(28,4))
         # is cut to one it can: any subset of a code is a code (the search's own codes stop
         # growing in time, and an incumbent is never cut)
-        keep = max(1, int(best.size * max(left, 0.0) / _finish_seconds(ctx.params, best.size)))
+        keep = max(1, int(best.size * max(left, 0.0) / finish))
         best = np.sort(best)[:keep]
         returned += f", cut to {keep} words for the time left"
     code = None
