@@ -250,6 +250,19 @@ def test_large_cell_gets_the_construction_first():
     assert res.settings["plan"][0] == "constructions"
 
 
+def test_large_linear_construction_is_priced_by_its_span_check():
+    # The shortened extended Hamming code [27,21,4] (2^21 words; MacWilliams & Sloane ch. 1,
+    # common practice) is the library's code at A(27,4). Its re-check reduces each word on a
+    # basis, so the portfolio builds it instead of a smaller one priced by the ball bitmap.
+    params = Params(2, 27, 4)
+    res = search(params, "auto", time_limit=12)
+    assert res.size == 1 << 21
+    assert res.settings["lower_method"].startswith("constructions[")
+    assert verify.check_cost(res.code, 4)[0] == "linear"
+    assert auto.recheck_seconds(params, 1 << 21, linear=True) < auto.recheck_seconds(
+        params, 1 << 21)
+
+
 def test_progress_reports_each_step(monkeypatch):
     _only(monkeypatch, {"orbit", "auto"})
     _no_bounds(monkeypatch)

@@ -113,8 +113,12 @@ def code_report(report: Any, file: str) -> str:
 
 def find_summary(result: Any) -> str:
     """One line for a :class:`~codesearch.results.SearchResult`."""
-    # an exhaustive search leaves nothing to re-check unless it wrote a refutation bundle
-    verdict = "proved optimal by exhaustive search" if result.optimal else (
+    # an exhaustive search leaves nothing to re-check unless it wrote a refutation bundle;
+    # a code that meets a certified bound is optimal by that bound, not by the search
+    by = str(result.settings.get("upper_method") or "")
+    how = (f"optimal: meets the {by[len('bound:'):]} bound" if by.startswith("bound:")
+           else "proved optimal by exhaustive search")
+    verdict = how if result.optimal else (
         f"{result.status.value}; upper bound {result.upper}")
     return (f"{result.params}: code of size {result.size} ({verdict}) by {result.method} in "
             f"{result.seconds:.2f} s, {result.nodes} nodes")

@@ -172,10 +172,17 @@ def _packing_cap(params: Params) -> int:
     return max(1, params.space_size // _ball(q, n, (d - 1) // 2))
 
 
-def recheck_seconds(params: Params, words: int) -> float:
+def recheck_seconds(params: Params, words: int, *, linear: bool = False) -> float:
     """Estimated seconds for the front end's re-check of a code of ``words`` words (the
-    cheaper of all pair distances and, binary, the disjoint-balls check)."""
+    cheaper of all pair distances and, binary, the disjoint-balls check).
+
+    ``linear`` says the code is a binary linear space: past 4096 words the checker then
+    reduces each word on a basis (:func:`codesearch.verify.check_cost`, route ``linear``),
+    about ``M n`` word operations.
+    """
     pairs = words * (words - 1) / 2 / _PAIRS_PER_S
+    if linear and params.q == 2 and params.n <= 64:
+        return min(pairs, words * params.n / _SCAN_PER_S)
     if params.q == 2:
         # past 4096 words a ball bitmap: the radius-r ball of every word and, for even d, its
         # radius-(r+1) sphere (A(27,4): 379 words each, not 28)
@@ -341,6 +348,7 @@ class _Portfolio:
         self.budget = budget
         self.deadline = ctx.deadline if ctx.deadline is not None else ctx.start + budget
         self.best: Code | None = None
+        self.best_linear = False
         self.lower_method: str | None = None
         self.upper: int | None = ctx.known_upper
         bound = ctx.bound
@@ -359,7 +367,7 @@ class _Portfolio:
 
     def left(self) -> float:
         """Seconds to the deadline, less the re-check of the best code so far."""
-        reserve = recheck_seconds(self.ctx.params, self.size)
+        reserve = recheck_seconds(self.ctx.params, self.size, linear=self.best_linear)
         return self.deadline - time.perf_counter() - reserve
 
     def forward(self, info: dict[str, Any]) -> None:
@@ -368,9 +376,11 @@ class _Portfolio:
             self.ctx.report(**{**info, "step": self.step_name, "best": max(
                 self.size, int(info.get("incumbent") or 0)), "upper": self.upper})
 
-    def offer(self, code: Code | None, name: str) -> None:
+    def offer(self, code: Code | None, name: str, *, linear: bool = False) -> None:
+        """Keep ``code`` if it is the largest so far (``linear``: its words are a linear
+        space, which the re-check estimates use)."""
         if code is not None and code.size > self.size:
-            self.best, self.lower_method = code, name
+            self.best, self.lower_method, self.best_linear = code, name, linear
 
     def run_step(self, step: Step, last: bool) -> None:
         """Run one step if the time left holds its estimate; keep what it found or proved."""
@@ -384,6 +394,11 @@ class _Portfolio:
                             nodes=self.nodes)
             return
         limit = left if last else min(left, max(step.need, step.share * self.budget))
+        if step.method == "constructions":
+            # it builds one code, the largest whose building and re-check fit: on large
+            # cells that is the library's record (2^21 words at A(27,4), about 2 s), which
+            # no search step comes near within any share of the budget
+            limit = left
         self.step_name = step.name
         t0 = time.perf_counter()
         if step.method == "constructions":
@@ -453,7 +468,8 @@ class _Portfolio:
             left = limit - (time.perf_counter() - t0)
             # built, checked by the library (generator or pairs) and re-checked twice more:
             # here and by the front end after the portfolio; listing costs M words
-            cost = 3 * recheck_seconds(params, c.size) + c.size * params.n / _SCAN_PER_S
+            cost = (3 * recheck_seconds(params, c.size, linear=c.linear)
+                    + c.size * params.n / _SCAN_PER_S)
             if cost > left:
                 continue
             try:
@@ -461,7 +477,7 @@ class _Portfolio:
             except ParameterError:
                 continue
             code = built.code if isinstance(built.code, Code) else built.code.words()
-            self.offer(code, f"constructions[{built.provenance}]")
+            self.offer(code, f"constructions[{built.provenance}]", linear=c.linear)
             return code.size
         return 0
 
