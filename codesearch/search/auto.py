@@ -27,7 +27,10 @@ and the masks of a Hamming ball; the orbit graph is about ``(q^n)^2 / |G|`` dist
 evaluations; a code of M words costs its re-check). A step
 never starts when the time left, less the re-check of the best code so far, cannot hold its
 estimate; it is logged as skipped. Each step runs under ``min(time left, its share of the
-budget)``; the front end owns the deadline (:class:`codesearch.search.base.Context`).
+budget)``, except the construction library's, which builds one code and may use the time
+left (a linear code's re-check is priced by the checker's span route, ``M n`` operations,
+so the library's 2^21-word code of A(27,4) fits a budget of 8 s); the front end owns the
+deadline (:class:`codesearch.search.base.Context`).
 
 Every step goes through the search front end, so every code is re-verified, and a step whose
 method is not registered, not installed, or rejects the cell (or an option) is skipped and
