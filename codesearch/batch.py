@@ -56,6 +56,12 @@ Progress = Callable[[dict[str, Any]], None]
 BOUNDS_TASK = "bounds"
 #: Name of the construction stage in the store's ``runs`` table (and the method of its codes).
 CONSTRUCTION_TASK = "construction"
+#: Name of the four-point bound stage in the store's ``runs`` table; its ``budget`` is the
+#: estimated-time cap the stage ran under (:data:`FOUR_POINT_DONE` once it has solved, or
+#: found the bound not applicable).
+FOUR_POINT_TASK = "bounds:four-point"
+#: ``budget`` recorded for a four-point stage that needs no rerun at any cap.
+FOUR_POINT_DONE = 1.0e9
 #: Codes with more words than this travel from the worker compactly (see :class:`CellCode`).
 SHIP_WORDS = 4096
 #: Seconds per word set aside for checking a code a search may return (the linear-time
@@ -110,6 +116,7 @@ class CellTask:
     constructions: bool = False
     hunt: bool = False
     incumbent: Code | None = None
+    four_point: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -179,8 +186,12 @@ class CellOutcome:
         Codes to store apart from the searches' own: the construction stage's, and the large
         codes of searches (moved here from their ``SearchResult``, which then holds None).
     stages : dict
-        Seconds of each stage: ``bounds``, ``construction``, ``search:NAME`` (the search and
-        the check of its code), and ``skipped:NAME`` (0.0) for a search left without time.
+        Seconds of each stage: ``bounds``, ``bounds:four-point``, ``construction``,
+        ``search:NAME`` (the search and the check of its code), and ``skipped:NAME`` (0.0)
+        for a search left without time.
+    four_point : tuple or None
+        The four-point stage when it ran: ``(bound or None, budget to record or None, note)``
+        (see :func:`_four_point_stage`).
     """
 
     params: Params
@@ -192,6 +203,7 @@ class CellOutcome:
     seconds: float
     codes: tuple[CellCode, ...] = ()
     stages: dict[str, float] = field(default_factory=dict)
+    four_point: tuple[BoundResult | None, float | None, str] | None = None
 
 
 def _one_line(exc: BaseException) -> str:
@@ -209,6 +221,37 @@ def _bounds_stage(task: CellTask, errors: list[tuple[str, str]]
         errors.append((BOUNDS_TASK, _one_line(exc)))
         return None, time.perf_counter() - t0
     return tuple(found.values()), time.perf_counter() - t0
+
+
+def _four_point_stage(task: CellTask, errors: list[tuple[str, str]]
+                      ) -> tuple[BoundResult | None, float | None, str]:
+    """The four-point bound on the cell when its estimated time is at most ``task.four_point``
+    seconds: ``(bound or None, budget to record in the runs table or None, note)``.
+
+    A cell the bound does not apply to, or whose program does not fit this machine, is
+    recorded as done for good (:data:`FOUR_POINT_DONE`); one over the cap is recorded with
+    the cap, so that a later run with a larger cap tries it; a failure is reported in
+    ``errors`` and recorded nowhere (the next run retries it).
+    """
+    from codesearch.bounds import fourpoint
+
+    p = task.params
+    if p.q != 2 or p.d < 3:
+        return None, FOUR_POINT_DONE, "not applicable"
+    try:
+        size = fourpoint.check_four_point_fits(p)
+    except ParameterError as exc:
+        return None, FOUR_POINT_DONE, str(exc)
+    if size.seconds > task.four_point:
+        return None, task.four_point, (f"estimated {size.seconds:,.0f} s, above the cap of "
+                                       f"{task.four_point:,.0f} s")
+    try:
+        found = fourpoint.four_point_bound(p)
+    except Exception as exc:  # a failing bound must not lose the cell's other work
+        errors.append((FOUR_POINT_TASK, _one_line(exc)))
+        return None, None, _one_line(exc)
+    note = "solved" if found is not None and found.certified else "not certified"
+    return found, FOUR_POINT_DONE, note
 
 
 def _construction_stage(task: CellTask, lower: int, errors: list[tuple[str, str]]
@@ -270,7 +313,8 @@ def _check_reserve(p: Params, upper: int | None) -> float:
 
 def run_cell(task: CellTask) -> CellOutcome:
     """Run one cell in a worker: bounds, the construction library, then each search with its
-    share of what is left of the budget.
+    share of what is left of the budget; last, outside the budget, the four-point bound when
+    the run asks for it and the cell is still open.
 
     Every stage runs under the cell's deadline ``start + budget``: the bounds and the
     construction are short and accounted first; each search is given its share of the time
@@ -344,8 +388,14 @@ def run_cell(task: CellTask) -> CellOutcome:
         if spec.exhaustive and res.upper is not None and res.status in (
                 Status.OPTIMAL, Status.INFEASIBLE):
             upper = res.upper if upper is None else min(upper, res.upper)
+    four = None
+    if task.four_point > 0 and (upper is None or lower < upper):
+        # last, outside the budget, and only where the cell is still open
+        t0 = time.perf_counter()
+        four = _four_point_stage(task, errors)
+        stages[FOUR_POINT_TASK] = time.perf_counter() - t0
     return CellOutcome(p, found, bounds_seconds, tuple(searches), tuple(refused),
-                       tuple(errors), time.perf_counter() - start, tuple(codes), stages)
+                       tuple(errors), time.perf_counter() - start, tuple(codes), stages, four)
 
 
 def _options_of(spec: Any) -> frozenset[str]:
@@ -366,6 +416,14 @@ def _store_outcome(store: Any, task: CellTask, out: CellOutcome) -> None:
             for b in out.bounds:
                 store.add_bound(b, seconds=out.bounds_seconds)
             store.mark_run(p, BOUNDS_TASK, budget=0.0, seconds=out.seconds, status="done")
+        if out.four_point is not None:
+            bound, mark, note = out.four_point
+            seconds = out.stages.get(FOUR_POINT_TASK, 0.0)
+            if bound is not None:
+                store.add_bound(bound, seconds=seconds)
+            if mark is not None:
+                store.mark_run(p, FOUR_POINT_TASK, budget=mark, seconds=seconds,
+                               status="done" if mark >= FOUR_POINT_DONE else "over cap")
         if task.constructions:
             store.mark_run(p, CONSTRUCTION_TASK, budget=0.0,
                            seconds=out.stages.get(CONSTRUCTION_TASK, 0.0), status="done")
@@ -532,6 +590,7 @@ class _Plan:
     seed: int
     propagate: bool
     constructions: bool = True
+    four_point: float = 0.0
 
     def task(self, st: Any, p: Params) -> CellTask | None:
         """The work left on cell ``p`` (None when nothing is left): only open cells
@@ -546,14 +605,17 @@ class _Plan:
         build = self.constructions and st.run_budget(p, CONSTRUCTION_TASK) is None
         before = {spec.name: st.run_budget(p, spec.name) for spec in self.specs}
         todo = tuple(spec for spec in self.specs if (before[spec.name] or 0.0) < self.budget)
-        if not run_bounds and not todo and not build:
+        four = (self.four_point > 0 and p.q == 2
+                and (st.run_budget(p, FOUR_POINT_TASK) or 0.0) < self.four_point)
+        if not run_bounds and not todo and not build and not four:
             return None
         hunt = any(b is not None for b in before.values())
         incumbent = None
         if hunt and todo and s.code_id is not None and 2 <= s.lower <= INCUMBENT_WORDS:
             incumbent = st.get_code(s.code_id)[1]
         return CellTask(p, float(self.budget), todo, run_bounds, cell_seed(self.seed, p),
-                        s.lower, s.upper, self.sdp, build, hunt, incumbent)
+                        s.lower, s.upper, self.sdp, build, hunt, incumbent,
+                        self.four_point if four else 0.0)
 
 
 class _Driver:
@@ -698,6 +760,7 @@ def run_table(
     sdp: bool = False,
     propagate: bool = True,
     constructions: bool = True,
+    four_point: float = 0.0,
     per_worker: int | None = None,
     progress: Progress | None = None,
 ) -> TableSummary:
@@ -728,6 +791,12 @@ def run_table(
     sdp : bool
         Let the bounds stage try the semidefinite bound too (slow; cells whose bounds
         already ran are not redone).
+    four_point : float
+        Also solve the four-point SDP bound (:mod:`codesearch.bounds.fourpoint`; binary,
+        minutes to hours a cell from n = 17) on every open cell whose estimated solve time
+        is at most this many seconds; 0 (default) never. Its own stage
+        (:data:`FOUR_POINT_TASK`), outside the search budget: a rerun with a larger cap
+        tries the cells left over, a solved cell is never solved again.
     per_worker : int, optional
         Cells in flight per worker: default 1 on the local pool (a queued cell may still be
         settled by propagation before it starts) and 2 on a Dask cluster (hides the round
@@ -757,8 +826,10 @@ def run_table(
         raise ParameterError(f"workers must be at least 1, got {workers}")
     if per_worker is not None and per_worker < 1:
         raise ParameterError(f"per_worker must be at least 1, got {per_worker}")
+    if four_point < 0:
+        raise ParameterError(f"four_point must be a number of seconds >= 0, got {four_point}")
     plan = _Plan(float(budget), _resolve_methods(methods), bounds, sdp, seed, propagate,
-                 constructions)
+                 constructions, float(four_point))
 
     def new_executor() -> Any:
         if scheduler:

@@ -16,7 +16,7 @@ import sys
 from typing import Any, Callable, Sequence
 
 from codesearch._version import __version__
-from codesearch.errors import InputError
+from codesearch.errors import InputError, ParameterError
 
 __all__ = ["main", "build_parser"]
 
@@ -371,6 +371,11 @@ def _add_table(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--seed", type=int, default=0, help="run seed (default 0)")
     p.add_argument("--no-bounds", action="store_true", help="skip the bounds stage")
     p.add_argument("--sdp", action="store_true", help="bounds stage also tries the SDP bound")
+    p.add_argument("--four-point", type=float, default=0.0, metavar="SECONDS",
+                   help="also the four-point SDP bound (binary) on every open cell whose "
+                   "estimated solve time is at most SECONDS (minutes from n = 17, hours "
+                   "from n = 21; outside the search budget; a rerun with a larger cap "
+                   "tries the cells left over)")
     p.add_argument("--no-propagate", action="store_true", help="do not derive between cells")
     p.add_argument("--no-constructions", action="store_true",
                    help="do not ask the construction library before the searches")
@@ -389,13 +394,15 @@ def _cmd_table(args: argparse.Namespace) -> int:
     from codesearch.report.text import table_summary
 
     cells = grid(args.q, args.n, args.d)
-    if args.sdp:
+    if args.sdp or args.four_point:
         _require_sdp_solver()
+    if args.four_point < 0:
+        raise ParameterError(f"--four-point takes seconds >= 0, got {args.four_point:g}")
     methods = None if args.methods is None else [m.strip() for m in args.methods.split(",") if m.strip()]
     kwargs = dict(budget=args.budget, methods=methods, workers=args.workers,
                   scheduler=args.scheduler, seed=args.seed, bounds=not args.no_bounds,
                   sdp=args.sdp, propagate=not args.no_propagate,
-                  constructions=not args.no_constructions)
+                  constructions=not args.no_constructions, four_point=args.four_point)
     _kernels_first()
     with table_progress(_progress_mode(args)) as display:
         summary = batch.run_table(args.store, cells, progress=display, **kwargs)

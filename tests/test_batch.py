@@ -7,7 +7,7 @@ import pathlib
 
 import pytest
 
-from codesearch.batch import run_table, table_cells
+from codesearch.batch import FOUR_POINT_DONE, FOUR_POINT_TASK, run_table, table_cells
 from codesearch.errors import ParameterError
 from codesearch.model import Params
 from codesearch.store import Store
@@ -177,3 +177,31 @@ def test_rerun_with_larger_budget_continues_open_cells_only(tmp_path):
     assert again.ran == len(still_open)
     done = [e for e in events if e["event"] == "done"]
     assert all(e["budget"] == 1.0 and "search:stub-lex" in e["stages"] for e in done)
+
+
+def test_four_point_stage_runs_once_on_open_cells_and_respects_its_cap(tmp_path):
+    # Best (1980) proved A(11,4) = A(10,3) = 72 (from memory); the four-point bound is a
+    # valid upper bound, so it may not go below that, and its certificate re-checks exactly.
+    path = tmp_path / "t.sqlite"
+    open_cell, big_cell = Params(2, 11, 4), Params(2, 17, 8)
+    out = run_table(str(path), [open_cell, big_cell], budget=1.0, methods=[], workers=1,
+                    bounds=False, constructions=False, propagate=False, four_point=120)
+    assert not out.failed and not out.errors
+    with Store(path) as s:
+        top = s.summary(open_cell)
+        assert top.upper_method == "four-point-sdp" and 72 <= top.upper <= 81
+        assert s.run_budget(open_cell, FOUR_POINT_TASK) == FOUR_POINT_DONE
+        # A(17,8): its program is estimated at minutes, above the cap; recorded with the cap
+        assert s.summary(big_cell).upper is None
+        assert s.run_budget(big_cell, FOUR_POINT_TASK) == 120
+        kinds = {r[5] for r in s.rows("bounds")}
+        assert kinds == {"four-point-sdp"}
+    # the same cap again: nothing left to do
+    again = run_table(str(path), [open_cell, big_cell], budget=1.0, methods=[], workers=1,
+                      bounds=False, constructions=False, propagate=False, four_point=120)
+    assert again.ran == 0
+
+
+def test_four_point_cap_must_not_be_negative(tmp_path):
+    with pytest.raises(ParameterError):
+        run_table(str(tmp_path / "t.sqlite"), [Params(2, 11, 4)], four_point=-1)
