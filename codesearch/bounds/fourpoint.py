@@ -86,6 +86,23 @@ is inhomogeneous in ``x`` (its corner entry is ``1 / y({0}) = 2^n / |C|``) and i
 here, so the value can be above theirs (measured: A(17,8) <= 38, A(18,8) <= 74, where
 data/published_binary.csv lists 37 and 72 from memory; benchmarks/results_fourpoint.md).
 
+How that matrix could be added (not done; a plan for the next contributor). Only its rows
+for the empty set and the single words make it inhomogeneous; its principal part indexed
+by the pairs ``{u, u + a}`` is homogeneous in ``x`` and may be required PSD on its own.
+Write a pair as ``(u, a)`` (both ``(u, a)`` and ``(u + a, a)``: duplicated rows do not
+change positive semidefiniteness); the entry between ``(u, a)`` and ``(v, b)`` depends on
+``a``, ``b`` and ``c = u + v`` only (translation invariance), so a Fourier transform in
+``u`` splits the matrix into one block per character ``z`` in F_2^n, indexed by the ``a``
+with ``z . a = 0`` (the others vanish), with entries
+``sum_c (-1)^(z . c) x({0, a, c, c + b})``. The block of a weight-``w`` character is
+invariant under ``S_w x S_{n-w}``, the group of families 2-4, so the same tensor product
+of two Terwilliger algebras reduces it; its entries are character sums over ``c`` grouped
+by the weights of ``c`` on the eight cells cut out by ``z``, ``a``, ``b``, each term a
+4-set profile. The inhomogeneous rows meet only the block ``z = 0`` (its fully invariant
+part, a few rows); they can be handled for a fixed target size ``U`` by putting
+``2^n / U`` in the corner (a code of ``U`` words or more keeps the matrix PSD), one solve
+per size.
+
 Size, refusal and certificate
 -----------------------------
 :func:`four_point_size` counts the program exactly before anything is built: only free
