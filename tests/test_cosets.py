@@ -107,6 +107,25 @@ def test_bad_parameters_raise_one_line_errors():
         coset_union_search(rm, 20)
     with pytest.raises(ParameterError, match="inner code"):  # RM(1,4) has distance 8
         coset_union_search(rm, 9)
+    # a start supercode: local method only, and every one of its cosets must be good
+    with pytest.raises(ParameterError, match="local"):
+        coset_union_search(rm, 6, method="greedy", start=(1,))
+    with pytest.raises(ParameterError, match="weight below"):  # the coset of e_0: weight 1
+        coset_union_search(rm, 6, method="local", start=(1,))
+
+
+def test_start_supercode_is_kept_or_improved():
+    # x0 x1 + x2 x3 is a bent function: its coset of RM(1,4) has weight 6 (MacWilliams-
+    # Sloane ch. 14), so the start {RM(1,4), that coset} is good at d = 6; the search keeps
+    # it and reaches 8 cosets, the Nordstrom-Robinson size A(16,6) = 256 (MacWilliams-Sloane
+    # App. A)
+    rm = build_family("reed-muller", r=1, m=4).code
+    pts = [[(p >> i) & 1 for i in range(4)] for p in range(16)]
+    q = sum(1 << p for p in range(16) if (pts[p][0] & pts[p][1]) ^ (pts[p][2] & pts[p][3]))
+    res = coset_union_search(rm, 6, method="local", seed=0, goal=8, start=(q,),
+                             time_limit=30)
+    assert len(res.syndromes) == 8 and res.size == 256
+    assert coset_weights(rm).syndrome(q) in res.syndromes
 
 
 # ----------------------------------------------------------------------------- records

@@ -71,7 +71,7 @@ from codesearch.model import Code, LinearCode
 
 __all__ = ["CosetWeights", "CosetUnionResult", "CosetRecord", "RECORDS", "coset_weights",
            "good_syndromes", "coset_union_search", "coset_union_from_record",
-           "union_words", "leading_balance", "random_subcode", "to_record",
+           "union_words", "leading_balance", "random_subcode", "start_syndromes", "to_record",
            "MAX_REDUNDANCY"]
 
 #: Largest redundancy r = n - k searched (2^r syndromes held as arrays).
@@ -327,7 +327,8 @@ def _local(good: np.ndarray, rng: np.random.Generator, deadline: float, max_move
 def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
                        time_limit: float = 10.0, seed: int = 0, restarts: int = 1000,
                        goal: int | None = None, moves: int = 10**7,
-                       weights: CosetWeights | None = None) -> CosetUnionResult:
+                       weights: CosetWeights | None = None,
+                       start: tuple[int, ...] | None = None) -> CosetUnionResult:
     """Largest union of cosets of ``code`` with minimum distance >= d that the search finds.
 
     Parameters
@@ -354,6 +355,11 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
         Local-search moves at most (``local``).
     weights : CosetWeights, optional
         Precomputed :func:`coset_weights` of ``code``.
+    start : tuple of int, optional
+        ``local`` only: words (bit j = coordinate j) spanning, together with ``code``, a
+        linear supercode whose cosets of ``code`` all have weight >= d (e.g. the generator
+        rows of a good linear code containing ``code``); the local search starts from those
+        cosets instead of the greedy stage.
 
     Returns
     -------
@@ -379,6 +385,8 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
     good = w.weight >= d
     if method == "auto":
         method = "exact" if sset.size <= MAX_EXACT_VERTICES else "greedy"
+    if start is not None and method != "local":
+        raise ParameterError("coset unions: a start supercode needs the local method")
     optimal = False
     if method == "exact":
         if sset.size > MAX_EXACT_VERTICES:
@@ -397,14 +405,32 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
             optimal = True
     else:
         rng = np.random.default_rng(seed)
-        share = 0.2 if method == "local" else 1.0
-        chosen = _greedy(good, sset, rng, t0 + share * time_limit, restarts, goal)
-        if method == "local" and (goal is None or len(chosen) + 1 < goal):
-            chosen = _local(good, rng, t0 + time_limit, moves, goal, [0, *chosen])
+        if start is not None:
+            span = start_syndromes(w, start)
+            if not good[span[1:]].all():
+                raise ParameterError(f"coset unions: the start supercode has a coset of "
+                                     f"weight below d = {d}")
+            chosen = _local(good, rng, t0 + time_limit, moves, goal, span.tolist())
+        else:
+            share = 0.2 if method == "local" else 1.0
+            chosen = _greedy(good, sset, rng, t0 + share * time_limit, restarts, goal)
+            if method == "local" and (goal is None or len(chosen) + 1 < goal):
+                chosen = _local(good, rng, t0 + time_limit, moves, goal, [0, *chosen])
     syn = (0, *sorted(chosen))
     leaders = tuple(w.leader(s) for s in syn)
     return CosetUnionResult(code.n, code.k, d, syn, leaders, len(syn) << code.k, optimal,
                             method, seed, int(sset.size), time.monotonic() - t0)
+
+
+def start_syndromes(weights: CosetWeights, words: tuple[int, ...]) -> np.ndarray:
+    """Sorted syndromes of the span of ``words`` (bit j = coordinate j): the cosets of the
+    inner code making up the linear code spanned by it and ``words``; the first is 0."""
+    span = np.zeros(1, dtype=np.int64)
+    for x in words:
+        s = weights.syndrome(int(x))
+        if s and not (span == s).any():
+            span = np.concatenate([span, span ^ s])
+    return np.sort(span)
 
 
 def random_subcode(code: LinearCode, k: int, seed: int) -> LinearCode:
@@ -515,7 +541,7 @@ class CosetRecord:
         code = LinearCode(_to_rows(self.generator, self.n), 2)
         res = coset_union_search(code, self.d, method=p["method"], seed=p["seed"],
                                  restarts=p["restarts"], moves=p["moves"], goal=p["goal"],
-                                 time_limit=1e9)
+                                 time_limit=1e9, start=p.get("start"))
         return res.leaders
 
 
@@ -579,4 +605,18 @@ RECORDS: dict[str, CosetRecord] = {r.key: r for r in [
          2452618, 2495320, 2643734, 3033442, 1115059, 1040901, 3305684, 728261, 3735676,
          299215, 291893, 31593),
         (("goal", 29), ("method", "local"), ("moves", 10000000), ("restarts", 20), ("seed", 5))),
+    # (24, 17920, 5): 35 cosets of a 9-dimensional subcode (random_subcode seed 1) of the
+    # extended [23,14,5] column-search code, [24,14,6]; the local search (seed 1, no deadline,
+    # about 2 s) starts from the 32 cosets making up that [24,14,6] code and adds 3. Extended,
+    # (25, 17920, 6). Published lower value of A(24,5) = A(25,6): 17920.
+    CosetRecord(
+        "c24-sub9", 24, 5, "9-dimensional subcode of the extended [23,14,5] column-search code",
+        (7693125, 15445571, 9092884, 6424083, 10259964, 6300636, 6257845, 15402542, 8948900),
+        (0, 4202757, 4591621, 98857, 3178520, 4562945, 6359045, 9439269, 413, 525579, 4195367,
+         9961987, 16407, 2109465, 1081738, 33378, 2277441, 918161, 2621635, 4456838, 8421390,
+         8755, 69925, 4456475, 18475, 8781873, 1197059, 2236423, 1050697, 541197, 8393747,
+         41041, 10748421, 2098261, 282754),
+        (("goal", 35), ("method", "local"), ("moves", 200000), ("restarts", 20), ("seed", 1),
+         ("start", (413, 8389228, 8391900, 8393747, 8396895, 8406263, 34030, 8455339, 8520717,
+                    263228, 525462, 1049849, 2098261, 4195367)))),
 ]}
