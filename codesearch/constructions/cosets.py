@@ -620,7 +620,7 @@ RECORDS: dict[str, CosetRecord] = {r.key: r for r in [
          ("start", (413, 8389228, 8391900, 8393747, 8396895, 8406263, 34030, 8455339, 8520717,
                     263228, 525462, 1049849, 2098261, 4195367)))),
     # (23, 78, 9): 39 cosets of the repetition code of length 23 (complement-closed), found
-    # by the local search (seed 0, 20 greedy restarts, goal 39, no deadline; about 10 min);
+    # by the local search (seed 0, 20 greedy restarts, goal 39, no deadline; about 2 min);
     # extended, (24, 78, 10). Above the 64 this library reached before; short of the published
     # lower value 136 of A(23,9) (data/published_binary.csv, from memory, marked uncertain).
     CosetRecord(
