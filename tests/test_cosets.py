@@ -71,6 +71,21 @@ def test_nordstrom_robinson_is_eight_cosets_of_first_order_reed_muller():
     verify.assert_code(code, Params(2, 16, 6))
 
 
+def test_connection_set_is_every_good_nonzero_syndrome():
+    # brute force over all words of length 10: the syndromes of the cosets whose least
+    # weight is >= d, 0 excluded (the definition of the Cayley graph's connection set)
+    code = build_family("reed-muller", r=1, m=3).code  # [8,4,4], padded below
+    code = LinearCode(np.hstack([code.generator, np.zeros((4, 2), np.uint8)]), 2)
+    w = coset_weights(code)
+    least: dict[int, int] = {}
+    for x in range(1 << 10):
+        s = w.syndrome(x)
+        least[s] = min(least.get(s, 99), bin(x).count("1"))
+    for d in (1, 2, 3, 4):
+        expect = sorted(s for s, m in least.items() if s != 0 and m >= d)
+        assert good_syndromes(w, d).tolist() == expect
+
+
 @pytest.mark.parametrize("n,d", [(7, 3), (8, 4), (9, 5)])
 def test_clique_stage_matches_networkx(n, d):
     # the largest union of cosets of the repetition code = 2 x the clique number of the

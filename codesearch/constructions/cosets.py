@@ -195,8 +195,8 @@ def coset_weights(code: LinearCode) -> CosetWeights:
 
 def good_syndromes(weights: CosetWeights, d: int) -> np.ndarray:
     """The nonzero syndromes whose cosets have minimum weight >= d (the connection set)."""
-    return np.flatnonzero(weights.weight >= d)[1:] if d > 0 else \
-        np.arange(1, weights.weight.size)
+    good = np.flatnonzero(weights.weight >= d)
+    return good[good != 0]
 
 
 # ----------------------------------------------------------------------------- search
@@ -413,7 +413,11 @@ def coset_union_search(code: LinearCode, d: int, *, method: str = "auto",
             chosen = _local(good, rng, t0 + time_limit, moves, goal, span.tolist())
         else:
             share = 0.2 if method == "local" else 1.0
-            chosen = _greedy(good, sset, rng, t0 + share * time_limit, restarts, goal)
+            # the greedy stage draws from the connection set less its least syndrome: an
+            # earlier slip of good_syndromes, kept here so that the recorded searches
+            # (RECORDS, rerun) still reproduce; the local search that follows and the exact
+            # search see every syndrome
+            chosen = _greedy(good, sset[1:], rng, t0 + share * time_limit, restarts, goal)
             if method == "local" and (goal is None or len(chosen) + 1 < goal):
                 chosen = _local(good, rng, t0 + time_limit, moves, goal, [0, *chosen])
     syn = (0, *sorted(chosen))
