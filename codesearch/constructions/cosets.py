@@ -27,6 +27,14 @@ chosen syndrome for one compatible with all the others, the removed one tabu for
 moves; else drop one) that tests compatibility as ``w(v + c) >= d`` on the fly, so it needs
 no adjacency matrix and runs on connection sets of 10^5-10^6 syndromes.
 
+:func:`symmetric_coset_union_search` prescribes symmetry: a coordinate permutation that
+maps L onto itself acts linearly on the syndromes (:func:`syndrome_action`) and keeps coset
+weights, so it is an automorphism of the Cayley graph fixing 0; the unions invariant under a
+group G are {0} plus unions of G-orbits that are cliques and pairwise compatible, a maximum
+weight clique problem (weights = orbit sizes) on a graph of about 2^r / |G| orbits, which the
+exact search solves where the plain clique problem does not finish (the method of prescribed
+automorphisms, as in the orbit search of :mod:`codesearch.search`).
+
 Record h7-rep9, (16, 2720, 3)
     L = Hamming(7,4) + repetition(9) (direct sum, [16, 5, 3]). A coset of L is a pair
     (coset of the Hamming code, i.e. a point a of F_2^3; complementary pair {b, b + 1} in
