@@ -17,7 +17,7 @@ from codesearch import verify
 from codesearch.constructions import build_family, candidates
 from codesearch.constructions.cosets import (
     RECORDS, coset_union_search, coset_weights, good_syndromes, leading_balance,
-    random_subcode, union_words,
+    random_subcode, symmetric_coset_union_search, syndrome_action, union_words,
 )
 from codesearch.errors import ParameterError
 from codesearch.model import Code, LinearCode, Params
@@ -141,6 +141,70 @@ def test_start_supercode_is_kept_or_improved():
                              time_limit=30)
     assert len(res.syndromes) == 8 and res.size == 256
     assert coset_weights(rm).syndrome(q) in res.syndromes
+
+
+# ----------------------------------------------------------------------------- symmetry
+def _rows_to_ints(code: LinearCode) -> tuple[int, ...]:
+    return tuple(int(sum(int(b) << j for j, b in enumerate(r))) for r in code.generator)
+
+
+def test_syndrome_action_is_the_syndrome_of_the_permuted_word():
+    # definition: a permutation preserving L maps the coset x + L to p(x) + L; the induced
+    # syndrome map must agree with the syndrome of the permuted word, and keep coset weights
+    # (a permutation keeps Hamming weights); L = {(u|u) : u even of length 5}, p = the
+    # cyclic shift of both halves
+    u = np.array([[1, 0, 0, 0, 1], [0, 1, 0, 0, 1], [0, 0, 1, 0, 1], [0, 0, 0, 1, 1]],
+                 dtype=np.uint8)
+    code = LinearCode(np.concatenate([u, u], axis=1), 2)
+    perm = [(j + 1) % 5 for j in range(5)] + [5 + (j + 1) % 5 for j in range(5)]
+    w = coset_weights(code)
+    image = syndrome_action(w, perm)
+    rng = np.random.default_rng(0)
+    for x in rng.integers(0, 1 << 10, 200).tolist():
+        y = sum(1 << perm[j] for j in range(10) if (x >> j) & 1)
+        assert image[w.syndrome(x)] == w.syndrome(y)
+    assert (w.weight[image] == w.weight).all()
+
+
+def test_symmetric_search_finds_the_cyclic_hamming_code():
+    # the [7,4] Hamming code is cyclic and contains the all-ones word, so it is a union of 8
+    # cosets of the repetition code invariant under the cyclic shift; 16 words of length 7
+    # with distance 3 meet the sphere-packing bound 2^7 / 8 (MacWilliams-Sloane Ch. 1 s. 5,
+    # Ch. 7), so no union of more cosets exists, with or without symmetry
+    rep = build_family("repetition", q=2, n=7).code
+    shift = [(j + 1) % 7 for j in range(7)]
+    res = symmetric_coset_union_search(rep, 3, [shift], time_limit=60)
+    assert res.optimal and res.method == "orbit" and res.size == 16
+    code = union_words(_rows_to_ints(rep), res.leaders, 7)
+    verify.assert_code(code, Params(2, 7, 3))
+    chosen = set(res.syndromes)
+    image = syndrome_action(coset_weights(rep), shift)
+    assert {int(image[s]) for s in chosen} == chosen  # the union is invariant
+
+
+@pytest.mark.parametrize("n,d", [(8, 4), (9, 5)])
+def test_symmetric_search_with_the_trivial_group_matches_networkx(n, d):
+    # with the identity as the only permutation every orbit is one syndrome, and the search
+    # is the plain clique problem: its optimum is the clique number networkx computes
+    nx = pytest.importorskip("networkx")
+    rep = build_family("repetition", q=2, n=n).code
+    good = set(good_syndromes(coset_weights(rep), d).tolist())
+    g = nx.Graph()
+    g.add_nodes_from(range(1 << (n - 1)))
+    g.add_edges_from((a, b) for a in range(1 << (n - 1)) for b in range(a + 1, 1 << (n - 1))
+                     if (a ^ b) in good)
+    _, omega = nx.max_weight_clique(g, weight=None)
+    res = symmetric_coset_union_search(rep, d, [list(range(n))], time_limit=60)
+    assert res.optimal and len(res.syndromes) == omega
+
+
+def test_symmetric_search_rejects_bad_permutations():
+    rep = build_family("repetition", q=2, n=7).code
+    with pytest.raises(ParameterError, match="not a permutation"):
+        symmetric_coset_union_search(rep, 3, [[0, 0, 1, 2, 3, 4, 5]])
+    ham = LinearCode(np.array([[1, 1, 1, 0, 0, 0, 0], [0, 0, 0, 1, 1, 1, 1]], np.uint8), 2)
+    with pytest.raises(ParameterError, match="onto itself"):
+        symmetric_coset_union_search(ham, 3, [[(j + 1) % 7 for j in range(7)]])
 
 
 # ----------------------------------------------------------------------------- records
