@@ -469,19 +469,15 @@ def syndrome_action(weights: CosetWeights, permutation: Any) -> np.ndarray:
     """
     r, n = weights.r, weights.n
     p = [int(x) for x in permutation]
-    size = 1 << r
-    image = np.zeros(size, dtype=np.int64)
+    image = np.zeros(1, dtype=np.int64)
     for t in range(r):
         x = weights.leader(1 << t)
         y = 0
         for j in range(n):
             if (x >> j) & 1:
                 y |= 1 << p[j]
-        image[1 << t] = weights.syndrome(y)
-    for s in range(3, size):  # linearity: image(s) = image(s - lowest bit) + image(lowest bit)
-        low = s & -s
-        if low != s:
-            image[s] = image[s ^ low] ^ image[low]
+        # linearity: the syndromes with top bit t map to image(s - 2^t) + image(2^t)
+        image = np.concatenate([image, image ^ weights.syndrome(y)])
     return image
 
 
