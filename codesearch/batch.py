@@ -246,7 +246,10 @@ def _four_point_stage(task: CellTask, errors: list[tuple[str, str]]
         return None, task.four_point, (f"estimated {size.seconds:,.0f} s, above the cap of "
                                        f"{task.four_point:,.0f} s")
     try:
-        found = fourpoint.four_point_bound(p)
+        # the pair moment solves that also fit under the cap (none when only the plain
+        # solve does; the cell is then done for good all the same)
+        found = fourpoint.four_point_bound(
+            p, pair_solves=size.pair_solves_within(min(task.four_point, fourpoint.MAX_SECONDS)))
     except Exception as exc:  # a failing bound must not lose the cell's other work
         errors.append((FOUR_POINT_TASK, _one_line(exc)))
         return None, None, _one_line(exc)

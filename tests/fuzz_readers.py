@@ -209,22 +209,28 @@ def _read_manifest(path: str) -> None:
     check_bundle(path)
 
 
-def four_point_pass_certificate(n: int, d: int) -> dict:
+def four_point_pass_certificate(n: int, d: int, target: int | None = None) -> dict:
     """The certificate of one semidefinite pass of the four-point program of binary (n, d),
     d even (the solver keeps the Delsarte pass on small cells when it certifies the same
-    integer, so its certificates would not exercise the new block families)."""
+    integer, so its certificates would not exercise the new block families); with
+    ``target``, the pair moment blocks are in it (the claimed value is then
+    ``max(target - 1, floor(bound))``)."""
+    import math
+
     import numpy as np
 
     from codesearch.bounds import sdp
     from codesearch.bounds.fourpoint import _program
 
-    prog = _program(n, d)
+    prog = _program(n, d, target=target)
     cap = np.array([float(c) for c in prog.caps])
     sv = np.sqrt(np.array([float(s) for s in prog.shapes]) / prog.m0 / cap)
     res = sdp._certify(prog, sdp._solve_scaled(prog.data, prog.m0, sv, dict(prog.exps), None))
     assert res["certified"], res["reason"]
+    extra = {} if target is None else {
+        "target": target, "value": max(target - 1, math.floor(res["exact"]))}
     return json.loads(json.dumps(dict(res["certificate"], q=2, n=n, d=d, sdp_n=n, sdp_d=d,
-                                      even=True)))
+                                      even=True, **extra)))
 
 
 def build_readers() -> list[Reader]:

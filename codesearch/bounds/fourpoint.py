@@ -79,29 +79,46 @@ whatever the splits; the splits lose nothing because ``B`` is their direct sum.
 What is and is not in the program
 ---------------------------------
 It contains Schrijver's three-point program (his two block families, all his linear rows),
-so its value is never above the three-point bound; added are the families 2-4 above and the
-diagonal inequalities of every free 4-set. Gijswijt, Mittelmann and Schrijver also require the
-moment matrix indexed by all sets of at most two words (``D`` empty) to be PSD; that matrix
-is inhomogeneous in ``x`` (its corner entry is ``1 / y({0}) = 2^n / |C|``) and is not built
-here, so the value can be above theirs (measured: A(17,8) <= 38, A(18,8) <= 74, where
-data/published_binary.csv lists 37 and 72 from memory; benchmarks/results_fourpoint.md).
+so its value is never above the three-point bound; added are the families 2-4 above, the
+diagonal inequalities of every free 4-set and, on request (``target``), the moment matrix
+of all sets of at most two words (families 5 and 6 below).
 
-How that matrix could be added (not done; a plan for the next contributor). Only its rows
-for the empty set and the single words make it inhomogeneous; its principal part indexed
-by the pairs ``{u, u + a}`` is homogeneous in ``x`` and may be required PSD on its own.
-Write a pair as ``(u, a)`` (both ``(u, a)`` and ``(u + a, a)``: duplicated rows do not
-change positive semidefiniteness); the entry between ``(u, a)`` and ``(v, b)`` depends on
-``a``, ``b`` and ``c = u + v`` only (translation invariance), so a Fourier transform in
-``u`` splits the matrix into one block per character ``z`` in F_2^n, indexed by the ``a``
-with ``z . a = 0`` (the others vanish), with entries
-``sum_c (-1)^(z . c) x({0, a, c, c + b})``. The block of a weight-``w`` character is
-invariant under ``S_w x S_{n-w}``, the group of families 2-4, so the same tensor product
-of two Terwilliger algebras reduces it; its entries are character sums over ``c`` grouped
-by the weights of ``c`` on the eight cells cut out by ``z``, ``a``, ``b``, each term a
-4-set profile. The inhomogeneous rows meet only the block ``z = 0`` (its fully invariant
-part, a few rows); they can be handled for a fixed target size ``U`` by putting
-``2^n / U`` in the corner (a code of ``U`` words or more keeps the matrix PSD), one solve
-per size.
+The pair moment matrix (families 5 and 6)
+-----------------------------------------
+The matrix indexed by the sets ``S`` of at most two words with entries ``y(S u S')`` is
+``E_g[f f^T]`` with ``f_S = 1(g S in C)``, so it is PSD; divided by ``y({0}) = |C| / 2^n`` its
+entries are ``x(S u S')``, except the corner ``x(empty) = 2^n / |C|``, which is not linear in
+``x``. Write a pair or a single word as ``(u, a)``: the set ``{u, u + a}`` (``a = 0``: the word
+``u``; each pair appears twice, which does not change positive semidefiniteness). The entry
+between ``(u, a)`` and ``(v, b)`` is ``f(a, b, c) = x({0, a, c, c + b})``, ``c = u + v``
+(translate by ``u``), so the characters ``z`` of ``F_2^n`` block-diagonalise the part without
+the empty set: block ``z`` has entries ``F_z(a, b) = sum_c (-1)^(z.c) f(a, b, c)``, and it
+vanishes on the rows with ``z.a = 1`` (``f(a, b, c + a) = f(a, b, c)``). The row of the empty
+set has entries ``x({u, u + a}) = p(a)``, constant in ``u``, so it meets only ``z = 0``: with
+the row scaled by ``2^(-n/2)`` that block is ``[[1 / |C|, p^T], [p, F_0]]``. For a code of at
+least ``U`` words, ``[[1 / U, p^T], [p, F_0]]`` is then PSD too (the corner only grew), and
+scaling the first row by ``U`` makes it integral: family 6 is
+
+    [[U, U C(n, j) p_j], [U C(n, i) p_i, G_0(i, j)]]   (rows: the empty set, then weights i),
+
+``G_0`` the ``k = 0`` block below at ``w = 0`` (``beta`` at ``k = 0`` is exactly the sum over
+the words of weights ``i`` and ``j``). Every ``F_z`` with ``|z| = w`` is invariant under
+``S_w x S_{n-w}``, so the tensor-product reduction of families 2-4 applies: family 5 is, for
+each ``w`` and ``(k1, k2) != (0, 0)`` when ``w = 0``, the block
+
+    B[(i1,i2),(j1,j2)] = sum_{t1,t2} beta^(w)[i1,j1,k1,t1] beta^(n-w)[i2,j2,k2,t2] F_w(...),
+
+rows ``a = 0`` or of an allowed distance, with ``i1`` even (``z.a = 0``). ``F_w`` is a sum
+over ``c`` grouped by its numbers of ones ``T`` in the four cells cut out by ``a`` and ``b``
+(sizes ``S``, of which ``s1`` on the support of ``z``): the 4-set depends on ``T`` only, and
+the sign sum over the placements is a product of Krawtchouk values
+``K_T(s1)`` of length ``S`` (:func:`_split_krawtchouk`). The program then bounds only the codes
+of at least ``U`` words: its certificate proves ``A <= max(U - 1, floor(bound))``, and
+:func:`four_point_bound` tries the targets ``U`` in turn (:func:`_pair_refinement`).
+Real codes satisfy every block (``tests/test_fourpoint.py``); the gain measured so far is
+small (benchmarks/results_fourpoint.md), and the published four-point values at A(17,8)
+and A(18,8) (37, 72, from memory) are still not reached, so something of the published
+program is still missing here.
 
 Size, refusal and certificate
 -----------------------------
@@ -145,7 +162,7 @@ from codesearch.results import BoundResult
 __all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "four_point_bound",
            "four_point_data", "FourPointData", "canonical_profile", "profile_distances",
            "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS", "MAX_SECONDS",
-           "UNCOUNTED_N", "quad_cap", "solve_four_point"]
+           "UNCOUNTED_N", "quad_cap", "solve_four_point", "PAIR_SOLVES", "pair_moment_rows"]
 
 #: Memory allowed to one solve (this machine has 24 GB, shared).
 MEMORY_BYTES = 20 * 10**9
@@ -167,6 +184,8 @@ _SECONDS_AT, _TERMS_AT, _SECONDS_POWER = 361.0, 3.75e6, 1.8
 #: 6.9 GB) and A(22,6) (18.7 million terms, 13.5 GB) came in 37-40 % above the first fit;
 #: both runs' wall times (37 and 121 min) were within 20 % of the time model.
 _BASE_BYTES, _BYTES_PER_TERM = 3 * 10**8, 720
+#: Solves with the pair moment blocks (families 5, 6) after the plain four-point solve.
+PAIR_SOLVES = 3
 #: From this length on the program is refused without being counted: the blocks of family 4
 #: (whose rows do not depend on d) alone have 9.9 * 10^7 terms at n = 28 (counted), past
 #: :data:`MAX_BUILD_TERMS`, and more for longer codes.
@@ -368,6 +387,12 @@ class FourPointSize:
         return (self.peak_bytes <= MEMORY_BYTES and self.terms <= MAX_BUILD_TERMS
                 and self.seconds <= MAX_SECONDS)
 
+    def pair_solves_within(self, limit: float = MAX_SECONDS) -> int:
+        """How many of the :data:`PAIR_SOLVES` solves with the pair moment blocks fit in
+        ``limit`` seconds after the plain solve (each priced as one plain solve: measured
+        142 s against 241 s at A(17,8), see benchmarks/results_fourpoint.md)."""
+        return max(0, min(PAIR_SOLVES, int(limit // max(self.seconds, 1e-9)) - 1))
+
     def describe(self) -> str:
         return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} free variables "
                 f"({self.quads:,} on 4-sets), {self.blocks:,} blocks up to order "
@@ -477,7 +502,7 @@ def check_four_point_fits(params: Params) -> FourPointSize:
 
 @lru_cache(maxsize=8)
 def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
-                    families: tuple = (2, 3, 4)) -> FourPointData:
+                    families: tuple = (2, 3, 4), target: int | None = None) -> FourPointData:
     """Build the exact four-point program of binary ``(n, d)``.
 
     Parameters
@@ -488,6 +513,12 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
         Only codes with all distances even (valid for even ``d``).
     quad_rows : bool
         Add the diagonal inequalities of the 4-sets.
+    families : tuple
+        The block families 2..4 to build.
+    target : int, optional
+        Add the moment matrix of the sets of at most two words (families 5 and 6, see the
+        module notes) with the corner of a code of ``target`` words: the program then
+        bounds only codes of at least ``target`` words.
 
     Returns
     -------
@@ -576,6 +607,9 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
                         blocks.append((family, key, len(sub), const, coef))
                         rows_of[(family, key)] = tuple(sub)
 
+    if target is not None:
+        total_terms += _add_pair_moment_blocks(n, d, even, target, var, blocks, rows_of)
+
     collector = RowCollector()
     for label, cv, rhs in base.rows:
         collector.add(label, [(v, c) for v, c in cv.items()], rhs)
@@ -595,6 +629,126 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
     return FourPointData(n=n, d=d, even=even, triangles=tuple(base.triangles) + tuple(quads),
                          objective=objective, blocks=tuple(blocks),
                          rows=tuple(collector.rows), block_rows=rows_of, terms=total_terms)
+
+
+@lru_cache(maxsize=None)
+def _split_krawtchouk(s1: int, size: int, ones: int) -> int:
+    """``sum_g (-1)^g C(s1, g) C(size - s1, ones - g)``: the signed count of the ways to put
+    ``ones`` ones in a cell of ``size`` columns, ``s1`` of them on the support of the
+    character (the Krawtchouk polynomial ``K_ones(s1)`` of length ``size``)."""
+    return sum((-1) ** g * comb(s1, g) * comb(size - s1, ones - g)
+               for g in range(max(0, ones - (size - s1)), min(s1, ones) + 1))
+
+
+@lru_cache(maxsize=4096)
+def _pair_moment_sets(cells: tuple[int, int, int, int], d: int, even: bool) -> tuple:
+    """For words ``a``, ``b`` cutting the columns into cells of sizes ``cells`` =
+    ``(|a & b|, |a - b|, |b - a|, rest)``: every count ``T`` of ones of ``c`` per cell whose
+    set ``{0, a, c, c + b}`` has no forbidden distance, with the orbit key of that set."""
+    out = []
+    for ones in itertools.product(*(range(c + 1) for c in cells)):
+        t11, t10, t01, t00 = ones
+        # columns (0, a, c, c+b): (a,b,c) = (1,0,1) -> P0 alone, (1,0,0) -> P1 alone,
+        # (0,1,1) -> P2 alone, (0,1,0) -> P3 alone, (0,0,1) -> {P0,P1}|{P2,P3},
+        # (1,1,0) -> {P0,P2}|{P1,P3}, (1,1,1) -> {P0,P3}|{P1,P2}
+        prof = (t10, cells[1] - t10, t01, cells[2] - t01, t00, cells[0] - t11, t11)
+        key = _set_key(prof, (0, 1, 2, 3), d, even)
+        if key is not None:
+            out.append((ones, key))
+    return tuple(out)
+
+
+def pair_moment_rows(n: int, d: int, even: bool, w: int, k1: int, k2: int
+                     ) -> list[tuple[int, int]]:
+    """Rows ``(i1, i2)`` of block ``(k1, k2)`` of the character weight ``w`` in the moment
+    matrix of pairs (family 5): words ``a`` of weight 0 or an allowed distance with an even
+    number ``i1`` of ones on the character's support."""
+    rows = []
+    for i1 in range(k1, w - k1 + 1, 1):
+        if i1 % 2:
+            continue
+        for i2 in range(k2, n - w - k2 + 1):
+            if i1 + i2 == 0 or _allowed(i1 + i2, d, even):
+                rows.append((i1, i2))
+    return rows
+
+
+def _add_pair_moment_blocks(n: int, d: int, even: bool, target: int, var, blocks: list,
+                            rows_of: dict) -> int:
+    """Append the blocks of the moment matrix of the sets of at most two words (families 5
+    and 6, see the module notes) to ``blocks``; return the number of entries built."""
+    from codesearch.bounds.terwilliger import add_terms, beta
+
+    entries = 0
+    for w in range(n + 1):
+        memo: dict = {}
+
+        def fourier(i1, j1, t1, i2, j2, t2, w=w, memo=memo):
+            """``sum_c (-1)^(z.c) x({0, a, c, c + b})`` as ``[(variable, coefficient)]``."""
+            key = (i1, j1, t1, i2, j2, t2)
+            got = memo.get(key)
+            if got is None:
+                s1 = (t1, i1 - t1, j1 - t1, w - i1 - j1 + t1)
+                s2 = (t2, i2 - t2, j2 - t2, n - w - i2 - j2 + t2)
+                cells = tuple(a + b for a, b in zip(s1, s2))
+                acc: dict = {}
+                for ones, skey in _pair_moment_sets(cells, d, even):
+                    c = 1
+                    for m in range(4):
+                        c *= _split_krawtchouk(s1[m], cells[m], ones[m])
+                        if not c:
+                            break
+                    if c:
+                        v = var(skey)
+                        acc[v] = acc.get(v, 0) + c
+                got = memo[key] = [(v, c) for v, c in acc.items() if c]
+            return got
+
+        for k1 in range(w // 2 + 1):
+            for k2 in range((n - w) // 2 + 1):
+                rows = pair_moment_rows(n, d, even, w, k1, k2)
+                if not rows:
+                    continue
+                corner = w == 0 and k1 == 0 and k2 == 0
+                const: dict = {}
+                coef: dict = {}
+                shift = 1 if corner else 0
+                for r_, (i1, i2) in enumerate(rows):
+                    for s_ in range(r_, len(rows)):
+                        j1, j2 = rows[s_]
+                        c0 = 0
+                        cv: dict[int, int] = {}
+                        for t1 in range(max(0, i1 + j1 - w), min(i1, j1) + 1):
+                            b1 = beta(w, i1, j1, k1, t1)
+                            if not b1:
+                                continue
+                            for t2 in range(max(0, i2 + j2 - (n - w)), min(i2, j2) + 1):
+                                b2 = beta(n - w, i2, j2, k2, t2)
+                                if b2:
+                                    c0 += add_terms(cv, fourier(i1, j1, t1, i2, j2, t2),
+                                                    b1 * b2)
+                        entries += 1
+                        cv = {v: c for v, c in cv.items() if c}
+                        if c0:
+                            const[(r_ + shift, s_ + shift)] = c0
+                        if cv:
+                            coef[(r_ + shift, s_ + shift)] = cv
+                if corner:
+                    # the empty set: corner target, then target * C(n, i) * x(pair at i)
+                    const[(0, 0)] = target
+                    for s_, (_j1, j2) in enumerate(rows):
+                        pair = var(() if j2 == 0 else (j2, j2, 0))
+                        if pair == -1:
+                            const[(0, s_ + 1)] = target
+                        elif pair is not None:
+                            coef[(0, s_ + 1)] = {pair: target * comb(n, j2)}
+                    blocks.append((6, (0, 0, 0, 0, 0), len(rows) + 1, const, coef))
+                    rows_of[(6, (0, 0, 0, 0, 0))] = ((-1, -1),) + tuple(rows)
+                else:
+                    key = (w, k1, k2, 0, 0)
+                    blocks.append((5, key, len(rows), const, coef))
+                    rows_of[(5, key)] = tuple(rows)
+    return entries
 
 
 def _mirror_list(r: tuple[int, int], sign: int, i: int) -> list[tuple[tuple[int, int], int]]:
@@ -637,13 +791,14 @@ def _pow2(x: float) -> int:
     return int(round(math.log2(x)))
 
 
-def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3, 4)):
+def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3, 4),
+             target: int | None = None):
     """The solver's view of the program: the exact data, proven caps, the first scaling and
     the names written into the certificate (families 2-4 name their rows ``(i1, i2)``)."""
     from codesearch.bounds.sdp import SdpProgram
     from codesearch.bounds.terwilliger import shape_count, variable_cap
 
-    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families)
+    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families, target=target)
     radius = (d - 1) // 2
     m0 = 2.0**n / sum(comb(n, r) for r in range(radius + 1))
     caps, shapes = [], []
@@ -685,24 +840,35 @@ def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3,
 
 @lru_cache(maxsize=64)
 def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
-                     solver: str = "clarabel", quad_rows: bool = True) -> dict[str, Any]:
+                     solver: str = "clarabel", quad_rows: bool = True,
+                     target: int | None = None) -> dict[str, Any]:
     """Solve and certify the four-point program of binary ``(n, d)``, ``d`` even (see
     :func:`codesearch.bounds.sdp.solve_program`); the certificate is re-checked by the
     independent checker before returning (a disagreement raises
-    :class:`~codesearch.errors.VerificationError`)."""
+    :class:`~codesearch.errors.VerificationError`).
+
+    With ``target`` the moment matrix of the sets of at most two words is added with the
+    corner of a code of ``target`` words (families 5 and 6); the dual then bounds only the
+    codes of at least ``target`` words, so the value is ``max(target - 1, floor(bound))``
+    (the certificate carries the ``target``)."""
     from codesearch.bounds.sdp import solve_program
     from codesearch.errors import VerificationError
     from codesearch.verify import check_certificate
 
     t0 = time.perf_counter()
-    prog = _program(n, d, quad_rows=quad_rows)
+    prog = _program(n, d, quad_rows=quad_rows, target=target)
     build = time.perf_counter() - t0
     best = solve_program(prog, time_limit=time_limit, solver=solver)
     best["build_seconds"] = build
     best["seconds"] = time.perf_counter() - t0
+    best["target"] = target
+    if target is not None and best["certified"]:
+        best["value"] = max(target - 1, best["value"])
     if best["certificate"] is not None:
         best["certificate"].update({"q": 2, "n": n, "d": d, "sdp_n": n, "sdp_d": d,
                                     "even": True})
+        if target is not None:
+            best["certificate"].update({"target": target, "value": best["value"]})
         t1 = time.perf_counter()
         valid, bound, reason = check_certificate(best["certificate"])
         best["check_seconds"] = time.perf_counter() - t1
@@ -711,9 +877,66 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     return best
 
 
+def _pair_refinement(n: int, d: int, res: dict, solves: int, time_limit: float | None,
+                     solver: str, lower: int = 1) -> dict:
+    """Lower the certified value ``res["value"]`` with the pair moment blocks.
+
+    A solve with target ``U`` *excludes* ``U`` when its exact bound falls below ``U``: no
+    code has ``U`` words or more. Exclusion is monotone in ``U`` (a larger corner only
+    tightens the program), and a target at most the bound of a solve, or at most ``lower``
+    (the size of a known code), is never excluded. The search keeps ``lo`` (largest target
+    known not excluded) and ``hi`` (least target excluded, first ``value + 1``): it tries
+    ``hi - 1``, then the least target a feasible solve leaves possible (its bound + 1), else
+    the middle of ``lo..hi``, at most ``solves`` solves. Returns the result of the least
+    certified value (``res`` when none is less), its value ``hi - 1``."""
+    best = res
+    lo, hi = max(lower, 0), res["value"] + 1
+    target = hi - 1
+    for _ in range(solves):
+        if target <= lo:
+            break
+        got = solve_four_point(n, d, time_limit=time_limit, solver=solver, target=target)
+        if not got["certified"]:
+            break
+        bound = math.floor(got["exact"])
+        if bound >= target:
+            lo = max(lo, bound)  # not excluded, nor is anything up to the bound
+        else:
+            hi = target
+            if got["value"] < best["value"]:
+                best = got
+            if bound >= 0:
+                lo = max(lo, bound)  # the targets up to this bound stay possible
+        if hi - lo <= 1:
+            break
+        target = lo + 1 if bound >= 0 and bound < target and lo + 1 < hi else (lo + hi) // 2
+        if target >= hi:
+            target = hi - 1
+    return best
+
+
+def _known_size(n: int, d: int) -> int:
+    """Size of the largest code the construction library has for binary ``(n, d)`` (only
+    steers the targets of :func:`_pair_refinement`; no proof rests on it)."""
+    from codesearch.constructions.lookup import table
+
+    try:
+        found = table(2).best_at(n, d)
+    except Exception:  # a lookup failure only costs solves
+        return 1
+    return found.size if found is not None else 1
+
+
 def four_point_bound(params: Params, *, time_limit: float | None = None,
-                     solver: str | None = None) -> BoundResult | None:
+                     solver: str | None = None, pair_solves: int | None = None,
+                     lower: int | None = None) -> BoundResult | None:
     """The four-point bound on ``A(n, d)`` with an exact certificate.
+
+    After the four-point program itself, up to ``pair_solves`` (default
+    :data:`PAIR_SOLVES`, fewer when they would pass :data:`MAX_SECONDS`) solves with the pair
+    moment blocks added try to lower the value (:func:`_pair_refinement`; ``lower``, the size
+    of a known code, steers the targets and defaults to the construction library's); the
+    certificate of the least value is returned.
 
     Returns
     -------
@@ -725,6 +948,7 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     from codesearch.bounds.sdp import SOLVERS
 
     solver = (solver or "clarabel").lower()
+    pair_solves = PAIR_SOLVES if pair_solves is None else pair_solves
     if solver not in SOLVERS:
         raise ParameterError(f"unknown solver {solver!r}; choose from {', '.join(SOLVERS)}")
     if params.q != 2 or params.d < 3:
@@ -734,7 +958,11 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     except ParameterError:
         return None
     n, d = _program_cell(params)
+    pair_solves = min(pair_solves, four_point_size(n, d).pair_solves_within())
     res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
+    if res["certified"] and pair_solves:
+        known = _known_size(n, d) if lower is None else lower
+        res = _pair_refinement(n, d, res, pair_solves, time_limit, solver, known)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
     value = res["value"]
     if cert is not None:

@@ -163,20 +163,32 @@ _FAMILY_SETS = {
 
 
 def _read_pair_block(block: Any, j: int, n: int) -> tuple:
-    """Strictly read a block of family 2..4: ``i``, ``k1``, ``k2``, ``sign``, its ``rows``
-    (``[i1, i2]`` within the block's ranges) and its square ``matrix``."""
+    """Strictly read a block of family 2..6: ``i``, ``k1``, ``k2``, ``sign``, its ``rows``
+    (``[i1, i2]`` within the block's ranges; family 6 starts with the row ``[-1, -1]`` of the
+    empty set) and its square ``matrix``."""
     where = f"certificate: blocks[{j}]"
-    family = strict.get_int(block, "family", where, 2, 4)
-    i = strict.get_int(block, "i", where, 1, n)
-    k1 = strict.get_int(block, "k1", where, 0, i // 2)
-    k2 = strict.get_int(block, "k2", where, 0, (n - i) // 2)
-    sign = strict.get_int(block, "sign", where, -1, 1)
+    family = strict.get_int(block, "family", where, 2, 6)
+    i = strict.get_int(block, "i", where, 0 if family >= 5 else 1, 0 if family == 6 else n)
+    k1 = strict.get_int(block, "k1", where, 0, 0 if family == 6 else i // 2)
+    k2 = strict.get_int(block, "k2", where, 0, 0 if family == 6 else (n - i) // 2)
+    sign = strict.get_int(block, "sign", where, 0 if family >= 5 else -1,
+                          0 if family >= 5 else 1)
+    if family == 5 and i == k1 == k2 == 0:
+        raise InputError(f"{where}: the block i=0, k1=0, k2=0 of the pairs is family 6")
     rows = []
-    for r, row in enumerate(strict.get_list(block, "rows", where, (i + 1) * (n - i + 1))):
+    listed = strict.get_list(block, "rows", where, (i + 1) * (n - i + 1) + 1)
+    for r, row in enumerate(listed):
         if not isinstance(row, list) or len(row) != 2:
             raise InputError(f"{where}: rows[{r}] must be a list [i1, i2]")
+        if family == 6 and r == 0:
+            if row != [-1, -1]:
+                raise InputError(f"{where}: rows[0] of family 6 must be [-1, -1] (the empty set)")
+            rows.append((-1, -1))
+            continue
         rows.append((strict.integer(row[0], f"{where}: rows[{r}][0]", k1, i - k1),
                      strict.integer(row[1], f"{where}: rows[{r}][1]", k2, n - i - k2)))
+    if family == 6 and not rows:
+        raise InputError(f"{where}: family 6 needs the row [-1, -1] of the empty set")
     m = len(rows)
     mat = []
     for r, row in enumerate(strict.get_list(block, "matrix", where, m, length=m)):
@@ -186,10 +198,61 @@ def _read_pair_block(block: Any, j: int, n: int) -> tuple:
     return (family, i, k1, k2, sign), rows, mat
 
 
-def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict) -> str | None:
-    """Add ``<Z, F^T B F>`` of one block of family 2..4; the reason it is rejected, or None."""
+def _signed_placements(on: int, size: int, ones: int) -> int:
+    """Sum of ``(-1)^(ones placed among the first on columns)`` over the ways to place
+    ``ones`` ones in ``size`` columns."""
+    total = 0
+    for g in range(0, min(on, ones) + 1):
+        if ones - g <= size - on:
+            total += (-1) ** g * math.comb(on, g) * math.comb(size - on, ones - g)
+    return total
+
+
+def _pair_moment_entry(obj: _FourPointObjective, w: int, i1: int, j1: int, t1: int, i2: int,
+                       j2: int, t2: int, memo: dict) -> list:
+    """``sum_c (-1)^(z.c) x({0, a, c, c + b})`` for ``|z| = w``, ``a`` with ``i1`` ones on
+    the support of ``z`` and ``i2`` off it, ``b`` with ``j1, j2``, ``t1, t2`` in common with
+    ``a``; as ``[(key, integer coefficient)]``. The sum over ``c`` runs over its numbers of
+    ones in the four cells cut out by ``a`` and ``b``."""
+    mkey = ("pairs", w, i1, j1, t1, i2, j2, t2)
+    got = memo.get(mkey)
+    if got is not None:
+        return got
+    n = obj.n
+    # cells (bit of a, bit of b): sizes on the support of z and off it
+    on = {(1, 1): t1, (1, 0): i1 - t1, (0, 1): j1 - t1, (0, 0): w - i1 - j1 + t1}
+    off = {(1, 1): t2, (1, 0): i2 - t2, (0, 1): j2 - t2, (0, 0): n - w - i2 - j2 + t2}
+    cells = list(on)
+    terms: dict = {}
+    for ones in itertools.product(*(range(on[c] + off[c] + 1) for c in cells)):
+        weight = 1
+        for c, k in zip(cells, ones):
+            weight *= _signed_placements(on[c], on[c] + off[c], k)
+            if not weight:
+                break
+        if not weight:
+            continue
+        counts = [0] * 8
+        for (abit, bbit), k in zip(cells, ones):
+            size = on[(abit, bbit)] + off[(abit, bbit)]
+            for cbit, cnt in ((1, k), (0, size - k)):
+                # the words (0, a, c, c + b) of this column as a pattern (P0 = 0)
+                pattern = (abit << 1) | (cbit << 2) | ((cbit ^ bbit) << 3)
+                counts[pattern >> 1] += cnt
+        v = obj.set_key(tuple(counts), (0, 1, 2, 3))
+        if v is not None:
+            terms[v] = terms.get(v, 0) + weight
+    got = memo[mkey] = [(v, c) for v, c in terms.items() if c]
+    return got
+
+
+def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict,
+                    target: int | None = None) -> str | None:
+    """Add ``<Z, F^T B F>`` of one block of family 2..6; the reason it is rejected, or None."""
     n = obj.n
     (family, i, k1, k2, sign), rows, mat = block
+    if family == 6 and target is None:
+        return "a block of family 6 needs the certificate's target"
     name = f"block family={family}, i={i}, k1={k1}, k2={k2}, sign={sign}"
     if len(set(rows)) != len(rows):
         return f"repeated rows in {name}"
@@ -199,7 +262,7 @@ def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict) -> str |
     if not _tp_psd(mat):
         return f"{name} is not positive semidefinite"
     den = strict.common_denominator((z for row in mat for z in row), "certificate: block")
-    sets = _FAMILY_SETS[family]
+    sets = _FAMILY_SETS.get(family, ())
     acc: dict = {}
 
     def column(r: tuple[int, int]) -> list[tuple[tuple[int, int], int]]:
@@ -215,6 +278,30 @@ def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict) -> str |
             return got
         (i1, i2), (j1, j2) = a, b
         terms: dict = {}
+        if family == 6 and (a == (-1, -1) or b == (-1, -1)):
+            # the empty set: target in the corner, target * C(n, j) * x(pair at j) beside it
+            jw = a[1] if b == (-1, -1) else b[1]
+            if a == b:
+                got = memo[key] = [((0, 0, 0), target)]
+            elif jw == 0:
+                got = memo[key] = [((0, 0, 0), target)]
+            else:
+                v = obj.set_key(_config(n, 0, 0, 0, 0, jw, 0, 0), (0, 2))
+                got = memo[key] = [] if v is None else [(v, target * math.comb(n, jw))]
+            return got
+        if family >= 5:
+            for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
+                b1 = _tp_beta(i, i1, j1, k1, t1)
+                if not b1:
+                    continue
+                for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
+                    b2 = _tp_beta(n - i, i2, j2, k2, t2)
+                    if not b2:
+                        continue
+                    for v, c in _pair_moment_entry(obj, i, i1, j1, t1, i2, j2, t2, memo):
+                        terms[v] = terms.get(v, 0) + c * b1 * b2
+            got = memo[key] = [(v, c) for v, c in terms.items() if c]
+            return got
         for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
             b1 = _tp_beta(i, i1, j1, k1, t1)
             if not b1:
@@ -309,9 +396,12 @@ def _work(n: int, schrijver: list, pair: list, multipliers: list) -> int:
     steps = n ** 3
     for j, (_, weights, mat) in enumerate(schrijver):
         steps += len(weights) ** 2 * (n // 2 + 1) ** 2 + block_psd_work(mat, j)
+    cells = (n // 4 + 2) ** 4  # placements of c per entry of the pair moment blocks
     for j, ((family, i, k1, k2, sign), rows, mat) in enumerate(pair):
         m = len(rows)
         per = (i // 2 + 1) * ((n - i) // 2 + 1) * 4 * (4 if sign else 1)
+        if family >= 5:
+            per = (i // 2 + 1) * ((n - i) // 2 + 1) * cells
         steps += m * m * per + block_psd_work(mat, j)
     steps += sum(n * n if name == "delsarte" else 64 for name, _, _ in multipliers)
     return steps
@@ -345,11 +435,12 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
     if isinstance(cell, str):
         return False, None, cell
     n0, d0, n, d, even, claimed, exact_claim = cell
-    max_blocks = 2 * (n // 2 + 1) + 3 * (n + 1) * (n // 2 + 1) ** 2 * 4
+    target = (strict.get_int(cert, "target", _WHAT, 1, None) if "target" in cert else None)
+    max_blocks = 2 * (n // 2 + 1) + 4 * (n + 1) * (n // 2 + 1) ** 2 * 4
     schrijver, pair = [], []
     for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, max_blocks)):
         strict.mapping(b, f"certificate: blocks[{j}]")
-        family = strict.get_int(b, "family", f"certificate: blocks[{j}]", 0, 4)
+        family = strict.get_int(b, "family", f"certificate: blocks[{j}]", 0, 6)
         if family in (0, 1):
             schrijver.append(read_block(b, j, n, ("family", "k")))
         else:
@@ -365,8 +456,20 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
     for block in pair:
         if reason is not None:
             break
-        reason = _add_pair_block(obj, block, entry_memo)
+        reason = _add_pair_block(obj, block, entry_memo, target)
     if reason is not None:
         return False, None, reason
     total = _capped_total(obj, johnson_memo)
-    return compare_claims(total, exact_claim, claimed, f"four-point SDP bound A({n0},{d0})")
+    what = f"four-point SDP bound A({n0},{d0})"
+    if target is None:
+        return compare_claims(total, exact_claim, claimed, what)
+    # with a target the program holds only for codes of at least target words
+    proven = max(target - 1, math.floor(total))
+    ok, _, reason = compare_claims(total, exact_claim, math.floor(total), what)
+    if not ok:
+        return False, None, reason
+    if claimed != proven:
+        return False, None, (f"claimed {claimed} but the certificate proves {proven} (codes "
+                             f"of at least {target} words have at most {math.floor(total)})")
+    return True, claimed, (f"{what} <= {proven} (codes of at least {target} words: exact "
+                           f"{float(total):.6f})")
