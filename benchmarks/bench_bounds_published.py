@@ -1,7 +1,7 @@
 """How close the certified upper bounds come to the published tables.
 
 Run: ``PYTHONPATH=$PWD python benchmarks/bench_bounds_published.py [--binary] [--qary]
-[--nmax 28] [--qnmax 12]``.
+[--nmax 28] [--qnmax 12] [--certificates benchmarks/certificates]``.
 
 Binary part: every cell n = 4..nmax, d = 3..10 through the ``codesearch bounds --sdp``
 path (closed forms, Delsarte LPs, the three-point SDP, the integer refinements and the
@@ -39,14 +39,52 @@ def published(name: str) -> dict[Params, tuple[int | None, int | None, str]]:
     return out
 
 
-def binary(nmax: int) -> None:
+def stored_certificates(folder: str) -> dict[Params, list]:
+    """Every certificate file of ``folder`` (``*.json`` or ``*.json.gz``), re-checked in exact
+    arithmetic by ``codesearch.verify.check_certificate``: the valid ones as
+    BoundResults per cell (the four-point runs take minutes to hours, so they are solved
+    once by ``benchmarks/bench_fourpoint.py --target`` and re-checked here)."""
+    import gzip
+    import json
+
+    from codesearch.results import BoundResult
+    from codesearch.verify import check_certificate
+
+    out: dict[Params, list] = {}
+    for name in sorted(os.listdir(folder)):
+        if not name.endswith((".json", ".json.gz")):
+            continue
+        opener = gzip.open if name.endswith(".gz") else open
+        with opener(os.path.join(folder, name), "rt", encoding="utf-8") as fh:
+            cert = json.load(fh)
+        t0 = time.perf_counter()
+        ok, bound, reason = check_certificate(cert)
+        print(f"  certificate {name}: {'re-checked' if ok else 'REJECTED'}, {reason} "
+              f"({time.perf_counter() - t0:.0f} s)")
+        if ok:
+            p = Params(2, cert["n"], cert["d"])
+            out.setdefault(p, []).append(BoundResult(p, bound, cert["kind"], certificate=cert))
+    return out
+
+
+def binary(nmax: int, folder: str | None = None) -> None:
     from codesearch.bounds import all_bounds, grid_bounds
 
     pub = published("published_binary.csv")
     cells = [Params(2, n, d) for n in range(4, nmax + 1) for d in range(3, 11) if d <= n]
+    stored = stored_certificates(folder) if folder else {}
+
+    def cell_bounds(p: Params) -> dict:
+        found = all_bounds(p, sdp=True)
+        for extra in stored.get(p, []):
+            name = extra.method
+            if name not in found or extra.value < found[name].value:
+                found[name] = extra
+        return found
+
     t0 = time.perf_counter()
     cpu0 = time.process_time()
-    result = grid_bounds(cells, lambda p: all_bounds(p, sdp=True))
+    result = grid_bounds(cells, cell_bounds)
     wall, cpu = time.perf_counter() - t0, time.process_time() - cpu0
     target = [p for p in cells if p in pub and pub[p][1] is not None]
     reached, above, below, lp_reached, unsound = [], [], [], [], []
@@ -124,9 +162,12 @@ def main() -> None:
     ap.add_argument("--qary", action="store_true")
     ap.add_argument("--nmax", type=int, default=28)
     ap.add_argument("--qnmax", type=int, default=12)
+    ap.add_argument("--certificates", metavar="DIR",
+                    help="also offer the bounds of the certificates stored in DIR (each "
+                    "re-checked first), e.g. benchmarks/certificates")
     args = ap.parse_args()
     if args.binary or not args.qary:
-        binary(args.nmax)
+        binary(args.nmax, args.certificates)
     if args.qary or not args.binary:
         qary(args.qnmax)
 

@@ -1,0 +1,76 @@
+"""Exclude a size with the four-point program and its pair moment blocks; keep the certificate.
+
+Run: ``PYTHONPATH=$PWD python benchmarks/fourpoint_targets.py N,D,U [N,D,U ...]
+[--keep benchmarks/certificates]``.
+
+For each cell (even ``D``) the four-point program with the moment matrix of word pairs and
+the corner of a code of ``U`` words (:func:`codesearch.bounds.fourpoint.solve_four_point`
+with ``target=U``) is solved in its own process under ``/usr/bin/time -v`` (wall time, CPU
+time, peak memory of the whole run: build, numerical passes, exact rounding and the
+independent re-check). When the certified bound falls below ``U`` the size ``U`` is
+excluded, ``A(N, D) <= U - 1``. With ``--keep`` the certificate is written gzipped to
+``DIR/fourpoint_N_D.json.gz``, where ``bench_bounds_published.py --certificates DIR``
+re-checks it and uses its bound (the solves take minutes to hours; the re-check seconds to
+minutes). One markdown row per cell is printed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import pathlib
+import re
+import subprocess
+import sys
+
+ROOT = pathlib.Path(__file__).resolve().parent.parent
+
+_CHILD = """
+import gzip, json, sys
+from codesearch.bounds.fourpoint import solve_four_point
+n, d, target, keep = int(sys.argv[1]), int(sys.argv[2]), int(sys.argv[3]), sys.argv[4]
+res = solve_four_point(n, d, target=target)
+if keep and res["certificate"] is not None and res["value"] < target:
+    with gzip.open(f"{keep}/fourpoint_{n}_{d}.json.gz", "wt", encoding="utf-8") as fh:
+        json.dump(res["certificate"], fh)
+print(json.dumps({"value": res["value"], "exact": res["exact_float"],
+                  "float": res["float_value"], "certified": res["certified"],
+                  "build_s": res["build_seconds"], "check_s": res.get("check_seconds")}))
+"""
+
+
+def run(n: int, d: int, target: int, keep: str) -> str:
+    proc = subprocess.run(["/usr/bin/time", "-v", sys.executable, "-c", _CHILD, str(n), str(d),
+                           str(target), keep], capture_output=True, text=True, cwd=ROOT,
+                          env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"})
+    if proc.returncode != 0:
+        raise RuntimeError(proc.stderr[-2000:])
+    out = json.loads(proc.stdout.strip().splitlines()[-1])
+    rss = int(re.search(r"Maximum resident set size \(kbytes\): (\d+)", proc.stderr).group(1))
+    wall = re.search(r"Elapsed \(wall clock\) time \(h:mm:ss or m:ss\): ([\d:.]+)", proc.stderr)
+    parts = [float(p) for p in wall.group(1).split(":")]
+    wall_s = sum(p * 60 ** k for k, p in enumerate(reversed(parts)))
+    cpu = sum(float(re.search(rf"{k} time \(seconds\): ([\d.]+)", proc.stderr).group(1))
+              for k in ("User", "System"))
+    verdict = (f"excluded: A({n},{d}) <= {target - 1}" if out["value"] < target
+               else "not excluded")
+    return (f"| A({n},{d}) | {target} | {out['exact']:.4f} | {verdict} | {wall_s:.0f} "
+            f"| {cpu:.0f} | {rss / 1024:.0f} | {out['check_s'] or 0:.0f} |")
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("cells", nargs="+", help="N,D,U triples (even D)")
+    ap.add_argument("--keep", default="", metavar="DIR",
+                    help="write the certificates of excluded sizes to DIR")
+    args = ap.parse_args()
+    print("| cell | target U | exact bound | verdict | wall s | CPU s | peak MB | check s |\n"
+          "|---|---|---|---|---|---|---|---|")
+    for cell in args.cells:
+        n, d, target = (int(v) for v in cell.split(","))
+        print(run(n, d, target, str(pathlib.Path(args.keep).resolve()) if args.keep else ""),
+              flush=True)
+
+
+if __name__ == "__main__":
+    main()
