@@ -246,8 +246,8 @@ def _four_point_stage(task: CellTask, errors: list[tuple[str, str]]
         return None, task.four_point, (f"estimated {size.seconds:,.0f} s, above the cap of "
                                        f"{task.four_point:,.0f} s")
     try:
-        # the pair moment solves that also fit under the cap (none when only the plain
-        # solve does; the cell is then done for good all the same)
+        # as many solves with the pair moment blocks as fit under the cap (at least one:
+        # the plain estimate fits)
         found = fourpoint.four_point_bound(
             p, pair_solves=size.pair_solves_within(min(task.four_point, fourpoint.MAX_SECONDS)))
     except Exception as exc:  # a failing bound must not lose the cell's other work

@@ -218,8 +218,8 @@ def _add_bounds(sub: argparse._SubParsersAction) -> None:
                    "grid FILE must contain {n} and {d}; re-check with 'codesearch check FILE'")
     p.add_argument("--four-point", action="store_true",
                    help="also the four-point SDP bound (binary, d >= 3; contains the three-point "
-                   "program; minutes per cell from n = 17), then up to three solves with the "
-                   "moment matrix of word pairs that exclude sizes one target at a time. A cell "
+                   "program; minutes per cell from n = 17): up to three solves with the moment "
+                   "matrix of word pairs, each trying to exclude a target size. A cell "
                    "whose program would not fit this machine is refused with its size before "
                    "anything is solved")
     p.add_argument("--no-relations", action="store_true",

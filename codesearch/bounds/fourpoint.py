@@ -389,9 +389,9 @@ class FourPointSize:
 
     def pair_solves_within(self, limit: float = MAX_SECONDS) -> int:
         """How many of the :data:`PAIR_SOLVES` solves with the pair moment blocks fit in
-        ``limit`` seconds after the plain solve (each priced as one plain solve: measured
-        142 s against 241 s at A(17,8), see benchmarks/results_fourpoint.md)."""
-        return max(0, min(PAIR_SOLVES, int(limit // max(self.seconds, 1e-9)) - 1))
+        ``limit`` seconds (each priced as one plain solve: measured 587 s against 584 s at
+        A(19,8) and 1439 s against 1373 s at A(20,8), benchmarks/results_fourpoint.md)."""
+        return max(0, min(PAIR_SOLVES, int(limit // max(self.seconds, 1e-9))))
 
     def describe(self) -> str:
         return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} free variables "
@@ -877,41 +877,38 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     return best
 
 
-def _pair_refinement(n: int, d: int, res: dict, solves: int, time_limit: float | None,
-                     solver: str, lower: int = 1) -> dict:
-    """Lower the certified value ``res["value"]`` with the pair moment blocks.
+def _pair_refinement(n: int, d: int, solves: int, time_limit: float | None, solver: str,
+                     lower: int = 1) -> dict | None:
+    """The least certified value of up to ``solves`` solves with the pair moment blocks.
 
-    A solve with target ``U`` *excludes* ``U`` when its exact bound falls below ``U``: no
-    code has ``U`` words or more. Exclusion is monotone in ``U`` (a larger corner only
-    tightens the program), and a target at most the bound of a solve, or at most ``lower``
-    (the size of a known code), is never excluded. The search keeps ``lo`` (largest target
-    known not excluded) and ``hi`` (least target excluded, first ``value + 1``): it tries
-    ``hi - 1``, then the least target a feasible solve leaves possible (its bound + 1), else
-    the middle of ``lo..hi``, at most ``solves`` solves. Returns the result of the least
-    certified value (``res`` when none is less), its value ``hi - 1``."""
-    best = res
-    lo, hi = max(lower, 0), res["value"] + 1
-    target = hi - 1
+    A solve with target ``U`` certifies ``A <= max(U - 1, floor(bound))``; it *excludes*
+    ``U`` when its bound falls below ``U`` (no code has ``U`` words or more). The program only
+    tightens as ``U`` grows, so exclusion is monotone in ``U``: the least excluded target
+    ``U*`` gives the best value ``U* - 1``. The search keeps ``lo`` (a target not excluded,
+    first the size ``lower`` of a known code) and ``hi`` (a target excluded, or one above a
+    solve's bound, whose value that solve already certifies), and tries the upper middle of
+    ``lo..hi``; the first target is ``lower + 1`` (one solve settles the cell when the known
+    code is optimal). ``lo`` and ``hi`` only steer the search: the value returned is the one
+    its certificate proves. None when no solve was certified."""
+    best = None
+    lo, hi = max(lower, 0), None
+    target = lo + 1
     for _ in range(solves):
-        if target <= lo:
-            break
         got = solve_four_point(n, d, time_limit=time_limit, solver=solver, target=target)
         if not got["certified"]:
             break
+        if best is None or got["value"] < best["value"]:
+            best = got
         bound = math.floor(got["exact"])
-        if bound >= target:
-            lo = max(lo, bound)  # not excluded, nor is anything up to the bound
-        else:
+        if bound >= target:  # not excluded; the value floor(bound) is certified
+            lo = target
+            hi = bound + 1 if hi is None else min(hi, bound + 1)
+        else:  # excluded, and by monotonicity nothing at or below the bound is
             hi = target
-            if got["value"] < best["value"]:
-                best = got
-            if bound >= 0:
-                lo = max(lo, bound)  # the targets up to this bound stay possible
+            lo = max(lo, bound)
         if hi - lo <= 1:
             break
-        target = lo + 1 if bound >= 0 and bound < target and lo + 1 < hi else (lo + hi) // 2
-        if target >= hi:
-            target = hi - 1
+        target = (lo + hi + 1) // 2
     return best
 
 
@@ -932,11 +929,11 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
                      lower: int | None = None) -> BoundResult | None:
     """The four-point bound on ``A(n, d)`` with an exact certificate.
 
-    After the four-point program itself, up to ``pair_solves`` (default
-    :data:`PAIR_SOLVES`, fewer when they would pass :data:`MAX_SECONDS`) solves with the pair
-    moment blocks added try to lower the value (:func:`_pair_refinement`; ``lower``, the size
-    of a known code, steers the targets and defaults to the construction library's); the
-    certificate of the least value is returned.
+    Up to ``pair_solves`` (default :data:`PAIR_SOLVES`, fewer when they would pass
+    :data:`MAX_SECONDS`) solves of the program with the pair moment blocks and a target size
+    (:func:`_pair_refinement`; ``lower``, the size of a known code, steers the targets and
+    defaults to the construction library's); the certificate of the least value is
+    returned. With ``pair_solves=0``, or when none is certified, the plain program.
 
     Returns
     -------
@@ -959,10 +956,12 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
         return None
     n, d = _program_cell(params)
     pair_solves = min(pair_solves, four_point_size(n, d).pair_solves_within())
-    res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
-    if res["certified"] and pair_solves:
+    res = None
+    if pair_solves:
         known = _known_size(n, d) if lower is None else lower
-        res = _pair_refinement(n, d, res, pair_solves, time_limit, solver, known)
+        res = _pair_refinement(n, d, pair_solves, time_limit, solver, known)
+    if res is None:  # no pair solve asked for or certified: the plain program
+        res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
     value = res["value"]
     if cert is not None:
