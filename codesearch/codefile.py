@@ -461,10 +461,33 @@ def read_certificate(path: str) -> dict[str, Any] | None:
     """
     from codesearch.verify.strict import MAX_CERTIFICATE_BYTES
 
-    if not _read_head(path).lstrip().startswith(b"{"):
+    head = _read_head(path)
+    if head.startswith(b"\x1f\x8b"):  # gzip: long certificates are kept compressed
+        obj = parse_json_text(_decode(_gunzip(path, MAX_CERTIFICATE_BYTES), path), path)
+        if not (isinstance(obj, dict) and "kind" in obj):
+            raise InputError(f"{path}: a gzipped file that is not a certificate")
+        return obj
+    if not head.lstrip().startswith(b"{"):
         return None
     obj = read_json(path, MAX_CERTIFICATE_BYTES)
     return obj if isinstance(obj, dict) and "kind" in obj else None
+
+
+def _gunzip(path: str, max_bytes: int) -> bytes:
+    """The decompressed bytes of a gzip file, refused once they pass ``max_bytes``."""
+    import gzip
+    import zlib
+
+    _read_head(path)
+    try:
+        with gzip.open(path, "rb") as fh:
+            data = fh.read(max_bytes + 1)
+    except (OSError, EOFError, zlib.error) as exc:
+        raise InputError(f"{path}: not a readable gzip file ({exc})") from None
+    if len(data) > max_bytes:
+        raise InputError(f"{path}: more than {max_bytes} bytes once decompressed, past the "
+                         f"cap for a certificate")
+    return data
 
 
 def file_sha256(path: str) -> str:
