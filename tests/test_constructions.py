@@ -372,7 +372,8 @@ def test_orbit_codes_meet_the_published_values(key, q, n, d, size):
 #: orbit records short of the published lower value: (n, size, the library's best at (n, 9)
 #: before them, published lower value of A(n,9) in data/published_binary.csv, from memory,
 #: marked uncertain there)
-_ORBITS_SHORT = {"c21-23": (23, 106, 78, 136), "f7-24": (24, 155, 128, 192)}
+_ORBITS_SHORT = {"c21-23": (23, 106, 78, 136), "f7-24": (24, 155, 128, 192),
+                 "r7-24": (24, 162, 155, 192), "r7-25": (25, 260, 256, 384)}
 
 
 @pytest.mark.parametrize("key", sorted(_ORBITS_SHORT))
@@ -410,7 +411,8 @@ def test_orbit_records_rerun(key):
     options = dict(rec.found_by)
     method = options.pop("method")
     options.setdefault("time_limit", 600)
-    r = search(Params(2, rec.n, rec.d), method, max_words=1 << 24, **options)
+    options.setdefault("max_words", 1 << 24)
+    r = search(Params(2, rec.n, rec.d), method, **options)
     assert r.size == rec.size
     if "size" not in options:
         assert r.settings["invariant_optimal"]
