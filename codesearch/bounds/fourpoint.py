@@ -115,10 +115,12 @@ the sign sum over the placements is a product of Krawtchouk values
 ``K_T(s1)`` of length ``S`` (:func:`_split_krawtchouk`). The program then bounds only the codes
 of at least ``U`` words: its certificate proves ``A <= max(U - 1, floor(bound))``, and
 :func:`four_point_bound` tries the targets ``U`` in turn (:func:`_pair_refinement`).
-Real codes satisfy every block (``tests/test_fourpoint.py``); the gain measured so far is
-small (benchmarks/results_fourpoint.md), and the published four-point values at A(17,8)
-and A(18,8) (37, 72, from memory) are still not reached, so something of the published
-program is still missing here.
+Real codes satisfy every block, linear and nonlinear ones (``tests/test_fourpoint.py``).
+Measured (benchmarks/results_fourpoint.md): the targets 136 at A(19,8) and 257 at A(20,8)
+are excluded (the program is infeasible there), so A(19,8) <= 135 and A(20,8) <= 256, the
+published values; at A(17,8) and A(18,8) the values drop from 38.76 and 74.79 to 38.21 and
+73.02, above the published 37 and 72 (from memory), and at distance 6 the solves take
+several times longer than the plain program (A(18,6) not finished in 40 minutes).
 
 Size, refusal and certificate
 -----------------------------
@@ -387,11 +389,18 @@ class FourPointSize:
         return (self.peak_bytes <= MEMORY_BYTES and self.terms <= MAX_BUILD_TERMS
                 and self.seconds <= MAX_SECONDS)
 
+    @property
+    def pair_seconds(self) -> float:
+        """Estimated wall time of one solve with the pair moment blocks: about one plain
+        solve for ``d >= 8`` (measured 587 s against 584 s at A(19,8), 1439 s against
+        1373 s at A(20,8)), six for smaller ``d`` (A(18,6): not finished after 40 min
+        against 10 min plain; benchmarks/results_fourpoint.md)."""
+        return self.seconds * (1.0 if self.d >= 8 else 6.0)
+
     def pair_solves_within(self, limit: float = MAX_SECONDS) -> int:
         """How many of the :data:`PAIR_SOLVES` solves with the pair moment blocks fit in
-        ``limit`` seconds (each priced as one plain solve: measured 587 s against 584 s at
-        A(19,8) and 1439 s against 1373 s at A(20,8), benchmarks/results_fourpoint.md)."""
-        return max(0, min(PAIR_SOLVES, int(limit // max(self.seconds, 1e-9))))
+        ``limit`` seconds (:attr:`pair_seconds` each)."""
+        return max(0, min(PAIR_SOLVES, int(limit // max(self.pair_seconds, 1e-9))))
 
     def describe(self) -> str:
         return (f"four-point SDP for A({self.n},{self.d}): {self.variables:,} free variables "
