@@ -133,21 +133,30 @@ def test_codes_satisfy_every_constraint(builder, d):
     free = set(data.triangles)
     assert {k for k, v in x.items() if v} <= free  # no nonzero frequency was left out
     y = [x.get(key, Fraction(0)) for key in data.triangles]
-    assert 1 + sum(c * y[v] for v, c in enumerate(data.objective)) == code.size
+    _assert_feasible(data, y, code.size)
+    assert {f for f, *_ in data.blocks} == {0, 1, 2, 3, 4, 5, 6}
+
+
+def _block_matrix(size: int, const: dict, coef: dict, yf: np.ndarray) -> np.ndarray:
+    """A block of the program evaluated at the (float) variables ``yf``."""
+    mat = np.zeros((size, size))
+    for (r, s) in set(const) | set(coef):
+        e = const.get((r, s), 0) + sum(c * yf[v] for v, c in coef.get((r, s), {}).items())
+        mat[r, s] = mat[s, r] = e
+    return mat
+
+
+def _assert_feasible(data, y: list, size: int) -> None:
+    """The exact variables ``y`` of a code of ``size`` words meet every linear row exactly,
+    every PSD block numerically, and the objective is the size."""
+    assert 1 + sum(c * y[v] for v, c in enumerate(data.objective)) == size
     for label, cv, rhs in data.rows:
         assert sum(c * y[v] for v, c in cv.items()) <= rhs, label
     yf = np.array([float(v) for v in y])
-    new = 0
-    for family, key, size, const, coef in data.blocks:
-        mat = np.zeros((size, size))
-        for (r, s) in set(const) | set(coef):
-            e = const.get((r, s), 0) + sum(c * yf[v] for v, c in coef.get((r, s), {}).items())
-            mat[r, s] = mat[s, r] = e
+    for family, key, order, const, coef in data.blocks:
+        mat = _block_matrix(order, const, coef, yf)
         top = max(1.0, float(np.abs(mat).max()))
         assert np.linalg.eigvalsh(mat).min() >= -1e-9 * top, (family, key)
-        new += family >= 2
-    assert new > 0
-    assert {f for f, *_ in data.blocks} == {0, 1, 2, 3, 4, 5, 6}
 
 
 def _frequencies_any(words: list[int], n: int) -> dict:
@@ -200,17 +209,7 @@ def test_nonlinear_optimal_codes_satisfy_every_constraint(n, d):
     data = four_point_data(n, d, True, target=code.size)
     assert {k for k, v in x.items() if v} <= set(data.triangles)
     y = [x.get(key, Fraction(0)) for key in data.triangles]
-    assert 1 + sum(c * y[v] for v, c in enumerate(data.objective)) == code.size
-    for label, cv, rhs in data.rows:
-        assert sum(c * y[v] for v, c in cv.items()) <= rhs, label
-    yf = np.array([float(v) for v in y])
-    for family, key, size, const, coef in data.blocks:
-        mat = np.zeros((size, size))
-        for (r, s) in set(const) | set(coef):
-            e = const.get((r, s), 0) + sum(c * yf[v] for v, c in coef.get((r, s), {}).items())
-            mat[r, s] = mat[s, r] = e
-        top = max(1.0, float(np.abs(mat).max()))
-        assert np.linalg.eigvalsh(mat).min() >= -1e-9 * top, (family, key)
+    _assert_feasible(data, y, code.size)
 
 
 def linear_words(words: list[int]) -> bool:
@@ -230,10 +229,7 @@ def test_pair_moment_corner_excludes_larger_codes():
         data = four_point_data(8, 4, True, target=target)
         yf = np.array([float(x.get(key, 0)) for key in data.triangles])
         (size, const, coef), = [b[2:] for b in data.blocks if b[0] == 6]
-        mat = np.zeros((size, size))
-        for (r, s) in set(const) | set(coef):
-            e = const.get((r, s), 0) + sum(c * yf[v] for v, c in coef.get((r, s), {}).items())
-            mat[r, s] = mat[s, r] = e
+        mat = _block_matrix(size, const, coef, yf)
         least[target] = np.linalg.eigvalsh(mat).min() / np.abs(mat).max()
     assert least[16] >= -1e-12 and least[17] < -1e-5
 

@@ -533,8 +533,7 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
     -------
     FourPointData
     """
-    from codesearch.bounds.terwilliger import (RowCollector, add_terms, beta,
-                                               three_point_data)
+    from codesearch.bounds.terwilliger import RowCollector, three_point_data
 
     base = three_point_data(n, d, even)
     tri_index = {tri: v for v, tri in enumerate(base.triangles)}
@@ -581,20 +580,7 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
                     def full_entry(r, s, i=i, k1=k1, k2=k2, entry=entry, xterms=xterms):
                         if (r, s) in entry:
                             return entry[(r, s)]
-                        (i1, i2), (j1, j2) = r, s
-                        c0 = 0
-                        cv: dict[int, int] = {}
-                        count = 0
-                        for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
-                            b1 = beta(i, i1, j1, k1, t1)
-                            if not b1:
-                                continue
-                            for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
-                                b2 = beta(n - i, i2, j2, k2, t2)
-                                if not b2:
-                                    continue
-                                count += 1
-                                c0 += add_terms(cv, xterms(i1, j1, t1, i2, j2, t2), b1 * b2)
+                        c0, cv = _reduced_entry(n, i, k1, k2, r, s, xterms)
                         entry[(r, s)] = entry[(s, r)] = (c0, cv)
                         return c0, cv
 
@@ -638,6 +624,28 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
     return FourPointData(n=n, d=d, even=even, triangles=tuple(base.triangles) + tuple(quads),
                          objective=objective, blocks=tuple(blocks),
                          rows=tuple(collector.rows), block_rows=rows_of, terms=total_terms)
+
+
+def _reduced_entry(n: int, i: int, k1: int, k2: int, r: tuple[int, int], s: tuple[int, int],
+                   terms) -> tuple[int, dict[int, int]]:
+    """Entry ``(r, s)`` of block ``(k1, k2)`` of the tensor-product reduction for a support of
+    size ``i``: ``sum_{t1,t2} beta^(i)[i1,j1,k1,t1] beta^(n-i)[i2,j2,k2,t2] N(...)`` with
+    ``N`` given by ``terms(i1, j1, t1, i2, j2, t2)`` as ``[(variable, coefficient)]``;
+    returns the constant part and the coefficients."""
+    from codesearch.bounds.terwilliger import add_terms, beta
+
+    (i1, i2), (j1, j2) = r, s
+    c0 = 0
+    cv: dict[int, int] = {}
+    for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
+        b1 = beta(i, i1, j1, k1, t1)
+        if not b1:
+            continue
+        for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
+            b2 = beta(n - i, i2, j2, k2, t2)
+            if b2:
+                c0 += add_terms(cv, terms(i1, j1, t1, i2, j2, t2), b1 * b2)
+    return c0, cv
 
 
 @lru_cache(maxsize=None)
@@ -686,8 +694,6 @@ def _add_pair_moment_blocks(n: int, d: int, even: bool, target: int, var, blocks
                             rows_of: dict) -> int:
     """Append the blocks of the moment matrix of the sets of at most two words (families 5
     and 6, see the module notes) to ``blocks``; return the number of entries built."""
-    from codesearch.bounds.terwilliger import add_terms, beta
-
     entries = 0
     for w in range(n + 1):
         memo: dict = {}
@@ -724,18 +730,7 @@ def _add_pair_moment_blocks(n: int, d: int, even: bool, target: int, var, blocks
                 shift = 1 if corner else 0
                 for r_, (i1, i2) in enumerate(rows):
                     for s_ in range(r_, len(rows)):
-                        j1, j2 = rows[s_]
-                        c0 = 0
-                        cv: dict[int, int] = {}
-                        for t1 in range(max(0, i1 + j1 - w), min(i1, j1) + 1):
-                            b1 = beta(w, i1, j1, k1, t1)
-                            if not b1:
-                                continue
-                            for t2 in range(max(0, i2 + j2 - (n - w)), min(i2, j2) + 1):
-                                b2 = beta(n - w, i2, j2, k2, t2)
-                                if b2:
-                                    c0 += add_terms(cv, fourier(i1, j1, t1, i2, j2, t2),
-                                                    b1 * b2)
+                        c0, cv = _reduced_entry(n, w, k1, k2, (i1, i2), rows[s_], fourier)
                         entries += 1
                         cv = {v: c for v, c in cv.items() if c}
                         if c0:

@@ -289,19 +289,6 @@ def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict,
                 v = obj.set_key(_config(n, 0, 0, 0, 0, jw, 0, 0), (0, 2))
                 got = memo[key] = [] if v is None else [(v, target * math.comb(n, jw))]
             return got
-        if family >= 5:
-            for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
-                b1 = _tp_beta(i, i1, j1, k1, t1)
-                if not b1:
-                    continue
-                for t2 in range(max(0, i2 + j2 - (n - i)), min(i2, j2) + 1):
-                    b2 = _tp_beta(n - i, i2, j2, k2, t2)
-                    if not b2:
-                        continue
-                    for v, c in _pair_moment_entry(obj, i, i1, j1, t1, i2, j2, t2, memo):
-                        terms[v] = terms.get(v, 0) + c * b1 * b2
-            got = memo[key] = [(v, c) for v, c in terms.items() if c]
-            return got
         for t1 in range(max(0, i1 + j1 - i), min(i1, j1) + 1):
             b1 = _tp_beta(i, i1, j1, k1, t1)
             if not b1:
@@ -310,11 +297,14 @@ def _add_pair_block(obj: _FourPointObjective, block: tuple, memo: dict,
                 b2 = _tp_beta(n - i, i2, j2, k2, t2)
                 if not b2:
                     continue
-                counts = _config(n, i, i1, j1, t1, i2, j2, t2)
-                for pts, sgn in sets:
-                    v = obj.set_key(counts, pts)
+                if family >= 5:  # the pair moment entry F_w(a, b)
+                    parts = _pair_moment_entry(obj, i, i1, j1, t1, i2, j2, t2, memo)
+                else:  # the signed sets of the family at the words (0, w, u, v)
+                    counts = _config(n, i, i1, j1, t1, i2, j2, t2)
+                    parts = [(obj.set_key(counts, pts), sgn) for pts, sgn in sets]
+                for v, c in parts:
                     if v is not None:
-                        terms[v] = terms.get(v, 0) + sgn * b1 * b2
+                        terms[v] = terms.get(v, 0) + c * b1 * b2
         got = memo[key] = [(v, c) for v, c in terms.items() if c]
         return got
 
