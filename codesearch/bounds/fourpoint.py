@@ -112,7 +112,7 @@ rows ``a = 0`` or of an allowed distance, with ``i1`` even (``z.a = 0``). ``F_w`
 over ``c`` grouped by its numbers of ones ``T`` in the four cells cut out by ``a`` and ``b``
 (sizes ``S``, of which ``s1`` on the support of ``z``): the 4-set depends on ``T`` only, and
 the sign sum over the placements is a product of Krawtchouk values
-``K_T(s1)`` of length ``S`` (:func:`_split_krawtchouk`). The program then bounds only the codes
+``K_T(s1)`` of length ``S`` (:func:`codesearch.bounds.krawtchouk.krawtchouk`). The program then bounds only the codes
 of at least ``U`` words: its certificate proves ``A <= max(U - 1, floor(bound))``, and
 :func:`four_point_bound` tries the targets ``U`` in turn (:func:`_pair_refinement`).
 Real codes satisfy every block, linear and nonlinear ones (``tests/test_fourpoint.py``).
@@ -648,15 +648,6 @@ def _reduced_entry(n: int, i: int, k1: int, k2: int, r: tuple[int, int], s: tupl
     return c0, cv
 
 
-@lru_cache(maxsize=None)
-def _split_krawtchouk(s1: int, size: int, ones: int) -> int:
-    """``sum_g (-1)^g C(s1, g) C(size - s1, ones - g)``: the signed count of the ways to put
-    ``ones`` ones in a cell of ``size`` columns, ``s1`` of them on the support of the
-    character (the Krawtchouk polynomial ``K_ones(s1)`` of length ``size``)."""
-    return sum((-1) ** g * comb(s1, g) * comb(size - s1, ones - g)
-               for g in range(max(0, ones - (size - s1)), min(s1, ones) + 1))
-
-
 @lru_cache(maxsize=4096)
 def _pair_moment_sets(cells: tuple[int, int, int, int], d: int, even: bool) -> tuple:
     """For words ``a``, ``b`` cutting the columns into cells of sizes ``cells`` =
@@ -681,9 +672,7 @@ def pair_moment_rows(n: int, d: int, even: bool, w: int, k1: int, k2: int
     matrix of pairs (family 5): words ``a`` of weight 0 or an allowed distance with an even
     number ``i1`` of ones on the character's support."""
     rows = []
-    for i1 in range(k1, w - k1 + 1, 1):
-        if i1 % 2:
-            continue
+    for i1 in range(k1 + k1 % 2, w - k1 + 1, 2):
         for i2 in range(k2, n - w - k2 + 1):
             if i1 + i2 == 0 or _allowed(i1 + i2, d, even):
                 rows.append((i1, i2))
@@ -694,6 +683,8 @@ def _add_pair_moment_blocks(n: int, d: int, even: bool, target: int, var, blocks
                             rows_of: dict) -> int:
     """Append the blocks of the moment matrix of the sets of at most two words (families 5
     and 6, see the module notes) to ``blocks``; return the number of entries built."""
+    from codesearch.bounds.krawtchouk import krawtchouk
+
     entries = 0
     for w in range(n + 1):
         memo: dict = {}
@@ -710,7 +701,8 @@ def _add_pair_moment_blocks(n: int, d: int, even: bool, target: int, var, blocks
                 for ones, skey in _pair_moment_sets(cells, d, even):
                     c = 1
                     for m in range(4):
-                        c *= _split_krawtchouk(s1[m], cells[m], ones[m])
+                        # signed placements of the ones of c in the cell: K_ones(s1)
+                        c *= krawtchouk(2, cells[m], ones[m], s1[m])
                         if not c:
                             break
                     if c:

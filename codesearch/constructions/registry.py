@@ -622,9 +622,7 @@ FAMILIES: dict[str, Family] = {f.name: f for f in [
     Family("julin", "Julin's (12,144,4) code: hexads of S(5,6,12), six pairs, their complements",
            (), _julin_describe, _lazy("julin"), _single(_julin_describe)),
     Family("orbit", "union of recorded orbits under a coordinate permutation (key: the "
-           "record; (10,40,4), (21,50,9), (22,80,9), (23,106,9), (24,155,9) binary, "
-           "(6,18,4) ternary)",
-           ("key",), _orbit_describe,
+           "record)", ("key",), _orbit_describe,
            _lazy("orbit"), _orbit_instances),
     Family("nr-tails", "Construction X on the translates of the Nordstrom-Robinson code: "
            "(16+a, 256*2^(a-1), 6), a = 1..4", ("a",), _nrtail_describe, _lazy("nr-tails"),
