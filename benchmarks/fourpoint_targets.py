@@ -32,7 +32,7 @@ n, d, target, keep = int(sys.argv[1]), int(sys.argv[2]), int(sys.argv[3]), sys.a
 res = solve_four_point(n, d, target=target)
 if keep and res["certificate"] is not None and res["value"] < target:
     with gzip.open(f"{keep}/fourpoint_{n}_{d}.json.gz", "wt", encoding="utf-8") as fh:
-        json.dump(res["certificate"], fh)
+        json.dump(res["certificate"], fh, allow_nan=False)
 print(json.dumps({"value": res["value"], "exact": res["exact_float"],
                   "float": res["float_value"], "certified": res["certified"],
                   "build_s": res["build_seconds"], "check_s": res.get("check_seconds")}))

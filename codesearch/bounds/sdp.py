@@ -646,7 +646,9 @@ def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
             "bound": _frac_str(exact),
             "value": value,
             "solver": sol.get("solver", "scipy-highs (Delsarte LP dual)"),
-            "float_value": sol["float_value"],
+            # informative only; an infeasible pass has no float optimum, and NaN is no JSON
+            "float_value": (sol["float_value"] if math.isfinite(sol["float_value"])
+                            else None),
         },
     )
     return out
