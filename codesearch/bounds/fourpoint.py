@@ -116,11 +116,13 @@ the sign sum over the placements is a product of Krawtchouk values
 of at least ``U`` words: its certificate proves ``A <= max(U - 1, floor(bound))``, and
 :func:`four_point_bound` tries the targets ``U`` in turn (:func:`_pair_refinement`).
 Real codes satisfy every block, linear and nonlinear ones (``tests/test_fourpoint.py``).
-Measured (benchmarks/results_fourpoint.md): the targets 136 at A(19,8) and 257 at A(20,8)
-are excluded (the program is infeasible there), so A(19,8) <= 135 and A(20,8) <= 256, the
-published values; at A(17,8) and A(18,8) the values drop from 38.76 and 74.79 to 38.21 and
-73.02, above the published 37 and 72 (from memory), and at distance 6 the solves take
-several times longer than the plain program (A(18,6) not finished in 40 minutes).
+Measured (benchmarks/results_fourpoint.md): the targets 136 at A(19,8), 257 at A(20,8),
+48 at A(21,10) and 85 at A(22,10) are excluded, so A(19,8) <= 135, A(20,8) <= 256,
+A(21,10) <= 47 and A(22,10) <= 84, the published values; at A(17,8) and A(18,8) the values
+drop from 38.76 and 74.79 to 38.21 and 73.02, above the published 37 and 72 (from memory),
+and at distance 6 the solves take several times longer than the plain program (A(18,6) at
+the target 674: about 674 in floating point after 37 minutes, nothing certified below the
+LP).
 
 Size, refusal and certificate
 -----------------------------
