@@ -122,14 +122,19 @@ def _alive(pid: int) -> bool:
 def test_ctrl_c_stops_cleanly(tmp_path):
     store = tmp_path / "int.sqlite"
     cmd = _table_cmd(store)
-    cmd[cmd.index("--budget") + 1] = "4"  # long enough to be interrupted mid-run
-    proc = subprocess.Popen(cmd, env=_env(), cwd=tmp_path, stdout=subprocess.PIPE,
+    # long enough to be interrupted mid-run even on a loaded machine: each cell pauses 20 s
+    cmd[cmd.index("--budget") + 1] = "60"
+    env = dict(_env(), CODESEARCH_STUB_PAUSE="20")
+    proc = subprocess.Popen(cmd, env=env, cwd=tmp_path, stdout=subprocess.PIPE,
                             stderr=subprocess.PIPE, text=True)
+    # most cells are settled at once by bounds and constructions; A(9,3) goes to a worker,
+    # which pauses there for 20 s: signal once a worker is up
     deadline = time.time() + 60
-    while time.time() < deadline and len(_children(proc.pid)) < 2:
+    while time.time() < deadline and not _children(proc.pid):
         time.sleep(0.2)
     time.sleep(1.0)
     kids = _children(proc.pid)
+    assert proc.poll() is None, "the run ended before it could be interrupted"
     proc.send_signal(signal.SIGINT)
     out, err = proc.communicate(timeout=60)
     assert proc.returncode == 130, err
