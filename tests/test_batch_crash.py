@@ -128,9 +128,9 @@ def test_ctrl_c_stops_cleanly(tmp_path):
     proc = subprocess.Popen(cmd, env=env, cwd=tmp_path, stdout=subprocess.PIPE,
                             stderr=subprocess.PIPE, text=True)
     # most cells are settled at once by bounds and constructions; A(9,3) goes to a worker,
-    # which pauses there for 20 s: signal once a worker is up
+    # which pauses there for 20 s: signal once the workers are up
     deadline = time.time() + 60
-    while time.time() < deadline and not _children(proc.pid):
+    while time.time() < deadline and len(_children(proc.pid)) < 2:
         time.sleep(0.2)
     time.sleep(1.0)
     kids = _children(proc.pid)
