@@ -125,10 +125,14 @@ def test_ctrl_c_stops_cleanly(tmp_path):
     # long enough to be interrupted mid-run even on a loaded machine: each cell pauses 20 s
     cmd[cmd.index("--budget") + 1] = "60"
     env = dict(_env(), CODESEARCH_STUB_PAUSE="20")
+    # A shell starts background jobs with SIGINT ignored, the child inherits that and Python
+    # then installs no KeyboardInterrupt handler: give the run the default disposition, as an
+    # interactive terminal does.
     proc = subprocess.Popen(cmd, env=env, cwd=tmp_path, stdout=subprocess.PIPE,
-                            stderr=subprocess.PIPE, text=True)
+                            stderr=subprocess.PIPE, text=True,
+                            preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
     # most cells are settled at once by bounds and constructions; A(9,3) goes to a worker,
-    # which pauses there for 20 s: signal once the workers are up
+    # which pauses there for 20 s (so that a loaded machine cannot end the run first)
     deadline = time.time() + 60
     while time.time() < deadline and len(_children(proc.pid)) < 2:
         time.sleep(0.2)
