@@ -122,7 +122,8 @@ def _alive(pid: int) -> bool:
 def test_ctrl_c_stops_cleanly(tmp_path):
     store = tmp_path / "int.sqlite"
     cmd = _table_cmd(store)
-    # long enough to be interrupted mid-run even on a loaded machine: each cell pauses 20 s
+    # most cells are settled at once by bounds and constructions; A(9,3) goes to a worker,
+    # which pauses there for 20 s, so that a loaded machine cannot end the run first
     cmd[cmd.index("--budget") + 1] = "60"
     env = dict(_env(), CODESEARCH_STUB_PAUSE="20")
     # A shell starts background jobs with SIGINT ignored, the child inherits that and Python
@@ -131,8 +132,6 @@ def test_ctrl_c_stops_cleanly(tmp_path):
     proc = subprocess.Popen(cmd, env=env, cwd=tmp_path, stdout=subprocess.PIPE,
                             stderr=subprocess.PIPE, text=True,
                             preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
-    # most cells are settled at once by bounds and constructions; A(9,3) goes to a worker,
-    # which pauses there for 20 s (so that a loaded machine cannot end the run first)
     deadline = time.time() + 60
     while time.time() < deadline and len(_children(proc.pid)) < 2:
         time.sleep(0.2)
