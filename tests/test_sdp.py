@@ -403,3 +403,42 @@ def test_tiny_time_limit_still_returns_a_sound_result():
 def test_scs_solver_is_accepted_and_sound():
     res = three_point_bound(Params(2, 8, 4), solver="scs")
     assert res.certified and res.value == 16  # extended Hamming [8,4,4] is optimal
+
+
+class _SolverPanic(BaseException):
+    """Stands in for pyo3's PanicException: Clarabel's Rust panics reach Python as a
+    BaseException, not an Exception."""
+
+
+@pytest.mark.parametrize("fail_at", [1, 2])
+def test_a_solver_panic_keeps_the_passes_already_certified(monkeypatch, fail_at):
+    # A solver crash in a later pass must not lose the earlier certified passes, nor escape
+    # as a traceback; the failure is recorded among the passes.
+    import codesearch.bounds.sdp as sdp
+
+    real, calls = sdp._solve_scaled, []
+
+    def flaky(*args, **kwargs):
+        calls.append(1)
+        if len(calls) == fail_at:
+            raise _SolverPanic("SVD error: SVD(1)")
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(sdp, "_solve_scaled", flaky)
+    res = sdp.solve_three_point.__wrapped__(13, 6)  # bypass the cache
+    assert res["certified"]
+    assert res["value"] >= 32  # A(13,6) = 32 (MacWilliams-Sloane App. A; from memory)
+    assert check_certificate(dict(res["certificate"], q=2, n=13, d=6))[:2] == (True, res["value"])
+    assert res["passes"][-1]["status"].startswith("solver failure: _SolverPanic")
+    assert len(res["passes"]) == fail_at + 1  # the LP pass, then the SDP passes up to the failure
+
+
+def test_keyboard_interrupt_in_the_solver_still_stops(monkeypatch):
+    import codesearch.bounds.sdp as sdp
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(sdp, "_solve_scaled", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        sdp.solve_three_point.__wrapped__(10, 4)

@@ -300,14 +300,25 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
     # either alone left Clarabel stalling far from the optimum on some cells.
     sv = np.sqrt(shape / m0 / cap)
     exps = dict(prog.exps)
-    best = _delsarte_pass(prog)
-    passes = [{k_: best[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
-    if not best["certified"]:
-        best = None
+    res = _delsarte_pass(prog)
+    passes = [{k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
+    best = res if res["certified"] else None
     remaining = time_limit
     for attempt in range(_PASSES):
         t_pass = time.perf_counter()
-        sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
+        try:
+            sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
+        except (KeyboardInterrupt, SystemExit):
+            raise
+        except BaseException as exc:  # noqa: BLE001
+            # Clarabel reports some internal failures as a Rust panic, which reaches Python
+            # as pyo3's PanicException, a BaseException (seen: "SVD error: SVD(1)" in a PSD
+            # cone update after 72 minutes of A(19,6) with the pair blocks). The passes
+            # already certified stand; the failure is recorded and the passes stop.
+            passes.append({"status": f"solver failure: {type(exc).__name__}: {exc}"[:200],
+                           "float_value": None, "exact_float": None,
+                           "seconds": time.perf_counter() - t_pass})
+            break
         res = _certify(prog, sol)
         res["seconds"] = time.perf_counter() - t_pass
         passes.append({k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")})
