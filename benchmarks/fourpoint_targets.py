@@ -11,9 +11,10 @@ time, peak memory of the whole run: build, numerical passes, exact rounding and 
 independent re-check). When the certified bound falls below ``U`` the size ``U`` is
 excluded, ``A(N, D) <= U - 1``; otherwise the certified value is still a bound (the floor
 of the exact bound). With ``--keep`` a certified certificate is written gzipped to
-``DIR/fourpoint_N_D.json.gz`` unless a file there already proves a value as small; there ``bench_bounds_published.py --certificates DIR``
-re-checks it and uses its bound (the solves take minutes to hours; the re-check seconds to
-minutes). One markdown row per cell is printed.
+``DIR/fourpoint_N_D.json.gz`` unless a file there already proves a value as small; there
+``bench_bounds_published.py --certificates DIR`` re-checks it and uses its bound (the solves
+take minutes to hours; the re-check seconds to minutes). One markdown row per cell is
+printed.
 """
 
 from __future__ import annotations

@@ -424,9 +424,15 @@ def test_stored_pair_moment_certificates(n, d, value):
     # A(19,8) <= 135, A(20,8) <= 256, A(21,10) <= 47 and A(22,10) <= 84: the published
     # four-point values of Gijswijt, Mittelmann and Schrijver (2012;
     # data/published_binary.csv, from memory; the d = 10 rows are marked uncertain there).
-    # A(17,8) <= 38 and A(18,6) <= 674 are one above the published 37 and 673. The certificates were solved by
-    # benchmarks/fourpoint_targets.py (6 to 84 minutes) and are re-checked here from
-    # scratch (1 to 6 minutes each).
+    # A(17,8) <= 38 and A(18,6) <= 674 are one above the published 37 and 673. The
+    # certificates were solved by benchmarks/fourpoint_targets.py (6 to 84 minutes) and are
+    # re-checked here from scratch (1 to 6 minutes each).
+    cert, ok, bound, reason = _recheck_stored(n, d)
+    assert ok and bound == value == cert["target"] - 1, reason
+
+
+def _recheck_stored(n, d):
+    """The stored certificate of A(n,d) in benchmarks/certificates and its re-check."""
     import gzip
     import json
     import pathlib
@@ -435,8 +441,7 @@ def test_stored_pair_moment_certificates(n, d, value):
             / f"fourpoint_{n}_{d}.json.gz")
     with gzip.open(path, "rt", encoding="utf-8") as fh:
         cert = json.load(fh)
-    ok, bound, reason = check_certificate(cert)
-    assert ok and bound == value == cert["target"] - 1, reason
+    return (cert, *check_certificate(cert))
 
 
 @pytest.mark.slow
@@ -449,15 +454,7 @@ def test_stored_plain_certificates(n, d, value, lower):
     # Schrijver 2012 and the code tables; data/published_binary.csv, from memory). Solved by
     # `benchmarks/fourpoint_targets.py N,6,0` (14 and 32 minutes); re-checked here from
     # scratch (1 to 2 minutes each).
-    import gzip
-    import json
-    import pathlib
-
-    path = (pathlib.Path(__file__).parent.parent / "benchmarks" / "certificates"
-            / f"fourpoint_{n}_{d}.json.gz")
-    with gzip.open(path, "rt", encoding="utf-8") as fh:
-        cert = json.load(fh)
+    cert, ok, bound, reason = _recheck_stored(n, d)
     assert "target" not in cert
-    ok, bound, reason = check_certificate(cert)
     assert ok and bound == value, reason
     assert value >= lower
