@@ -43,7 +43,8 @@ def lp_cert() -> dict:
 def tp_cert() -> dict:
     from codesearch.bounds.sdp import three_point_bound
 
-    return json.loads(json.dumps(three_point_bound(Params(2, 13, 6)).certificate))
+    # A(12,4): its certificate has dual blocks (the LP pass wins at A(13,6))
+    return json.loads(json.dumps(three_point_bound(Params(2, 12, 4)).certificate))
 
 
 @pytest.fixture(scope="module")
@@ -87,7 +88,7 @@ def test_malformed_three_point_certificate_exits_2(tp_cert, tmp_path, capsys, mu
 
 
 def test_infinity_and_nan_are_refused_on_reading(tp_cert, tmp_path, capsys):
-    text = json.dumps(tp_cert).replace('"value": 32', '"value": Infinity')
+    text = json.dumps(tp_cert).replace('"value": 160', '"value": Infinity')
     assert "Infinity" in text
     code, _, err = _run(["check", _write(tmp_path, "inf.json", text)], capsys)
     assert code == 2 and "Infinity" in err and len(err.strip().splitlines()) == 1
@@ -135,11 +136,11 @@ def test_every_kind_rejects_a_wrong_claim(lp_cert):
 # ------------------------------------------------------------ a certificate is bound to its cell
 def test_check_refuses_a_certificate_for_another_cell(tp_cert, tmp_path, capsys):
     path = _write(tmp_path, "tp.json", json.dumps(tp_cert))
-    assert _run(["check", path, "--cell", 2, 13, 6], capsys)[0] == 0
-    assert _run(["check", path, "--cell", 2, 12, 5], capsys)[0] == 0  # A(12,5) = A(13,6)
+    assert _run(["check", path, "--cell", 2, 12, 4], capsys)[0] == 0
+    assert _run(["check", path, "--cell", 2, 11, 3], capsys)[0] == 0  # A(11,3) = A(12,4)
     code, out, _ = _run(["check", path, "--cell", 2, 20, 6, "--json"], capsys)
     assert code == 1 and "not A(20,6)" in json.loads(out)["reason"]
-    assert _run(["check", path, "--cell", 3, 13, 6], capsys)[0] == 1
+    assert _run(["check", path, "--cell", 3, 12, 4], capsys)[0] == 1
 
 
 def test_store_refuses_a_certificate_for_another_cell(lp_cert, tmp_path):

@@ -215,6 +215,41 @@ def test_published_three_point_values(n, d, published):
     assert res.value == published
 
 
+@pytest.mark.parametrize("n, d, published", [(28, 8, 32151), (27, 7, 32151)])
+def test_reaches_the_published_three_point_value_at_length_28(n, d, published):
+    # A(27,7) = A(28,8) <= 32151: Schrijver (2005), table of new bounds (from memory; the row
+    # of data/published_binary.csv). Before the multipliers were refitted after rounding,
+    # the float optimum 32151.7 was certified as 32152.
+    res = three_point_bound(Params(2, n, d))
+    assert res.certified and res.value == published
+    assert check_certificate(json.loads(json.dumps(res.certificate)))[:2] == (True, published)
+
+
+def test_antipodal_rows_enter_the_program():
+    # The strengthened LP (this package's Delsarte LP with the antipodal rows) gives 9674 at
+    # A(26,8); the program contains those rows, so it is never weaker (it certified 9695
+    # without them).
+    res = three_point_bound(Params(2, 26, 8))
+    assert res.certified and res.value <= 9674
+    cert = json.loads(json.dumps(res.certificate))
+    assert check_certificate(cert)[:2] == (True, res.value)
+    used = {m["row"][0] for m in cert["multipliers"]}
+    assert used & {"antipodal-ball", "antipodal-shell"}
+
+
+def test_multiplier_refit_never_raises_the_bound(monkeypatch):
+    # The refit only offers other multipliers; each pass keeps the lower exact bound, and the
+    # passes themselves do not depend on it.
+    from codesearch.bounds import sdp
+
+    with_refit = sdp.solve_three_point(26, 8)
+    monkeypatch.setattr(sdp, "_refit_multipliers", lambda prog, zmats: None)
+    without = sdp.solve_three_point(26, 8)
+    assert with_refit["certified"] and without["certified"]
+    assert with_refit["exact"] <= without["exact"]
+    assert len(with_refit["passes"]) == len(without["passes"])
+
+
 def _delsarte_float(n: int, d: int) -> float:
     """Delsarte's LP optimum (even distances for even d) with scipy's HiGHS."""
     from scipy.optimize import linprog
@@ -284,17 +319,21 @@ def test_nordstrom_robinson_cell():
 # ------------------------------------------------------------------------------- the checker
 @pytest.fixture(scope="module")
 def cert():
-    return json.loads(json.dumps(three_point_bound(Params(2, 13, 6)).certificate))
+    # A(12,4): a cell where the semidefinite passes beat the strengthened LP, so the
+    # certificate has dual blocks (at A(13,6) the LP pass with the antipodal rows wins)
+    res = three_point_bound(Params(2, 12, 4))
+    assert res.certificate["blocks"]
+    return json.loads(json.dumps(res.certificate))
 
 
 def test_checker_accepts(cert):
-    assert check_certificate(cert) == (True, 32, check_certificate(cert)[2])
+    assert check_certificate(cert) == (True, 160, check_certificate(cert)[2])
 
 
 def test_checker_rejects_lower_claim(cert):
-    bad = dict(cert, value=31)
+    bad = dict(cert, value=159)
     valid, _, reason = check_certificate(bad)
-    assert not valid and "proves only 32" in reason
+    assert not valid and "proves only 160" in reason
 
 
 def test_checker_rejects_non_psd_block(cert):
@@ -311,13 +350,14 @@ def test_checker_rejects_negative_multiplier(cert):
 
 
 def test_checker_rejects_wrong_cell(cert):
-    assert check_certificate(dict(cert, n=14))[0] is False  # program (13,6) cannot bound A(14,6)
-    assert check_certificate(dict(cert, d=5, n=12))[0] is True  # A(12,5) = A(13,6)
-    assert check_certificate(dict(cert, d=4))[0] is False
+    assert check_certificate(dict(cert, n=13))[0] is False  # program (12,4) cannot bound A(13,4)
+    assert check_certificate(dict(cert, d=3, n=11))[0] is True  # A(11,3) = A(12,4)
+    assert check_certificate(dict(cert, d=2))[0] is False
 
 
 def test_checker_rejects_bad_row_labels(cert):
-    for label in (["weight", 0], ["weight", 99], ["upper", 3, 2, 5]):
+    for label in (["weight", 0], ["weight", 99], ["upper", 3, 2, 5], ["antipodal-ball", 1],
+                  ["antipodal-shell", 2]):
         bad = json.loads(json.dumps(cert))
         bad["multipliers"].append({"row": label, "value": "1/2"})
         assert check_certificate(bad)[0] is False, label

@@ -21,6 +21,7 @@ from typing import Any, Mapping
 
 from codesearch.errors import InputError
 from codesearch.verify import strict
+from codesearch.verify.lp import _extra_row
 
 __all__ = ["check_three_point_certificate", "MAX_N", "read_block", "read_row",
            "add_schrijver_part", "read_binary_cell"]
@@ -247,7 +248,8 @@ def _add_block(obj: _Objective, block: tuple[tuple[int, ...], list[int], list[li
 
 
 #: Row label -> number of integer indices after it.
-_ROW_SHAPES = {"upper": 3, "pair": 3, "weight": 1, "delsarte": 1}
+_ROW_SHAPES = {"upper": 3, "pair": 3, "weight": 1, "delsarte": 1, "antipodal-ball": 1,
+               "antipodal-shell": 1}
 
 
 def _add_multiplier(obj: _Objective, mult: tuple[str, list[int], Fraction],
@@ -286,6 +288,14 @@ def _add_multiplier(obj: _Objective, mult: tuple[str, list[int], Fraction],
                 (-1) ** s * _tp_binom(i, s) * _tp_binom(n - i, k - s) for s in range(k + 1)
             )
             add(tri(i, 0, 0), mu * _tp_binom(n, i) * kraw)
+    elif label[0] in ("antipodal-ball", "antipodal-shell"):
+        # sum_i a_i C(n,i) x[i,0,0] <= b, rebuilt by the LP checker (codesearch.verify.lp)
+        if idx != [0] or (label[0] == "antipodal-shell" and d % 2):
+            return f"bad row {label}"
+        coeffs, rhs = _extra_row(label[0], 0, n, d)
+        obj.const += mu * rhs
+        for i, a in coeffs.items():
+            add(tri(i, 0, 0), -mu * a * _tp_binom(n, i))
     else:
         return f"unknown row {label}"
     return None
