@@ -120,9 +120,10 @@ Measured (benchmarks/results_fourpoint.md): the targets 136 at A(19,8), 257 at A
 48 at A(21,10) and 85 at A(22,10) are excluded, so A(19,8) <= 135, A(20,8) <= 256,
 A(21,10) <= 47 and A(22,10) <= 84, the published values; at A(17,8) and A(18,8) the values
 drop from 38.76 and 74.79 to 38.21 and 73.02, above the published 37 and 72 (from memory),
-and at distance 6 the solves take several times longer than the plain program (A(18,6) at
-the target 674: about 674 in floating point after 37 minutes, nothing certified below the
-LP).
+and at distance 6 the solves take several times longer than the plain program. A(18,6) at
+the target 674 (23 minutes) ends in numerical errors, but since the linear multipliers are
+refitted after rounding (:func:`codesearch.bounds.sdp._refit_multipliers`) two of its passes
+certify the program infeasible, so A(18,6) <= 673, the published value.
 
 Size, refusal and certificate
 -----------------------------
