@@ -123,7 +123,8 @@ drop from 38.76 and 74.79 to 38.21 and 73.02, above the published 37 and 72 (fro
 and at distance 6 the solves take several times longer than the plain program. A(18,6) at
 the target 674 (23 minutes) ends in numerical errors, but since the linear multipliers are
 refitted after rounding (:func:`codesearch.bounds.sdp._refit_multipliers`) two of its passes
-certify the program infeasible, so A(18,6) <= 673, the published value.
+certify the program infeasible, so A(18,6) <= 673, the published value; A(19,6) at the
+target 1238 gives 1238.07 (17 minutes, one pass), so A(19,6) <= 1238.
 
 Size, refusal and certificate
 -----------------------------
