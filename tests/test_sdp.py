@@ -243,7 +243,7 @@ def test_multiplier_refit_never_raises_the_bound(monkeypatch):
     from codesearch.bounds import sdp
 
     with_refit = sdp.solve_three_point(26, 8)
-    monkeypatch.setattr(sdp, "_refit_multipliers", lambda prog, zmats: None)
+    monkeypatch.setattr(sdp, "_refit_multipliers", lambda prog, parts: None)
     without = sdp.solve_three_point(26, 8)
     assert with_refit["certified"] and without["certified"]
     assert with_refit["exact"] <= without["exact"]

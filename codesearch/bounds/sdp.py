@@ -612,10 +612,11 @@ def _certify(prog: SdpProgram, sol: dict) -> dict:
         mu = float(zl[a]) * m0 / sol["row_scale"][a]  # x-space multiplier of row a
         if mu > 0.0:
             mus.append((a, Fraction(mu)))  # exact dyadic value of the float
-    out = _certify_parts(prog, zmats, mus, sol)
-    refit = _refit_multipliers(prog, zmats)
+    parts = _block_parts(prog, zmats)  # the blocks' share, priced once for both candidates
+    out = _certify_parts(prog, zmats, mus, sol, parts)
+    refit = _refit_multipliers(prog, parts)
     if refit is not None:
-        better = _certify_parts(prog, zmats, refit, sol)
+        better = _certify_parts(prog, zmats, refit, sol, parts)
         if better["exact"] < out["exact"]:
             out = better
     return out
@@ -625,8 +626,9 @@ def _certify(prog: SdpProgram, sol: dict) -> dict:
 _REFIT_MAX = 400_000
 
 
-def _refit_multipliers(prog: SdpProgram, zmats: list) -> list | None:
-    """Multipliers of the linear rows chosen again for the rounded blocks ``zmats``.
+def _refit_multipliers(prog: SdpProgram, parts: tuple) -> list | None:
+    """Multipliers of the linear rows chosen again for the rounded blocks (``parts``, their
+    share of the bound from :func:`_block_parts`).
 
     With the blocks fixed, the exact bound is ``const + mu.rhs + sum_v max(r_v, 0) cap_v``
     with ``r_v`` linear in ``mu``: a linear program in ``mu >= 0``. Solving it (HiGHS) after
@@ -643,9 +645,9 @@ def _refit_multipliers(prog: SdpProgram, zmats: list) -> list | None:
     data = prog.data
     rows = data.rows
     nv, nr = len(data.triangles), len(rows)
-    if not zmats or nv + nr > _REFIT_MAX:
+    if nv + nr > _REFIT_MAX:
         return None
-    _total, r0, scale = _exact_parts(prog, zmats, [])
+    _total, r0, scale = parts
     r0f = np.array([float(Fraction(x) / scale) for x in r0])
     ii, jj, vv = [], [], []
     for a, (_label, cv, _rhs) in enumerate(rows):
@@ -662,8 +664,10 @@ def _refit_multipliers(prog: SdpProgram, zmats: list) -> list | None:
     return [(a, Fraction(float(m))) for a, m in enumerate(res.x[:nr]) if m > 0.0]
 
 
-def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
-    """Exact bound and certificate from rounded dual blocks and multipliers."""
+def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict,
+                   parts: tuple | None = None) -> dict:
+    """Exact bound and certificate from rounded dual blocks and multipliers (``parts``: the
+    blocks' share from :func:`_block_parts`, when already computed)."""
     out: dict[str, Any] = {
         "float_value": sol["float_value"],
         "gap": sol["gap"],
@@ -671,7 +675,7 @@ def _certify_parts(prog: SdpProgram, zmats: list, mus: list, sol: dict) -> dict:
         "reason": "",
     }
     data = prog.data
-    exact = _exact_bound(prog, zmats, mus)
+    exact = _exact_bound(prog, mus, parts if parts is not None else _block_parts(prog, zmats))
     blocks_cert = []
     for family, k, weights, zint, es, g in zmats:
         m = len(weights)
@@ -764,24 +768,31 @@ def _is_positive_definite(mat: list[list[int]]) -> bool:
     return True
 
 
-def _exact_bound(prog: SdpProgram, zmats: list, mus: list) -> Fraction:
-    """Exact upper bound on |C| from rounded duals (see the module docstring)."""
-    total, r, scale = _exact_parts(prog, zmats, mus)
+def _exact_bound(prog: SdpProgram, mus: list, parts: tuple) -> Fraction:
+    """Exact upper bound on |C| from rounded duals (see the module docstring): the blocks'
+    share ``parts`` (:func:`_block_parts`) plus the multipliers ``mus``, residuals capped."""
+    total, r, scale = parts
+    r = list(r)
+    for a, mu in mus:
+        _label, cv, rhs = prog.data.rows[a]
+        mu_s = mu * scale
+        total += mu_s * rhs
+        for v, c in cv.items():
+            r[v] -= mu_s * c
     caps = prog.caps
     absorbed = sum((r[v] * caps[v] for v in range(len(r)) if r[v] > 0), Fraction(0))
     return Fraction(total + absorbed) / scale
 
 
-def _exact_parts(prog: SdpProgram, zmats: list, mus: list) -> tuple:
+def _block_parts(prog: SdpProgram, zmats: list) -> tuple:
     """``(total, r, scale)``: the constant part and the coefficient ``r_v`` of every variable
-    of ``1 + sum <Z, B(x)> + sum mu (rhs - row(x)) + c.x``, all times ``scale``."""
+    of ``1 + sum <Z, B(x)> + c.x``, all times ``scale`` (the multipliers come on top)."""
     data = prog.data
     q_exp = _ROUND_BITS + max(
         [g + 2 * max(es) for _, _, _, _, es, g in zmats] + [0]
     ) + 4
     q_exp = max(q_exp, _ROUND_BITS)
     scale = 1 << q_exp
-    nv = len(data.triangles)
     r = [c * scale for c in data.objective]
     total = scale  # the empty-distance term x[0,0,0] = 1
     blocks = {(fam, k): (const, coef) for fam, k, _size, const, coef in data.blocks}
@@ -803,11 +814,4 @@ def _exact_parts(prog: SdpProgram, zmats: list, mus: list) -> tuple:
                     total += zval * c0
                 for v, c in coef.get(key, {}).items():
                     r[v] += zval * c
-    for a, mu in mus:
-        label, cv, rhs = data.rows[a]
-        mu_s = mu * scale
-        total_f = mu_s * rhs
-        total += total_f
-        for v, c in cv.items():
-            r[v] -= mu_s * c
     return total, r, scale
