@@ -384,6 +384,21 @@ def test_cli_four_point_small_cell(capsys):
     assert '"four-point-sdp": 16' in out
 
 
+def test_passes_cap_the_numerical_passes():
+    # A(8,4) = 16 (the extended Hamming code; published table row): one numerical pass after
+    # the LP pass still certifies it; zero passes is refused as a parameter error
+    from codesearch.bounds.fourpoint import _program, solve_four_point
+    from codesearch.bounds.sdp import solve_program
+    from codesearch.errors import ParameterError
+
+    res = solve_four_point(8, 4, passes=1)
+    assert res["certified"] and res["value"] == 16
+    assert len(res["passes"]) == 2  # the LP pass and one semidefinite pass
+    assert res["certificate"]["settings"]["passes"] == 2
+    with pytest.raises(ParameterError, match="at least 1"):
+        solve_program(_program(8, 4), passes=0)
+
+
 def test_an_infeasible_target_certificate_is_plain_json(tmp_path, capsys):
     # A(8,4) = 16 (published table row): the target 17 is excluded because the program is
     # infeasible there, so the pass has no float optimum; the certificate must still be

@@ -841,7 +841,7 @@ def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3,
 @lru_cache(maxsize=64)
 def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
                      solver: str = "clarabel", quad_rows: bool = True,
-                     target: int | None = None) -> dict[str, Any]:
+                     target: int | None = None, passes: int | None = None) -> dict[str, Any]:
     """Solve and certify the four-point program of binary ``(n, d)``, ``d`` even (see
     :func:`codesearch.bounds.sdp.solve_program`); the certificate is re-checked by the
     independent checker before returning (a disagreement raises
@@ -850,7 +850,10 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     With ``target`` the moment matrix of the sets of at most two words is added with the
     corner of a code of ``target`` words (families 5 and 6); the dual then bounds only the
     codes of at least ``target`` words, so the value is ``max(target - 1, floor(bound))``
-    (the certificate carries the ``target``)."""
+    (the certificate carries the ``target``). ``passes`` caps the numerical passes (default
+    three, :func:`codesearch.bounds.sdp.solve_program`); with the pair blocks at distance 6
+    the later passes cost hours and rarely move the certified integer, so long solves use
+    one (benchmarks/results_fourpoint.md)."""
     from codesearch.bounds.sdp import solve_program
     from codesearch.errors import VerificationError
     from codesearch.verify import check_certificate
@@ -858,7 +861,7 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     t0 = time.perf_counter()
     prog = _program(n, d, quad_rows=quad_rows, target=target)
     build = time.perf_counter() - t0
-    best = solve_program(prog, time_limit=time_limit, solver=solver)
+    best = solve_program(prog, time_limit=time_limit, solver=solver, passes=passes)
     best["build_seconds"] = build
     best["seconds"] = time.perf_counter() - t0
     best["target"] = target

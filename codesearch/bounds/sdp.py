@@ -284,17 +284,20 @@ class SdpProgram:
 
 
 def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
-                  solver: str = "clarabel") -> dict[str, Any]:
+                  solver: str = "clarabel", passes: int | None = None) -> dict[str, Any]:
     """Solve ``prog`` in floating point and certify the best dual pass exactly.
 
     The Delsarte-rows LP dual is certified first (never weaker than the LP); then up to
-    ``_PASSES`` semidefinite passes, each rounded and bounded exactly (see
+    ``passes`` (default ``_PASSES``) semidefinite passes, each rounded and bounded exactly (see
     :func:`solve_three_point`). Returns the result dict of the best certified pass (the
     certificate carries ``kind``, ``blocks``, ``multipliers``, ``bound``, ``value``,
     ``settings``; the caller adds the cell).
     """
     import numpy as np
 
+    n_passes = _PASSES if passes is None else passes
+    if n_passes < 1:
+        raise ParameterError(f"numerical passes must be at least 1, not {passes}")
     t0 = time.perf_counter()
     data, m0 = prog.data, prog.m0
     cap = np.array([float(c) for c in prog.caps])
@@ -308,7 +311,7 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
     passes = [{k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
     best = res if res["certified"] else None
     remaining = time_limit
-    for attempt in range(_PASSES):
+    for attempt in range(n_passes):
         t_pass = time.perf_counter()
         try:
             sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
@@ -333,7 +336,7 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
         if len(passes) >= 3 and res["certified"] and best is not None:
             if math.floor(passes[-2]["exact_float"]) == res["value"] == best["value"]:
                 break  # rebalancing no longer moves the certified integer
-        if attempt + 1 < _PASSES and sol["w"] is not None:
+        if attempt + 1 < n_passes and sol["w"] is not None:
             sv, exps = _rescale(data, sol, sv, exps, cap)
     if best is None:
         best = res
