@@ -124,7 +124,11 @@ and at distance 6 the solves take several times longer than the plain program. A
 the target 674 (23 minutes) ends in numerical errors, but since the linear multipliers are
 refitted after rounding (:func:`codesearch.bounds.sdp._refit_multipliers`) two of its passes
 certify the program infeasible, so A(18,6) <= 673, the published value; A(19,6) at the
-target 1238 gives 1238.07 (17 minutes, one pass), so A(19,6) <= 1238.
+target 1238 gives 1238.07 (17 minutes, one pass), so A(19,6) <= 1238; A(20,6) at the target
+2280 gives 2279.90 (33 minutes, one pass), so A(20,6) <= 2279, the published value. Not
+every cell gains: A(20,4) at the target 26169 stays at the LP's 26214.4 (45 minutes), and
+the pair blocks without families 2-4 give only 2286.6 at A(20,6) in 19 minutes (the solve
+time is in the 4-set variables and rows, which both programs share).
 
 Size, refusal and certificate
 -----------------------------
