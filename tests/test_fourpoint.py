@@ -399,6 +399,16 @@ def test_passes_cap_the_numerical_passes():
         solve_program(_program(8, 4), passes=0)
 
 
+def test_pair_solves_below_distance_8_take_one_pass():
+    # A(8,4) = 16 (published table row): the pair solve at target 17 excludes it after the LP
+    # pass and a single semidefinite pass (PAIR_PASSES_BELOW_8)
+    from codesearch.bounds.fourpoint import PAIR_PASSES_BELOW_8, _pair_refinement
+
+    got = _pair_refinement(8, 4, 1, None, "clarabel", lower=16)
+    assert got["value"] == 16 and got["target"] == 17
+    assert len(got["passes"]) == 1 + PAIR_PASSES_BELOW_8 == 2
+
+
 def test_an_infeasible_target_certificate_is_plain_json(tmp_path, capsys):
     # A(8,4) = 16 (published table row): the target 17 is excluded because the program is
     # infeasible there, so the pass has no float optimum; the certificate must still be

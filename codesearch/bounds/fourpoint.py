@@ -172,7 +172,8 @@ from codesearch.results import BoundResult
 __all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "four_point_bound",
            "four_point_data", "FourPointData", "canonical_profile", "profile_distances",
            "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS", "MAX_SECONDS",
-           "UNCOUNTED_N", "quad_cap", "solve_four_point", "PAIR_SOLVES", "pair_moment_rows"]
+           "UNCOUNTED_N", "quad_cap", "solve_four_point", "PAIR_SOLVES", "PAIR_PASSES_BELOW_8",
+           "pair_moment_rows"]
 
 #: Memory allowed to one solve (this machine has 24 GB, shared).
 MEMORY_BYTES = 20 * 10**9
@@ -196,6 +197,10 @@ _SECONDS_AT, _TERMS_AT, _SECONDS_POWER = 361.0, 3.75e6, 1.8
 _BASE_BYTES, _BYTES_PER_TERM = 3 * 10**8, 720
 #: Solves with the pair moment blocks (families 5, 6) after the plain four-point solve.
 PAIR_SOLVES = 3
+#: Numerical passes of a pair solve for distances below 8: one. At distance 6 the first pass
+#: settled every cell measured (A(18,6) <= 673, A(19,6) <= 1238, A(20,6) <= 2279) and the
+#: later ones cost an hour or more and moved nothing (benchmarks/results_fourpoint.md).
+PAIR_PASSES_BELOW_8 = 1
 #: From this length on the program is refused without being counted: the blocks of family 4
 #: (whose rows do not depend on d) alone have 9.9 * 10^7 terms at n = 28 (counted), past
 #: :data:`MAX_BUILD_TERMS`, and more for longer codes.
@@ -401,9 +406,11 @@ class FourPointSize:
     def pair_seconds(self) -> float:
         """Estimated wall time of one solve with the pair moment blocks: about one plain
         solve for ``d >= 8`` (measured 587 s against 584 s at A(19,8), 1439 s against
-        1373 s at A(20,8)), six for smaller ``d`` (A(18,6): not finished after 40 min
-        against 10 min plain; benchmarks/results_fourpoint.md)."""
-        return self.seconds * (1.0 if self.d >= 8 else 6.0)
+        1373 s at A(20,8)); for smaller ``d`` the solve has one numerical pass
+        (:data:`PAIR_PASSES_BELOW_8`), which takes about 1.2 plain three-pass solves (17 min
+        against 15 at A(19,6), 33 against 27 at A(20,6); three passes took six times a plain
+        solve at A(18,6); benchmarks/results_fourpoint.md)."""
+        return self.seconds * (1.0 if self.d >= 8 else 1.2)
 
     def pair_solves_within(self, limit: float = MAX_SECONDS) -> int:
         """How many of the :data:`PAIR_SOLVES` solves with the pair moment blocks fit in
@@ -901,7 +908,8 @@ def _pair_refinement(n: int, d: int, solves: int, time_limit: float | None, solv
     lo, hi = max(lower, 0), None
     target = lo + 1
     for _ in range(solves):
-        got = solve_four_point(n, d, time_limit=time_limit, solver=solver, target=target)
+        got = solve_four_point(n, d, time_limit=time_limit, solver=solver, target=target,
+                               passes=PAIR_PASSES_BELOW_8 if d < 8 else None)
         if not got["certified"]:
             break
         if best is None or got["value"] < best["value"]:
