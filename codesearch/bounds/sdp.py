@@ -308,7 +308,7 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
     sv = np.sqrt(shape / m0 / cap)
     exps = dict(prog.exps)
     res = _delsarte_pass(prog)
-    passes = [{k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
+    log = [{k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")}]
     best = res if res["certified"] else None
     remaining = time_limit
     for attempt in range(n_passes):
@@ -322,30 +322,30 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
             # as pyo3's PanicException, a BaseException (seen: "SVD error: SVD(1)" in a PSD
             # cone update after 72 minutes of A(19,6) with the pair blocks). The passes
             # already certified stand; the failure is recorded and the passes stop.
-            passes.append({"status": f"solver failure: {type(exc).__name__}: {exc}"[:200],
-                           "float_value": None, "exact_float": None,
-                           "seconds": time.perf_counter() - t_pass})
+            log.append({"status": f"solver failure: {type(exc).__name__}: {exc}"[:200],
+                        "float_value": None, "exact_float": None,
+                        "seconds": time.perf_counter() - t_pass})
             break
         res = _certify(prog, sol)
         res["seconds"] = time.perf_counter() - t_pass
-        passes.append({k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")})
+        log.append({k_: res[k_] for k_ in ("status", "float_value", "exact_float", "seconds")})
         if res["certified"] and (best is None or res["exact"] < best["exact"]):
             best = res
         if remaining is not None:
             remaining = max(0.1, remaining - res["seconds"])
-        if len(passes) >= 3 and res["certified"] and best is not None:
-            if math.floor(passes[-2]["exact_float"]) == res["value"] == best["value"]:
+        if len(log) >= 3 and res["certified"] and best is not None:
+            if math.floor(log[-2]["exact_float"]) == res["value"] == best["value"]:
                 break  # rebalancing no longer moves the certified integer
         if attempt + 1 < n_passes and sol["w"] is not None:
             sv, exps = _rescale(data, sol, sv, exps, cap)
     if best is None:
         best = res
-    best["passes"] = passes
+    best["passes"] = log
     best["seconds"] = time.perf_counter() - t0
     if best["certificate"] is not None:
         best["certificate"]["settings"] = {
             "tolerance": _TOL,
-            "passes": len(passes),
+            "passes": len(log),
             "round_bits": _ROUND_BITS,
         }
     return best
