@@ -1,9 +1,11 @@
 """Exclude a size with the four-point program and its pair moment blocks; keep the certificate.
 
 Run: ``PYTHONPATH=$PWD python benchmarks/fourpoint_targets.py N,D,U [N,D,U ...]
-[--keep benchmarks/certificates] [--passes P]``; ``U = 0`` solves the plain four-point
-program (no pair blocks, no corner); ``--passes 1`` stops after the first numerical pass
-(at distance 6 with the pair blocks the later passes took over an hour and moved nothing).
+[--keep benchmarks/certificates] [--passes P] [--solver-option NAME=VALUE ...]``; ``U = 0``
+solves the plain four-point program (no pair blocks, no corner); ``--passes 1`` stops after
+the first numerical pass (at distance 6 with the pair blocks the later passes took over an
+hour and moved nothing); ``--solver-option`` overrides a Clarabel setting (for example
+``static_regularization_constant=1e-10``; recorded in the certificate).
 
 For each cell (even ``D``) the four-point program with the moment matrix of word pairs and
 the corner of a code of ``U`` words (:func:`codesearch.bounds.fourpoint.solve_four_point`
@@ -34,7 +36,8 @@ import gzip, json, os, sys
 from codesearch.bounds.fourpoint import solve_four_point
 n, d, target, keep = int(sys.argv[1]), int(sys.argv[2]), int(sys.argv[3]), sys.argv[4]
 passes = int(sys.argv[5]) or None
-res = solve_four_point(n, d, target=target or None, passes=passes)
+options = json.loads(sys.argv[6])
+res = solve_four_point(n, d, target=target or None, passes=passes, solver_options=options)
 path = f"{keep}/fourpoint_{n}_{d}.json.gz"
 if keep and res["certificate"] is not None and res["certified"]:
     old = None
@@ -50,9 +53,11 @@ print(json.dumps({"value": res["value"], "exact": res["exact_float"],
 """
 
 
-def run(n: int, d: int, target: int, keep: str, passes: int = 0) -> str:
+def run(n: int, d: int, target: int, keep: str, passes: int = 0,
+        options: dict | None = None) -> str:
     proc = subprocess.run(["/usr/bin/time", "-v", sys.executable, "-c", _CHILD, str(n), str(d),
-                           str(target), keep, str(passes)], capture_output=True, text=True,
+                           str(target), keep, str(passes), json.dumps(options or {})],
+                          capture_output=True, text=True,
                           cwd=ROOT,
                           env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"})
     if proc.returncode != 0:
@@ -81,15 +86,33 @@ def main() -> None:
                     help="write certified certificates to DIR (never over a stronger one)")
     ap.add_argument("--passes", type=int, default=0, metavar="P",
                     help="numerical passes per solve (default: the library's, three)")
+    ap.add_argument("--solver-option", action="append", default=[], metavar="NAME=VALUE",
+                    help="override a Clarabel setting (repeatable; VALUE a number, true or "
+                         "false)")
     args = ap.parse_args()
     if args.passes < 0:
         ap.error("--passes must be 0 (the default) or more")
+    options = {}
+    for item in args.solver_option:
+        name, sep, text = item.partition("=")
+        if not sep:
+            ap.error(f"--solver-option expects NAME=VALUE, got {item!r}")
+        try:
+            options[name.strip()] = json.loads(text.strip())
+        except json.JSONDecodeError:
+            ap.error(f"--solver-option {name}: {text!r} is not a number, true or false")
+    from codesearch.bounds.sdp import clarabel_options
+    from codesearch.errors import ParameterError
+    try:
+        clarabel_options(options)
+    except ParameterError as exc:
+        ap.error(str(exc))
     print("| cell | target U | exact bound | verdict | wall s | CPU s | peak MB | check s |\n"
           "|---|---|---|---|---|---|---|---|")
     for cell in args.cells:
         n, d, target = (int(v) for v in cell.split(","))
         keep = str(pathlib.Path(args.keep).resolve()) if args.keep else ""
-        print(run(n, d, target, keep, args.passes), flush=True)
+        print(run(n, d, target, keep, args.passes, options), flush=True)
 
 
 if __name__ == "__main__":

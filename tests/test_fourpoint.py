@@ -399,6 +399,28 @@ def test_passes_cap_the_numerical_passes():
         solve_program(_program(8, 4), passes=0)
 
 
+def test_solver_options_reach_clarabel_and_the_certificate():
+    # A(8,4) = 16 (the extended Hamming code; published table row) is still certified with
+    # Clarabel settings overridden; the overrides are recorded, bad ones refused up front
+    from codesearch.bounds.fourpoint import solve_four_point
+    from codesearch.bounds.sdp import clarabel_options
+    from codesearch.errors import ParameterError
+
+    opts = {"max_iter": 400, "static_regularization_constant": 1e-10}
+    res = solve_four_point(8, 4, passes=1, solver_options=opts)
+    assert res["certified"] and res["value"] == 16
+    assert res["certificate"]["settings"]["solver_options"] == opts
+    assert clarabel_options({"max_iter": 400.0}) == {"max_iter": 400}
+    with pytest.raises(ParameterError, match="unknown clarabel setting"):
+        clarabel_options({"no_such_setting": 1})
+    with pytest.raises(ParameterError, match="takes a number"):
+        clarabel_options({"max_iter": "many"})
+    with pytest.raises(ParameterError, match="true or false"):
+        clarabel_options({"verbose": 1})
+    with pytest.raises(ParameterError, match="clarabel only"):
+        clarabel_options({"max_iter": 10}, "scs")
+
+
 def test_pair_solves_below_distance_8_take_one_pass():
     # A(8,4) = 16 (published table row): the pair solve at target 17 excludes it after the LP
     # pass and a single semidefinite pass (PAIR_PASSES_BELOW_8)

@@ -849,10 +849,10 @@ def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3,
                       row_labels=row_labels)
 
 
-@lru_cache(maxsize=64)
 def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
                      solver: str = "clarabel", quad_rows: bool = True,
-                     target: int | None = None, passes: int | None = None) -> dict[str, Any]:
+                     target: int | None = None, passes: int | None = None,
+                     solver_options: dict[str, Any] | None = None) -> dict[str, Any]:
     """Solve and certify the four-point program of binary ``(n, d)``, ``d`` even (see
     :func:`codesearch.bounds.sdp.solve_program`); the certificate is re-checked by the
     independent checker before returning (a disagreement raises
@@ -864,7 +864,17 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     (the certificate carries the ``target``). ``passes`` caps the numerical passes (default
     three, :func:`codesearch.bounds.sdp.solve_program`); with the pair blocks at distance 6
     the later passes cost hours and rarely move the certified integer, so long solves use
-    one (benchmarks/results_fourpoint.md)."""
+    one (benchmarks/results_fourpoint.md). ``solver_options`` overrides Clarabel settings
+    (:func:`codesearch.bounds.sdp.clarabel_options`); the certificate records them."""
+    options = tuple(sorted((solver_options or {}).items()))
+    return _solve_four_point(n, d, time_limit, solver, quad_rows, target, passes, options)
+
+
+@lru_cache(maxsize=64)
+def _solve_four_point(n: int, d: int, time_limit: float | None, solver: str, quad_rows: bool,
+                      target: int | None, passes: int | None,
+                      options: tuple[tuple[str, Any], ...]) -> dict[str, Any]:
+    """:func:`solve_four_point` with hashable arguments (cached per cell and settings)."""
     from codesearch.bounds.sdp import solve_program
     from codesearch.errors import VerificationError
     from codesearch.verify import check_certificate
@@ -872,7 +882,8 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     t0 = time.perf_counter()
     prog = _program(n, d, quad_rows=quad_rows, target=target)
     build = time.perf_counter() - t0
-    best = solve_program(prog, time_limit=time_limit, solver=solver, passes=passes)
+    best = solve_program(prog, time_limit=time_limit, solver=solver, passes=passes,
+                         solver_options=dict(options))
     best["build_seconds"] = build
     best["seconds"] = time.perf_counter() - t0
     best["target"] = target

@@ -284,20 +284,24 @@ class SdpProgram:
 
 
 def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
-                  solver: str = "clarabel", passes: int | None = None) -> dict[str, Any]:
+                  solver: str = "clarabel", passes: int | None = None,
+                  solver_options: dict[str, Any] | None = None) -> dict[str, Any]:
     """Solve ``prog`` in floating point and certify the best dual pass exactly.
 
     The Delsarte-rows LP dual is certified first (never weaker than the LP); then up to
     ``passes`` (default ``_PASSES``) semidefinite passes, each rounded and bounded exactly (see
-    :func:`solve_three_point`). Returns the result dict of the best certified pass (the
-    certificate carries ``kind``, ``blocks``, ``multipliers``, ``bound``, ``value``,
-    ``settings``; the caller adds the cell).
+    :func:`solve_three_point`). ``solver_options`` overrides Clarabel settings by name after
+    this module's own (for example ``{"max_iter": 600}``; see :func:`clarabel_options`);
+    they change only the numerical search for a dual, never what is certified. Returns the
+    result dict of the best certified pass (the certificate carries ``kind``, ``blocks``,
+    ``multipliers``, ``bound``, ``value``, ``settings``; the caller adds the cell).
     """
     import numpy as np
 
     n_passes = _PASSES if passes is None else passes
     if n_passes < 1:
         raise ParameterError(f"numerical passes must be at least 1, not {passes}")
+    options = clarabel_options(solver_options, solver)
     t0 = time.perf_counter()
     data, m0 = prog.data, prog.m0
     cap = np.array([float(c) for c in prog.caps])
@@ -314,7 +318,7 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
     for attempt in range(n_passes):
         t_pass = time.perf_counter()
         try:
-            sol = _solve_scaled(data, m0, sv, exps, remaining, solver)
+            sol = _solve_scaled(data, m0, sv, exps, remaining, solver, options)
         except (KeyboardInterrupt, SystemExit):
             raise
         except BaseException as exc:  # noqa: BLE001
@@ -348,6 +352,8 @@ def solve_program(prog: SdpProgram, *, time_limit: float | None = None,
             "passes": len(log),
             "round_bits": _ROUND_BITS,
         }
+        if options:
+            best["certificate"]["settings"]["solver_options"] = dict(options)
     return best
 
 
@@ -395,10 +401,46 @@ def _delsarte_pass(prog: SdpProgram) -> dict:
     return out
 
 
+def clarabel_options(options: dict[str, Any] | None, solver: str = "clarabel") -> dict[str, Any]:
+    """Check Clarabel setting overrides: known setting names with number or bool values.
+
+    Raises
+    ------
+    ParameterError
+        For an unknown name, a value of another type, or options given to another solver.
+    """
+    if not options:
+        return {}
+    if solver != "clarabel":
+        raise ParameterError(f"solver options apply to clarabel only, not {solver!r}")
+    import clarabel
+
+    defaults = clarabel.DefaultSettings()
+    out: dict[str, Any] = {}
+    for name, value in options.items():
+        if name.startswith("_") or not hasattr(defaults, name):
+            raise ParameterError(f"unknown clarabel setting {name!r}")
+        kind = type(getattr(defaults, name))
+        if kind is bool:
+            if not isinstance(value, bool):
+                raise ParameterError(f"clarabel setting {name!r} takes true or false, "
+                                     f"not {value!r}")
+        elif kind in (int, float):
+            if isinstance(value, bool) or not isinstance(value, (int, float)):
+                raise ParameterError(f"clarabel setting {name!r} takes a number, not {value!r}")
+            value = kind(value)
+        else:
+            raise ParameterError(f"clarabel setting {name!r} cannot be set here")
+        out[name] = value
+    return out
+
+
 def _solve_scaled(
-    data: Any, m0: float, sv: Any, exps: dict, time_limit: float | None, solver: str = "clarabel"
+    data: Any, m0: float, sv: Any, exps: dict, time_limit: float | None,
+    solver: str = "clarabel", options: dict[str, Any] | None = None,
 ) -> dict:
-    """One Clarabel solve of the program in scaled variables ``w = x * sv``."""
+    """One Clarabel solve of the program in scaled variables ``w = x * sv`` (``options``:
+    checked overrides of the settings below, :func:`clarabel_options`)."""
     import clarabel
     import numpy as np
     import scipy.sparse as sp
@@ -474,6 +516,8 @@ def _solve_scaled(
         settings.equilibrate_enable = False
         if time_limit is not None:
             settings.time_limit = float(time_limit)
+        for name, value in (options or {}).items():
+            setattr(settings, name, value)
         solution = clarabel.DefaultSolver(
             sp.csc_matrix((nv, nv)), qvec, A, b, cones, settings
         ).solve()
