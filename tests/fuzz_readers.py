@@ -267,6 +267,7 @@ def build_readers() -> list[Reader]:
         # every block family and a 4-set row: A(6,4) = 4 (published table row n=6, d=4)
         "four-point-sdp": four_point_pass_certificate(6, 4),
         "lp-odd-size": cert_of("lp-odd-size", [Params(2, 8, 3)]),
+        "lp-size-mod-4": cert_of("lp-size-mod-4", [Params(2, 9, 3)]),
         "distance-enumeration": json.loads(json.dumps(
             distance_enumeration(Params(2, 9, 4)).certificate)),
         "relation-chain": cert_of("relation-chain", [Params(2, n, d) for n in range(5, 10)

@@ -165,6 +165,67 @@ def test_odd_size_cut():
         pass
 
 
+def test_size_two_mod_four_fact_on_real_codes():
+    # The fact behind the cut, on random even-weight codes of sizes 2 mod 4 (n = 8..10):
+    # t_u = #{x : u.x odd} has the parity of u.sigma (sigma = sum of the words), and
+    # b_k = sum_{wt u = k} S_u^2 >= 2 (C(n,k) + K_k(s)), s = wt(sigma) even.
+    # Krawtchouk values from their definition as sign sums (Delsarte 1973; common practice).
+    import itertools
+    import math
+    import random
+
+    rng = random.Random(7)
+    for n in (8, 9, 10):
+        evens = [x for x in range(1 << n) if bin(x).count("1") % 2 == 0]
+        for M in (2, 6, 10, 14, 22):
+            code = rng.sample(evens, M)
+            sigma = 0
+            for x in code:
+                sigma ^= x
+            s = bin(sigma).count("1")
+            assert s % 2 == 0
+            for k in range(1, n + 1):
+                b_k = 0
+                n_even = 0
+                kraw = 0
+                for support in itertools.combinations(range(n), k):
+                    u = sum(1 << j for j in support)
+                    t_u = sum(bin(u & x).count("1") % 2 for x in code)
+                    assert t_u % 2 == bin(u & sigma).count("1") % 2
+                    b_k += (M - 2 * t_u) ** 2
+                    kraw += (-1) ** bin(u & sigma).count("1")
+                    n_even += bin(u & sigma).count("1") % 2 == 0
+                assert 2 * n_even == math.comb(n, k) + kraw
+                assert b_k >= 2 * (math.comb(n, k) + kraw), (n, M, k)
+
+
+def test_size_two_mod_four_cut():
+    from codesearch.bounds.integral import size_mod_4
+
+    # Published A(22,6) <= 6941, A(27,6) <= 157285, A(28,6) <= 291269 (Brouwer's table, from
+    # memory); the LP gives 6943, 157286, 291271 and the odd-size cut alone 6942, 157286,
+    # 291270, all sizes 2 mod 4. Odd d through A(n+1, d+1) (MacWilliams-Sloane ch. 2).
+    for n, d, want in [(22, 6, 6941), (21, 5, 6941), (27, 6, 157285), (26, 5, 157285),
+                       (28, 6, 291269), (27, 5, 291269)]:
+        res = size_mod_4(Params(2, n, d))
+        assert res is not None and res.value == want and res.method == "lp-size-mod-4"
+        ok, bound, reason = verify.check_certificate(res.certificate)
+        assert ok and bound == want, reason
+        assert not verify.check_certificate(dict(res.certificate, value=want - 1))[0]
+    # never below a published lower value: A(24,6) >= 16384 (published table); the cut gives
+    # 24105 there, one below the recalled upper value 24106 (see results_bounds_published.md)
+    res = size_mod_4(Params(2, 24, 6))
+    assert res.value == 24105 and res.value >= 16384
+    # a floor that is 0 mod 4 gains nothing: A(16,8) = 32 (RM(1,4) with complements)
+    assert size_mod_4(Params(2, 16, 8)) is None
+    bad = copy.deepcopy(size_mod_4(Params(2, 22, 6)).certificate)
+    bad["lp"]["y"][0] = "0/1"
+    try:
+        assert not verify.check_certificate(bad)[0]
+    except InputError:
+        pass
+
+
 def test_four_point_request_is_refused_with_its_size(capsys):
     # past this machine: refused in one line naming the size, exit 2, nothing solved
     with pytest.raises(SystemExit) as exc:

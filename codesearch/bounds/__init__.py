@@ -37,16 +37,17 @@ BOUNDS: dict[str, tuple[str, str]] = {
     "delsarte-lp": ("codesearch.bounds.delsarte", "delsarte_lp"),
     "delsarte-lp-plus": ("codesearch.bounds.delsarte", "delsarte_lp_plus"),
     "lp-odd-size": ("codesearch.bounds.integral", "odd_size"),
+    "lp-size-mod-4": ("codesearch.bounds.integral", "size_mod_4"),
     "distance-enumeration": ("codesearch.bounds.integral", "distance_enumeration"),
     "profile-lp": ("codesearch.bounds.profiles", "profile_lp"),
     "griesmer": ("codesearch.bounds.classical", "griesmer"),
 }
 
 #: Bounds computed by solving an optimisation problem (skipped when ``lp=False``).
-_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "lp-odd-size", "distance-enumeration",
-                       "profile-lp"})
+_COMPUTED = frozenset({"delsarte-lp", "delsarte-lp-plus", "lp-odd-size", "lp-size-mod-4",
+                       "distance-enumeration", "profile-lp"})
 #: Computed bounds that take no solver options.
-_PLAIN = frozenset({"lp-odd-size", "distance-enumeration", "profile-lp"})
+_PLAIN = frozenset({"lp-odd-size", "lp-size-mod-4", "distance-enumeration", "profile-lp"})
 
 #: Longest codes the front end accepts (closed forms stay exact far beyond; this only keeps
 #: a typo such as n = 10**9 from hanging the process).

@@ -32,6 +32,19 @@ the ``A_i`` and sum, as in weak duality). So ``M = floor(V)`` is impossible when
 and ``M^2 - V M + Y > 0``; the bound is then ``floor(V) - 1`` (A(24,6) <= 24106,
 A(17,6) <= 340). Certificate kind ``lp-odd-size``: the cell, the value and the LP certificate.
 
+Sizes 2 mod 4 (:func:`size_mod_4`, binary, ``d`` even or through ``A(n+1, d+1)``): put
+``t_u = #{x in C : u.x = 1}``, so ``S_u = M - 2 t_u``, and ``t_u = u.sigma (mod 2)`` with
+``sigma = sum_{x in C} x`` (mod 2). For ``M = 2 (mod 4)`` every ``u`` with ``u.sigma = 0``
+has ``t_u`` even and ``S_u = 2 (mod 4)``, so ``S_u^2 >= 4``; of the ``C(n,k)`` words of weight
+``k``, ``(C(n,k) + K_k(s))/2`` have ``u.sigma = 0`` (``s`` the weight of ``sigma``; their sign
+sum is ``K_k(s)``). Hence ``b_k >= 2 (C(n,k) + K_k(s))``, and the same weak-duality step as
+above gives ``M - 1 <= V - 1 - 2 Z(s) / M`` with ``Z(s) = sum_k y_k (C(n,k) + K_k(s))``. The
+code may be taken with even weights only (as above), so ``s`` is even; ``sigma`` is not
+known, so the size is excluded when ``M^2 - V M + 2 min_s Z(s) > 0`` over the even ``s``. With
+the odd-size cut this walks down from ``floor(V)``: A(22,6) <= 6941, A(27,6) <= 157285,
+A(28,6) <= 291269 (each 6943, 157286, 291270 excluded in turn). Certificate kind
+``lp-size-mod-4``: the cell, the value and the LP certificate.
+
 The certificate (kind ``distance-enumeration``) holds the cell, the claimed ``U`` and the
 Delsarte LP certificate that bounds every size above ``V``;
 :mod:`codesearch.verify.integral` redoes the whole search with its own code.
@@ -57,7 +70,7 @@ from codesearch.model import Params
 from codesearch.results import BoundResult
 
 __all__ = ["distance_enumeration", "size_is_impossible", "MAX_NODES", "enumeration_bound",
-           "odd_size", "odd_size_excluded"]
+           "odd_size", "odd_size_excluded", "size_mod_4", "parity_walk"]
 
 #: Search nodes allowed per size M (about a second of Python per 100 000 on this machine).
 MAX_NODES = 100_000
@@ -233,3 +246,53 @@ def odd_size(params: Params) -> BoundResult | None:
     return BoundResult(params, top - 1, "lp-odd-size", certificate=out,
                        note=f"LP gives {top}, odd size {top} excluded by the parity of the "
                        f"transform" + ("" if (n, d) == (params.n, params.d) else f" via A({n},{d})"))
+
+
+def parity_walk(n: int, top: int, bound: "Fraction", y: list) -> int:
+    """Least size reached from ``top`` (the LP's floor) by excluding sizes one at a time:
+    odd ones by the odd-size cut, ones that are 2 mod 4 by the cut of the module notes
+    (``y``: the LP dual of the Delsarte rows, ``k = 1..n``; ``n`` the even-weight length)."""
+    from fractions import Fraction
+
+    ys = [Fraction(v) for v in y]
+    y_weight = sum(v * comb(n, k) for k, v in enumerate(ys, start=1))
+    z_min = min(sum(v * (comb(n, k) + _kraw(n, k, s)) for k, v in enumerate(ys, start=1))
+                for s in range(0, n + 1, 2))
+    M = top
+    while M > 1:
+        if M % 2 == 1:
+            excluded = M * M - bound * M + y_weight > 0
+        elif M % 4 == 2:
+            excluded = M * M - bound * M + 2 * z_min > 0
+        else:
+            excluded = False
+        if not excluded:
+            break
+        M -= 1
+    return M
+
+
+def size_mod_4(params: Params) -> BoundResult | None:
+    """Delsarte's LP with the odd-size and the size-2-mod-4 cuts (binary); None unless a
+    size 2 mod 4 is excluded (the odd-size cut alone is :func:`odd_size`)."""
+    from fractions import Fraction
+
+    from codesearch.bounds import best_lp_certificate
+
+    if params.q != 2 or params.d < 3:
+        return None
+    n, d = (params.n + 1, params.d + 1) if params.d % 2 else (params.n, params.d)
+    lp = best_lp_certificate(Params(2, n, d))
+    if lp is None:
+        return None
+    cert = lp.certificate
+    top = lp.value
+    value = parity_walk(n, top, Fraction(cert["bound"]), cert["y"])
+    if not any(M % 4 == 2 for M in range(value + 1, top + 1)):
+        return None
+    out = {"kind": "lp-size-mod-4", "q": 2, "n": params.n, "d": params.d, "value": value,
+           "lp": dict(cert)}
+    via = "" if (n, d) == (params.n, params.d) else f" via A({n},{d})"
+    return BoundResult(params, value, "lp-size-mod-4", certificate=out,
+                       note=f"LP gives {top}; sizes {value + 1}..{top} excluded by the odd-size "
+                       f"and size-2-mod-4 cuts{via}")

@@ -24,6 +24,7 @@ BOUND_LABELS = {
     "delsarte-lp": "lp",
     "delsarte-lp-plus": "lp+",
     "lp-odd-size": "lp-odd",
+    "lp-size-mod-4": "lp-mod4",
     "distance-enumeration": "lp-int",
     "three-point-sdp": "sdp",
     "qary-three-point-sdp": "sdp-q",

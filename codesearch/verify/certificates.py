@@ -15,7 +15,8 @@ from codesearch.errors import InputError
 from codesearch.model import MAX_Q
 from codesearch.verify import strict
 from codesearch.verify.four_point import check_four_point_certificate
-from codesearch.verify.integral import check_distance_enumeration, check_odd_size
+from codesearch.verify.integral import (check_distance_enumeration, check_odd_size,
+                                        check_size_mod_4)
 from codesearch.verify.lp import check_delsarte_lp, check_delsarte_lp_qcw
 from codesearch.verify.profile_lp import check_profile_lp
 from codesearch.verify.qary_three_point import check_qary_three_point
@@ -37,6 +38,7 @@ CERTIFICATE_CHECKERS: dict[str, Checker] = {
     "four-point-sdp": check_four_point_certificate,
     # these nest certificates of any kind, re-checked through the table's entry point
     "lp-odd-size": lambda cert: check_odd_size(cert, check_certificate),
+    "lp-size-mod-4": lambda cert: check_size_mod_4(cert, check_certificate),
     "distance-enumeration": lambda cert: check_distance_enumeration(cert, check_certificate),
     "relation-chain": lambda cert: check_relation_chain(cert, check_certificate),
     "profile-lp": lambda cert: check_profile_lp(cert, check_certificate),

@@ -31,7 +31,8 @@ from codesearch.verify import strict
 #: the table's entry point, passed in by :mod:`codesearch.verify.certificates`
 Checker = Callable[[Mapping[str, Any]], tuple[bool, "int | None", str]]
 
-__all__ = ["check_distance_enumeration", "check_odd_size", "MAX_LEAVES", "MAX_SIZES"]
+__all__ = ["check_distance_enumeration", "check_odd_size", "check_size_mod_4", "MAX_LEAVES",
+           "MAX_SIZES"]
 
 #: Leaves the checker is willing to visit, all sizes together (else: refused as past the cap).
 MAX_LEAVES = 2_000_000
@@ -133,6 +134,50 @@ def check_odd_size(cert: Mapping[str, Any], check_certificate: Checker
     if claimed != M - 1 or M % 2 == 0 or not M * M - value * M + weight > 0:
         return False, None, f"size {M} is not excluded by the odd-size cut"
     return True, claimed, f"A({n0},{d0}) <= {claimed}: LP gives {M}, odd size {M} excluded"
+
+
+def check_size_mod_4(cert: Mapping[str, Any], check_certificate: Checker
+                     ) -> tuple[bool, int | None, str]:
+    """Re-check an ``lp-size-mod-4`` certificate: the nested Delsarte LP certificate (exact
+    value ``V``, dual ``y``) proves ``A <= M0 = floor(V)``; then every size ``M`` from
+    ``value + 1`` to ``M0`` must be excluded, an odd one by ``M^2 - V M + sum_k y_k C(n,k) > 0``
+    and one that is 2 mod 4 by ``M^2 - V M + 2 min_s sum_k y_k (C(n,k) + K_k(s)) > 0`` over the
+    even ``s`` (a code of size 2 mod 4 has ``b_k >= 2 (C(n,k) + K_k(s))``, ``s`` the even weight
+    of the sum of its words; :mod:`codesearch.bounds.integral`); a size 0 mod 4 cannot be."""
+    from fractions import Fraction
+
+    from codesearch.verify.lp import _kraw_columns
+
+    n0, d0, n, d, lp = _cell_and_lp(cert)
+    claimed = cert["value"]
+    ok, top, why = check_certificate(lp)
+    if not ok or top is None:
+        return False, None, f"LP certificate: {why}"
+    if claimed > top:
+        return False, None, f"claimed {claimed} but the LP alone proves {top}"
+    value = Fraction(lp["bound"])
+    ys = [Fraction(v) for v in lp["y"]]
+    if len(ys) > n:
+        return False, None, f"LP certificate has {len(ys)} multipliers for length {n}"
+    weight = sum(v * math.comb(n, k) for k, v in enumerate(ys, start=1))
+    table = _kraw_columns(2, n)  # row x: K_k(x) for k = 0..n
+    z_min = None
+    for s, row in enumerate(table):
+        if s % 2:
+            continue
+        z = sum(v * (math.comb(n, k) + row[k]) for k, v in enumerate(ys, start=1))
+        z_min = z if z_min is None else min(z_min, z)
+    for M in range(claimed + 1, top + 1):
+        if M % 2 == 1:
+            gone = M * M - value * M + weight > 0
+        elif M % 4 == 2:
+            gone = M * M - value * M + 2 * z_min > 0
+        else:
+            gone = False
+        if not gone:
+            return False, None, f"size {M} is not excluded by the odd-size or 2-mod-4 cut"
+    return True, claimed, (f"A({n0},{d0}) <= {claimed}: LP gives {top}, sizes "
+                           f"{claimed + 1}..{top} excluded by the parity cuts")
 
 
 def check_distance_enumeration(cert: Mapping[str, Any], check_certificate: Checker
