@@ -223,18 +223,26 @@ def odd_size_excluded(M: int, bound: "Fraction", y_weight: "Fraction") -> bool:
     return M % 2 == 1 and M * M - bound * M + y_weight > 0
 
 
-def odd_size(params: Params) -> BoundResult | None:
-    """Delsarte's LP with the odd-size parity cut (binary); None when it gains nothing."""
-    from fractions import Fraction
-
+def _even_cell_lp(params: Params) -> tuple[int, int, BoundResult] | None:
+    """``(n, d, LP result)`` of the even-distance cell bounding ``params`` (odd ``d`` through
+    ``A(n+1, d+1)``); None for a non-binary cell, ``d < 3`` or no certified LP."""
     from codesearch.bounds import best_lp_certificate
 
     if params.q != 2 or params.d < 3:
         return None
     n, d = (params.n + 1, params.d + 1) if params.d % 2 else (params.n, params.d)
     lp = best_lp_certificate(Params(2, n, d))
-    if lp is None:
+    return None if lp is None else (n, d, lp)
+
+
+def odd_size(params: Params) -> BoundResult | None:
+    """Delsarte's LP with the odd-size parity cut (binary); None when it gains nothing."""
+    from fractions import Fraction
+
+    found = _even_cell_lp(params)
+    if found is None:
         return None
+    n, d, lp = found
     cert = lp.certificate
     bound = Fraction(cert["bound"])
     y_weight = sum(Fraction(v) * comb(n, k) for k, v in enumerate(cert["y"], start=1))
@@ -277,14 +285,10 @@ def size_mod_4(params: Params) -> BoundResult | None:
     size 2 mod 4 is excluded (the odd-size cut alone is :func:`odd_size`)."""
     from fractions import Fraction
 
-    from codesearch.bounds import best_lp_certificate
-
-    if params.q != 2 or params.d < 3:
+    found = _even_cell_lp(params)
+    if found is None:
         return None
-    n, d = (params.n + 1, params.d + 1) if params.d % 2 else (params.n, params.d)
-    lp = best_lp_certificate(Params(2, n, d))
-    if lp is None:
-        return None
+    n, d, lp = found
     cert = lp.certificate
     top = lp.value
     value = parity_walk(n, top, Fraction(cert["bound"]), cert["y"])
