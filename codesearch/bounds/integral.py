@@ -269,7 +269,7 @@ def parity_walk(n: int, top: int, bound: "Fraction", y: list) -> int:
     M = top
     while M > 1:
         if M % 2 == 1:
-            excluded = M * M - bound * M + y_weight > 0
+            excluded = odd_size_excluded(M, bound, y_weight)
         elif M % 4 == 2:
             excluded = M * M - bound * M + 2 * z_min > 0
         else:
