@@ -247,9 +247,11 @@ def _four_point_stage(task: CellTask, errors: list[tuple[str, str]]
                                        f"{task.four_point:,.0f} s")
     try:
         # as many solves with the pair moment blocks as fit under the cap (at least one:
-        # the plain estimate fits)
+        # the plain estimate fits), then a size-cut solve if one more fits
+        cap = min(task.four_point, fourpoint.MAX_SECONDS)
+        pairs = size.pair_solves_within(cap)
         found = fourpoint.four_point_bound(
-            p, pair_solves=size.pair_solves_within(min(task.four_point, fourpoint.MAX_SECONDS)))
+            p, pair_solves=pairs, size_cut=size.pair_seconds * (pairs + 1) <= cap)
     except Exception as exc:  # a failing bound must not lose the cell's other work
         errors.append((FOUR_POINT_TASK, _one_line(exc)))
         return None, None, _one_line(exc)

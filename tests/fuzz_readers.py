@@ -233,6 +233,17 @@ def four_point_pass_certificate(n: int, d: int, target: int | None = None) -> di
                                       even=True, **extra)))
 
 
+def _size_cut_certificate() -> dict:
+    """A(9,4) <= 24 (A(9,4) = 20: published table row n=9, d=4): Delsarte's LP proves 25 and
+    the four-point program with the odd-size cut excludes 25."""
+    from codesearch.bounds import all_bounds
+    from codesearch.bounds.fourpoint import four_point_size_cut
+    from codesearch.model import Params
+
+    lp = all_bounds(Params(2, 9, 4))["delsarte-lp"].certificate
+    return json.loads(json.dumps(four_point_size_cut(9, 4, lp, passes=1)["certificate"]))
+
+
 def build_readers() -> list[Reader]:
     """Every reader with its valid seed (takes a few seconds: the SDP seeds are solved)."""
     from codesearch import bounds
@@ -266,6 +277,7 @@ def build_readers() -> list[Reader]:
             qary_three_point_bound(Params(3, 5, 3)).certificate)),
         # every block family and a 4-set row: A(6,4) = 4 (published table row n=6, d=4)
         "four-point-sdp": four_point_pass_certificate(6, 4),
+        "four-point-size-cut": _size_cut_certificate(),
         "lp-odd-size": cert_of("lp-odd-size", [Params(2, 8, 3)]),
         "lp-size-mod-4": cert_of("lp-size-mod-4", [Params(2, 9, 3)]),
         "distance-enumeration": json.loads(json.dumps(

@@ -130,6 +130,30 @@ every cell gains: A(20,4) at the target 26169 stays at the LP's 26214.4 (45 minu
 the pair blocks without families 2-4 give only 2286.6 at A(20,6) in 19 minutes (the solve
 time is in the 4-set variables and rows, which both programs share).
 
+Size cuts (a code of exactly ``U`` words)
+-----------------------------------------
+For a code ``C`` of ``M`` words and a word ``u`` put ``S_u = sum_{x in C} (-1)^(u.x)``; then
+``b_k = sum_{|u| = k} S_u^2 = M sum_i A_i K_k(i)`` (``A_i`` the distance distribution,
+``A_0 = 1``). Two congruences bound ``b_k`` from below (:mod:`codesearch.bounds.integral`
+proves them for Delsarte's LP):
+
+* ``M`` odd: every ``S_u`` is odd, so ``b_k >= C(n,k)``;
+* ``M = 2 mod 4`` and all weights even: ``S_u = M - 2 t_u`` with ``t_u = u.sigma (mod 2)``,
+  ``sigma`` the sum of the words (of even weight ``s``), so ``S_u = 2 mod 4`` on the
+  ``(C(n,k) + K_k(s)) / 2`` words of weight ``k`` orthogonal to ``sigma`` and
+  ``b_k >= 2 (C(n,k) + K_k(s))``; ``s`` is not known, so one program per even ``s`` (or one
+  with the least right-hand side over ``s``, which is weaker but covers them all).
+
+With ``size_cut`` (:func:`size_cut_floors`) the rows ``("size-cut", k)``,
+``U sum_i A_i K_k(i) >= c_k``, are added to the program at target ``U``; they hold for codes
+of exactly ``U`` words only, so such a solve *excludes the size* ``U`` when its bound is
+below ``U`` and proves nothing else. :func:`four_point_size_cut` combines the exclusions
+with a certificate of ``A <= U`` into one of ``A <= U - 1`` (kind ``four-point-size-cut``).
+Measured (benchmarks/results_fourpoint.md, seventh round): A(18,8) <= 72 (odd-size cut, one
+solve) and A(19,6) <= 1237 (the least 2-mod-4 cut, one solve), the published values; at
+A(17,8), size 38, the cut excludes the weights s = 0..6 of the sum but not s = 8, 10 (38.04,
+38.07), so A(17,8) stays at 38.
+
 Size, refusal and certificate
 -----------------------------
 :func:`four_point_size` counts the program exactly before anything is built: only free
@@ -173,7 +197,7 @@ __all__ = ["FourPointSize", "four_point_size", "check_four_point_fits", "four_po
            "four_point_data", "FourPointData", "canonical_profile", "profile_distances",
            "block_rows", "FAMILIES", "MEMORY_BYTES", "MAX_BUILD_TERMS", "MAX_SECONDS",
            "UNCOUNTED_N", "quad_cap", "solve_four_point", "PAIR_SOLVES", "PAIR_PASSES_BELOW_8",
-           "pair_moment_rows"]
+           "pair_moment_rows", "SIZE_CUTS", "size_cut_floors", "four_point_size_cut"]
 
 #: Memory allowed to one solve (this machine has 24 GB, shared).
 MEMORY_BYTES = 20 * 10**9
@@ -526,7 +550,8 @@ def check_four_point_fits(params: Params) -> FourPointSize:
 
 @lru_cache(maxsize=8)
 def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
-                    families: tuple = (2, 3, 4), target: int | None = None) -> FourPointData:
+                    families: tuple = (2, 3, 4), target: int | None = None,
+                    size_cut: tuple | None = None) -> FourPointData:
     """Build the exact four-point program of binary ``(n, d)``.
 
     Parameters
@@ -543,6 +568,9 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
         Add the moment matrix of the sets of at most two words (families 5 and 6, see the
         module notes) with the corner of a code of ``target`` words: the program then
         bounds only codes of at least ``target`` words.
+    size_cut : tuple, optional
+        ``(cut, s)`` as in :func:`size_cut_floors`: add the rows ``("size-cut", k)`` that hold
+        for codes of exactly ``target`` words (module notes, "Size cuts").
 
     Returns
     -------
@@ -635,10 +663,30 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
                         # sum (-1)^|B'| x(A u B') >= 0, written as <= 0
                         terms.append((var(_set_key(prof, pts, d, even)), -(-1) ** r))
                 collector.add(("quad", *prof, mask), terms, 0)
+    if size_cut is not None:
+        if target is None:
+            raise ParameterError("a size cut needs the target size of the code")
+        from codesearch.bounds.krawtchouk import krawtchouk
+
+        floors = size_cut_floors(n, target, *size_cut)
+        cut_rows = []
+        for k in range(n + 1):
+            # target * sum_i A_i K_k(i) >= c_k, A_i = C(n,i) x(pair at i), A_0 = 1
+            terms = [(var((i, i, 0) if i else ()), -target * comb(n, i) * krawtchouk(2, n, k, i))
+                     for i in range(n + 1)]
+            one = RowCollector()
+            one.add(("size-cut", k), terms, -floors[k])
+            cut_rows += one.rows
+        # Every k is kept, though the rows of k and n - k coincide for even codes: a
+        # numerical device, measured at A(18,8), size 73 (one pass, default settings): the
+        # solver's dual certifies 72.9989 with both rows and only 73.0019 with one.
+        rows_out = list(collector.rows) + cut_rows
+    else:
+        rows_out = list(collector.rows)
     objective = tuple(list(base.objective) + [0] * len(quads))
     return FourPointData(n=n, d=d, even=even, triangles=tuple(base.triangles) + tuple(quads),
                          objective=objective, blocks=tuple(blocks),
-                         rows=tuple(collector.rows), block_rows=rows_of, terms=total_terms)
+                         rows=tuple(rows_out), block_rows=rows_of, terms=total_terms)
 
 
 def _reduced_entry(n: int, i: int, k1: int, k2: int, r: tuple[int, int], s: tuple[int, int],
@@ -782,6 +830,37 @@ def _split_entry(full_entry, r, s, sign: int, i: int) -> tuple[int, dict[int, in
 
 
 # --------------------------------------------------------------------------------------------
+# Size cuts.
+
+#: The size cuts: ``"odd"`` for odd sizes, ``"2-mod-4"`` for sizes 2 mod 4 (module notes).
+SIZE_CUTS = ("odd", "2-mod-4")
+
+
+def size_cut_floors(n: int, size: int, cut: str, s: int | None = None) -> list[int]:
+    """``c_k`` (``k = 0..n``) with ``size * sum_i A_i K_k(i) >= c_k`` for every binary code of
+    length ``n``, all weights even and exactly ``size`` words (module notes, "Size cuts").
+
+    ``cut`` is ``"odd"`` (odd ``size``: ``c_k = C(n,k)``) or ``"2-mod-4"`` (``size = 2 mod
+    4``: ``c_k = 2 (C(n,k) + K_k(s))`` for the sum of the words of even weight ``s``, or the
+    least of these over the even ``s`` when ``s`` is None)."""
+    from codesearch.bounds.krawtchouk import krawtchouk
+
+    if cut == "odd":
+        if size % 2 == 0:
+            raise ParameterError(f"the odd-size cut is for odd sizes, not {size}")
+        return [comb(n, k) for k in range(n + 1)]
+    if cut != "2-mod-4":
+        raise ParameterError(f"unknown size cut {cut!r}; choose from {', '.join(SIZE_CUTS)}")
+    if size % 4 != 2:
+        raise ParameterError(f"the 2-mod-4 cut is for sizes 2 mod 4, not {size}")
+    if s is not None and not (0 <= s <= n and s % 2 == 0):
+        raise ParameterError(f"the sum of the words has an even weight 0..{n}, not {s}")
+    weights = range(0, n + 1, 2) if s is None else (s,)
+    return [2 * (comb(n, k) + min(krawtchouk(2, n, k, w) for w in weights))
+            for k in range(n + 1)]
+
+
+# --------------------------------------------------------------------------------------------
 # Caps, scaling and the solve.
 
 
@@ -803,13 +882,14 @@ def _pow2(x: float) -> int:
 
 
 def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3, 4),
-             target: int | None = None):
+             target: int | None = None, size_cut: tuple | None = None):
     """The solver's view of the program: the exact data, proven caps, the first scaling and
     the names written into the certificate (families 2-4 name their rows ``(i1, i2)``)."""
     from codesearch.bounds.sdp import SdpProgram
     from codesearch.bounds.terwilliger import shape_count, variable_cap
 
-    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families, target=target)
+    data = four_point_data(n, d, True, quad_rows=quad_rows, families=families, target=target,
+                           size_cut=size_cut)
     radius = (d - 1) // 2
     m0 = 2.0**n / sum(comb(n, r) for r in range(radius + 1))
     caps, shapes = [], []
@@ -852,7 +932,8 @@ def _program(n: int, d: int, *, quad_rows: bool = True, families: tuple = (2, 3,
 def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
                      solver: str = "clarabel", quad_rows: bool = True,
                      target: int | None = None, passes: int | None = None,
-                     solver_options: dict[str, Any] | None = None) -> dict[str, Any]:
+                     solver_options: dict[str, Any] | None = None,
+                     size_cut: tuple | None = None) -> dict[str, Any]:
     """Solve and certify the four-point program of binary ``(n, d)``, ``d`` even (see
     :func:`codesearch.bounds.sdp.solve_program`); the certificate is re-checked by the
     independent checker before returning (a disagreement raises
@@ -865,22 +946,35 @@ def solve_four_point(n: int, d: int, *, time_limit: float | None = None,
     three, :func:`codesearch.bounds.sdp.solve_program`); with the pair blocks at distance 6
     the later passes cost hours and rarely move the certified integer, so long solves use
     one (benchmarks/results_fourpoint.md). ``solver_options`` overrides Clarabel settings
-    (:func:`codesearch.bounds.sdp.clarabel_options`); the certificate records them."""
+    (:func:`codesearch.bounds.sdp.clarabel_options`); the certificate records them.
+
+    ``size_cut`` (``(cut, s)``, :func:`size_cut_floors`; needs ``target``) adds the rows that
+    hold for codes of exactly ``target`` words: the result's ``excluded`` says whether the
+    bound is below ``target``, and its certificate is only an exclusion, re-checked by
+    :func:`codesearch.verify.four_point.check_size_cut_exclusion` and used inside a
+    ``four-point-size-cut`` certificate (:func:`four_point_size_cut`)."""
     options = tuple(sorted((solver_options or {}).items()))
-    return _solve_four_point(n, d, time_limit, solver, quad_rows, target, passes, options)
+    cut = None if size_cut is None else (size_cut[0], size_cut[1])
+    return _solve_four_point(n, d, time_limit, solver, quad_rows, target, passes, options, cut)
 
 
 @lru_cache(maxsize=64)
 def _solve_four_point(n: int, d: int, time_limit: float | None, solver: str, quad_rows: bool,
                       target: int | None, passes: int | None,
-                      options: tuple[tuple[str, Any], ...]) -> dict[str, Any]:
+                      options: tuple[tuple[str, Any], ...], size_cut: tuple | None = None
+                      ) -> dict[str, Any]:
     """:func:`solve_four_point` with hashable arguments (cached per cell and settings)."""
     from codesearch.bounds.sdp import solve_program
     from codesearch.errors import VerificationError
     from codesearch.verify import check_certificate
+    from codesearch.verify.four_point import check_size_cut_exclusion
 
+    if size_cut is not None:
+        if target is None:
+            raise ParameterError("a size cut needs the target size of the code")
+        size_cut_floors(n, target, *size_cut)  # refuses a cut that does not fit the size
     t0 = time.perf_counter()
-    prog = _program(n, d, quad_rows=quad_rows, target=target)
+    prog = _program(n, d, quad_rows=quad_rows, target=target, size_cut=size_cut)
     build = time.perf_counter() - t0
     best = solve_program(prog, time_limit=time_limit, solver=solver, passes=passes,
                          solver_options=dict(options))
@@ -895,11 +989,87 @@ def _solve_four_point(n: int, d: int, time_limit: float | None, solver: str, qua
         if target is not None:
             best["certificate"].update({"target": target, "value": best["value"]})
         t1 = time.perf_counter()
-        valid, bound, reason = check_certificate(best["certificate"])
+        if size_cut is None:
+            valid, bound, reason = check_certificate(best["certificate"])
+            valid = valid and bound == best["value"]
+        else:
+            best["certificate"]["size_cut"] = {"cut": size_cut[0], "sum_weight": size_cut[1]}
+            valid, total, reason = check_size_cut_exclusion(best["certificate"])
+            valid = valid and total == best["exact"]
         best["check_seconds"] = time.perf_counter() - t1
-        if not valid or bound != best["value"]:
+        if not valid:
             raise VerificationError(f"four-point certificate for A({n},{d}) rejected: {reason}")
+    if size_cut is not None:
+        best["excluded"] = bool(best["certified"]) and best["exact"] < target
     return best
+
+
+def four_point_size_cut(n: int, d: int, upper: dict[str, Any], *,
+                        time_limit: float | None = None, solver: str = "clarabel",
+                        passes: int | None = None,
+                        solver_options: dict[str, Any] | None = None,
+                        max_solves: int | None = None, log: Any = None) -> dict[str, Any]:
+    """Exclude the size ``U`` that the certificate ``upper`` proves for binary ``(n, d)``
+    (``d`` even) with size cuts, and so prove ``A(n, d) <= U - 1``.
+
+    ``U`` odd: one solve with the odd-size cut. ``U = 2 mod 4``: first one solve with the
+    least right-hand side over the weights ``s`` of the sum of the words; when it does not
+    exclude ``U``, one solve per even ``s`` (each must exclude it). ``U = 0 mod 4`` has no
+    cut. Every solve has the pair moment blocks at target ``U`` (module notes). At most
+    ``max_solves`` solves (``1``: only the first). ``log``, when given, is called with one line
+    per solve.
+
+    Returns
+    -------
+    dict
+        ``certified`` (all needed exclusions found), ``value`` (``U - 1`` or ``U``),
+        ``solves`` (per solve: ``cut``, ``s``, ``exact_float``, ``excluded``, ``seconds``) and
+        ``certificate``: kind ``four-point-size-cut`` with ``upper`` and the ``exclusions``,
+        re-checked by :func:`codesearch.verify.check_certificate` before it is returned (None
+        when not certified).
+
+    Raises
+    ------
+    ParameterError
+        ``upper`` does not prove a bound for this cell, or its size is 0 mod 4.
+    """
+    from codesearch.errors import VerificationError
+    from codesearch.verify import check_certificate
+
+    ok, size, why = check_certificate(upper, (2, n, d))
+    if not ok or size is None:
+        raise ParameterError(f"the upper certificate does not bound A({n},{d}): {why}")
+    if size % 4 == 0:
+        raise ParameterError(f"A({n},{d}) <= {size}: no size cut for sizes 0 mod 4")
+    plans: list[tuple[str, int | None]] = ([("odd", None)] if size % 2 else
+                                           [("2-mod-4", None)])
+    exclusions, solves = [], []
+    while plans:
+        if max_solves is not None and len(solves) >= max_solves:
+            return {"certified": False, "value": size, "solves": solves, "certificate": None}
+        cut = plans.pop(0)
+        got = solve_four_point(n, d, time_limit=time_limit, solver=solver, target=size,
+                               passes=passes, solver_options=solver_options, size_cut=cut)
+        solves.append({"cut": cut[0], "s": cut[1], "exact_float": got.get("exact_float"),
+                       "excluded": got["excluded"], "seconds": got["seconds"]})
+        if log is not None:
+            log(f"A({n},{d}) size {size}, cut {cut[0]}"
+                + ("" if cut[1] is None else f" s={cut[1]}")
+                + f": exact {got.get('exact_float')}, "
+                + ("excluded" if got["excluded"] else "not excluded")
+                + f" ({got['seconds']:.0f} s)")
+        if got["excluded"]:
+            exclusions.append(got["certificate"])
+        elif cut == ("2-mod-4", None):
+            plans = [("2-mod-4", s) for s in range(0, n + 1, 2)]
+        else:
+            return {"certified": False, "value": size, "solves": solves, "certificate": None}
+    cert = {"kind": "four-point-size-cut", "q": 2, "n": n, "d": d, "value": size - 1,
+            "upper": upper, "exclusions": exclusions}
+    valid, bound, reason = check_certificate(cert)
+    if not valid or bound != size - 1:
+        raise VerificationError(f"size-cut certificate for A({n},{d}) rejected: {reason}")
+    return {"certified": True, "value": size - 1, "solves": solves, "certificate": cert}
 
 
 def _pair_refinement(n: int, d: int, solves: int, time_limit: float | None, solver: str,
@@ -952,7 +1122,8 @@ def _known_size(n: int, d: int) -> int:
 
 def four_point_bound(params: Params, *, time_limit: float | None = None,
                      solver: str | None = None, pair_solves: int | None = None,
-                     lower: int | None = None) -> BoundResult | None:
+                     lower: int | None = None, size_cut: bool | None = None
+                     ) -> BoundResult | None:
     """The four-point bound on ``A(n, d)`` with an exact certificate.
 
     Up to ``pair_solves`` (default :data:`PAIR_SOLVES`, fewer when they would pass
@@ -960,6 +1131,11 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     (:func:`_pair_refinement`; ``lower``, the size of a known code, steers the targets and
     defaults to the construction library's); the certificate of the least value is
     returned. With ``pair_solves=0``, or when none is certified, the plain program.
+    Then, when the value ``U`` is odd or 2 mod 4 and ``size_cut`` (default: when one more pair
+    solve fits in :data:`MAX_SECONDS`), one solve with the size cut at ``U``
+    (:func:`four_point_size_cut` with ``max_solves=1``: the odd-size cut, or the least 2-mod-4
+    cut over ``s``); when it excludes ``U`` the result is ``U - 1`` with a
+    ``four-point-size-cut`` certificate.
 
     Returns
     -------
@@ -981,7 +1157,10 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     except ParameterError:
         return None
     n, d = _program_cell(params)
-    pair_solves = min(pair_solves, four_point_size(n, d).pair_solves_within())
+    size = four_point_size(n, d)
+    pair_solves = min(pair_solves, size.pair_solves_within())
+    if size_cut is None:
+        size_cut = size.pair_seconds * (pair_solves + 1) <= MAX_SECONDS
     res = None
     if pair_solves:
         known = _known_size(n, d) if lower is None else lower
@@ -990,6 +1169,16 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
         res = solve_four_point(n, d, time_limit=time_limit, solver=solver)
     cert = dict(res["certificate"]) if res["certificate"] is not None else None
     value = res["value"]
+    cut_note = ""
+    if size_cut and cert is not None and res["certified"] and value % 4:
+        got = four_point_size_cut(n, d, cert, time_limit=time_limit, solver=solver,
+                                  passes=PAIR_PASSES_BELOW_8 if d < 8 else None, max_solves=1)
+        last = got["solves"][-1]
+        cut_note = (f"; size {value} with the {last['cut']} cut: exact "
+                    f"{last['exact_float'] or math.nan:.6f}, "
+                    f"{'excluded' if got['certified'] else 'kept'}")
+        if got["certified"]:
+            cert, value = dict(got["certificate"]), got["value"]
     if cert is not None:
         cert.update({"n": params.n, "d": params.d})
     elif math.isfinite(res["float_value"]):
@@ -997,6 +1186,7 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     via = "" if (n, d) == (params.n, params.d) else f" via A({n},{d})"
     note = (f"four-point SDP{via}; float optimum {res['float_value']:.6f}, exact dual bound "
             f"{res['exact_float']:.6f}")
+    note += cut_note
     if not res["certified"]:
         note += f"; uncertified: {res['reason']}"
     return BoundResult(params=params, value=value, method="four-point-sdp", certificate=cert,

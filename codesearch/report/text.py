@@ -29,6 +29,7 @@ BOUND_LABELS = {
     "three-point-sdp": "sdp",
     "qary-three-point-sdp": "sdp-q",
     "four-point-sdp": "sdp4",
+    "four-point-size-cut": "sdp4-cut",
 }
 
 

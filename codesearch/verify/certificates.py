@@ -14,7 +14,7 @@ from typing import Any, Callable, Mapping
 from codesearch.errors import InputError
 from codesearch.model import MAX_Q
 from codesearch.verify import strict
-from codesearch.verify.four_point import check_four_point_certificate
+from codesearch.verify.four_point import check_four_point_certificate, check_four_point_size_cut
 from codesearch.verify.integral import (check_distance_enumeration, check_odd_size,
                                         check_size_mod_4)
 from codesearch.verify.lp import check_delsarte_lp, check_delsarte_lp_qcw
@@ -37,6 +37,7 @@ CERTIFICATE_CHECKERS: dict[str, Checker] = {
     "qary-three-point-sdp": check_qary_three_point,
     "four-point-sdp": check_four_point_certificate,
     # these nest certificates of any kind, re-checked through the table's entry point
+    "four-point-size-cut": lambda cert: check_four_point_size_cut(cert, check_certificate),
     "lp-odd-size": lambda cert: check_odd_size(cert, check_certificate),
     "lp-size-mod-4": lambda cert: check_size_mod_4(cert, check_certificate),
     "distance-enumeration": lambda cert: check_distance_enumeration(cert, check_certificate),

@@ -61,7 +61,8 @@ from codesearch.verify.three_point import (
     _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
     block_psd_work, compare_claims, read_binary_cell, read_block, read_row)
 
-__all__ = ["check_four_point_certificate", "MAX_FOUR_POINT_N", "FOUR_POINT_WORK"]
+__all__ = ["check_four_point_certificate", "check_size_cut_exclusion",
+           "check_four_point_size_cut", "MAX_FOUR_POINT_N", "FOUR_POINT_WORK"]
 
 #: Longest code whose four-point certificate is read (the program is past any machine
 #: long before this).
@@ -397,35 +398,82 @@ def _work(n: int, schrijver: list, pair: list, multipliers: list) -> int:
     return steps
 
 
-#: Row label -> number of integer indices (Schrijver's rows and the 4-set rows).
-_ROWS = dict(_ROW_SHAPES, quad=8)
+#: Row label -> number of integer indices (Schrijver's rows, the 4-set rows, the size cuts).
+_ROWS = dict(_ROW_SHAPES, quad=8, **{"size-cut": 1})
 
 
-def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
-    """Re-check a ``"four-point-sdp"`` certificate in exact arithmetic.
+def _kraw(n: int, k: int, i: int) -> int:
+    return sum((-1) ** s * math.comb(i, s) * math.comb(n - i, k - s) for s in range(k + 1))
 
-    The certificate holds the cell (``q = 2, n, d``), the program's cell (``sdp_n, sdp_d``:
-    the same, or ``n+1, d+1`` for odd ``d``), ``even``, dual ``blocks`` (``family`` 0 or 1
-    with ``k`` and ``weights`` as in ``three-point-sdp``; ``family`` 2, 3 or 4 with ``i``,
-    ``k1``, ``k2``, ``sign`` and ``rows`` ``[i1, i2]``; each with a symmetric ``matrix`` of
-    ``"p/q"`` strings), ``multipliers`` (``row`` label: Schrijver's rows or
-    ``["quad", s0, s1, s2, s3, m1, m2, m3, mask]``, and a ``"p/q"`` value), the exact
-    ``bound`` and the claimed integer ``value`` (its floor).
 
-    Returns
-    -------
-    (valid, bound, reason)
+def _cut_floors(n: int, size: int, cut: Any) -> list[int] | str:
+    """``c_k`` of the size cut named by the certificate's ``size_cut`` field, or the reason
+    it does not apply: an odd ``size`` has every ``S_u`` odd, so ``b_k >= C(n,k)``; a size
+    2 mod 4 of an even-weight code has ``S_u = 2 mod 4`` on the ``(C(n,k) + K_k(s)) / 2``
+    words of weight ``k`` orthogonal to the sum of the words (weight ``s``, even), so
+    ``b_k >= 2 (C(n,k) + K_k(s))``; ``sum_weight`` null takes the least over the even ``s``.
+    Here ``b_k = sum_{|u|=k} S_u^2 = size sum_i A_i K_k(i)``."""
+    where = "certificate: size_cut"
+    strict.mapping(cut, where)
+    name = strict.field(cut, "cut", where)
+    if name == "odd":
+        if size % 2 == 0:
+            return f"the odd-size cut is for odd sizes, not {size}"
+        return [math.comb(n, k) for k in range(n + 1)]
+    if name != "2-mod-4":
+        return f"unknown size cut {strict.short(name)}"
+    if size % 4 != 2:
+        return f"the 2-mod-4 cut is for sizes 2 mod 4, not {size}"
+    s = cut.get("sum_weight")
+    if s is None:
+        weights = list(range(0, n + 1, 2))
+    else:
+        weights = [strict.get_int(cut, "sum_weight", where, 0, n)]
+        if s % 2:
+            return f"the sum of the words of an even-weight code has even weight, not {s}"
+    return [2 * (math.comb(n, k) + min(_kraw(n, k, w) for w in weights)) for k in range(n + 1)]
 
-    Raises
-    ------
-    InputError
-        A malformed field, or a check past :data:`FOUR_POINT_WORK` (said before the work).
-    """
+
+def _size_cut_row(floors: list[int], size: int):
+    """The handler of the rows ``["size-cut", k]``: ``size sum_i A_i K_k(i) >= c_k`` with
+    ``A_i = C(n,i) x(pair at i)``, ``A_0 = 1``, i.e. ``-size sum_{i>=1} C(n,i) K_k(i) x_i <=
+    size C(n,k) - c_k``; adds ``mu (rhs - row(x))``."""
+
+    def add(obj: _FourPointObjective, idx: list[int], mu: Fraction) -> str | None:
+        n = obj.n
+        k = idx[0]
+        if not 0 <= k <= n:
+            return f"bad row {['size-cut', *idx]}"
+        if mu < 0:
+            return f"negative multiplier on row {['size-cut', *idx]}"
+        obj.const += mu * (size * math.comb(n, k) - floors[k])
+        for i in range(1, n + 1):
+            obj.add(obj.tri(i, 0, 0), mu * size * math.comb(n, i) * _kraw(n, k, i))
+        return None
+
+    return add
+
+
+def _four_point_total(cert: Mapping[str, Any]) -> tuple | str:
+    """Read and price a four-point certificate: ``(cell, target, total)`` with ``cell`` as
+    from :func:`read_binary_cell` and ``total`` the exact bound its duals prove (for codes of
+    at least ``target`` words, of exactly ``target`` words with a size cut), or the reason
+    it is rejected."""
     cell = read_binary_cell(cert, MAX_FOUR_POINT_N, "four-point")
     if isinstance(cell, str):
-        return False, None, cell
+        return cell
     n0, d0, n, d, even, claimed, exact_claim = cell
     target = (strict.get_int(cert, "target", _WHAT, 1, None) if "target" in cert else None)
+    handlers: dict[str, Any] = {"quad": _add_quad_row}
+    if "size_cut" in cert:
+        if target is None:
+            return "a size cut needs the target size"
+        if not even:
+            return "the size cuts need the even-distance restriction"
+        floors = _cut_floors(n, target, cert["size_cut"])
+        if isinstance(floors, str):
+            return floors
+        handlers["size-cut"] = _size_cut_row(floors, target)
     max_blocks = 2 * (n // 2 + 1) + 4 * (n + 1) * (n // 2 + 1) ** 2 * 4
     schrijver, pair = [], []
     for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, max_blocks)):
@@ -437,19 +485,51 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
             pair.append(_read_pair_block(b, j, n))
     mults = [read_row(m, j, _ROWS)
              for j, m in enumerate(strict.get_list(cert, "multipliers", _WHAT, strict.MAX_ROWS))]
+    if "size-cut" not in handlers and any(name == "size-cut" for name, _, _ in mults):
+        return "size-cut rows without a size_cut field"
     strict.check_work(_work(n, schrijver, pair, mults), f"four-point certificate for n={n}",
                       cap=FOUR_POINT_WORK)
     obj = _FourPointObjective(n, d, even)
     johnson_memo: dict = {}
-    reason = add_schrijver_part(obj, schrijver, mults, johnson_memo, {"quad": _add_quad_row})
+    reason = add_schrijver_part(obj, schrijver, mults, johnson_memo, handlers)
     entry_memo: dict = {}
     for block in pair:
         if reason is not None:
             break
         reason = _add_pair_block(obj, block, entry_memo, target)
     if reason is not None:
-        return False, None, reason
-    total = _capped_total(obj, johnson_memo)
+        return reason
+    return cell, target, _capped_total(obj, johnson_memo)
+
+
+def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | None, str]:
+    """Re-check a ``"four-point-sdp"`` certificate in exact arithmetic.
+
+    The certificate holds the cell (``q = 2, n, d``), the program's cell (``sdp_n, sdp_d``:
+    the same, or ``n+1, d+1`` for odd ``d``), ``even``, dual ``blocks`` (``family`` 0 or 1
+    with ``k`` and ``weights`` as in ``three-point-sdp``; ``family`` 2, 3 or 4 with ``i``,
+    ``k1``, ``k2``, ``sign`` and ``rows`` ``[i1, i2]``; each with a symmetric ``matrix`` of
+    ``"p/q"`` strings), ``multipliers`` (``row`` label: Schrijver's rows or
+    ``["quad", s0, s1, s2, s3, m1, m2, m3, mask]``, and a ``"p/q"`` value), the exact
+    ``bound`` and the claimed integer ``value`` (its floor). A certificate with a
+    ``size_cut`` proves nothing alone (see :func:`check_size_cut_exclusion`) and is refused.
+
+    Returns
+    -------
+    (valid, bound, reason)
+
+    Raises
+    ------
+    InputError
+        A malformed field, or a check past :data:`FOUR_POINT_WORK` (said before the work).
+    """
+    if "size_cut" in cert:
+        return False, None, ("a size-cut program bounds only codes of exactly its target "
+                             "size; it is checked inside a four-point-size-cut certificate")
+    got = _four_point_total(cert)
+    if isinstance(got, str):
+        return False, None, got
+    (n0, d0, n, d, even, claimed, exact_claim), target, total = got
     what = f"four-point SDP bound A({n0},{d0})"
     if target is None:
         return compare_claims(total, exact_claim, claimed, what)
@@ -463,3 +543,72 @@ def check_four_point_certificate(cert: Mapping[str, Any]) -> tuple[bool, int | N
                              f"of at least {target} words have at most {math.floor(total)})")
     return True, claimed, (f"{what} <= {proven} (codes of at least {target} words: exact "
                            f"{float(total):.6f})")
+
+
+def check_size_cut_exclusion(cert: Mapping[str, Any]) -> tuple[bool, Fraction | None, str]:
+    """Re-check a four-point certificate with a ``size_cut`` (the program at ``target`` ``U``
+    with the rows ``["size-cut", k]``): ``(valid, total, reason)`` with ``total`` the exact
+    bound it proves for the codes of exactly ``U`` words (and, for the 2-mod-4 cut with a
+    ``sum_weight``, whose words sum to a word of that weight). The size is excluded when
+    ``total < U``; ``value`` must then be ``U - 1``, else ``floor(total)``."""
+    if "size_cut" not in cert:
+        return False, None, "not a size-cut certificate (no size_cut field)"
+    got = _four_point_total(cert)
+    if isinstance(got, str):
+        return False, None, got
+    (n0, d0, n, d, even, claimed, exact_claim), target, total = got
+    if exact_claim is not None and exact_claim != total:
+        return False, None, f"bound field is {exact_claim}, the certificate proves {total}"
+    proven = max(target - 1, math.floor(total))
+    if claimed != proven:
+        return False, None, f"claimed {claimed} but the certificate proves {proven}"
+    verdict = "excluded" if total < target else "not excluded"
+    return True, total, (f"A({n0},{d0}) size {target}: exact {float(total):.6f}, {verdict}")
+
+
+def check_four_point_size_cut(cert: Mapping[str, Any], check_certificate: Any
+                              ) -> tuple[bool, int | None, str]:
+    """Re-check a ``"four-point-size-cut"`` certificate: ``upper`` (any kind, re-checked
+    through the table's entry point ``check_certificate``) proves ``A(n,d) <= U``; the
+    ``exclusions`` (four-point certificates at target ``U`` with a ``size_cut``) each bound
+    the codes of exactly ``U`` words below ``U``: one with the odd-size cut for odd ``U``,
+    for ``U = 2 mod 4`` one with ``sum_weight`` null or one for every even ``s`` from 0 to
+    ``n``. Then ``A(n,d) <= U - 1 = value``. For odd ``d`` the programs are those of
+    ``(n+1, d+1)``."""
+    q = strict.get_int(cert, "q", _WHAT, 2, 2)
+    n0 = strict.get_int(cert, "n", _WHAT, 1, MAX_FOUR_POINT_N)
+    d0 = strict.get_int(cert, "d", _WHAT, 1, n0)
+    claimed = strict.get_int(cert, "value", _WHAT, 0, None)
+    # odd d through A(n+1, d+1) (parity extension and puncturing)
+    n, d = (n0 + 1, d0 + 1) if d0 % 2 else (n0, d0)
+    upper = strict.mapping(strict.field(cert, "upper", _WHAT), "certificate: upper")
+    ok, size, why = check_certificate(upper, (q, n, d))
+    if not ok or size is None:
+        return False, None, f"upper certificate: {why}"
+    if claimed != size - 1:
+        return False, None, f"claimed {claimed}, but the cut can only exclude {size}"
+    if size % 4 == 0:
+        return False, None, f"no size cut for {size} (0 mod 4)"
+    weights: set = set()
+    for j, ex in enumerate(strict.get_list(cert, "exclusions", _WHAT, n + 2)):
+        strict.mapping(ex, f"certificate: exclusions[{j}]")
+        if ex.get("kind") != "four-point-sdp":
+            return False, None, f"exclusions[{j}] is not a four-point-sdp certificate"
+        if (ex.get("sdp_n"), ex.get("sdp_d"), ex.get("target")) != (n, d, size):
+            return False, None, f"exclusions[{j}] is not at A({n},{d}) with target {size}"
+        valid, total, reason = check_size_cut_exclusion(ex)
+        if not valid or total is None:
+            return False, None, f"exclusions[{j}]: {reason}"
+        if not total < size:
+            return False, None, f"exclusions[{j}] does not exclude {size}: {reason}"
+        cut = ex["size_cut"]
+        weights.add(None if cut.get("cut") == "odd" or cut.get("sum_weight") is None
+                    else cut["sum_weight"])
+    covered = None in weights or (size % 2 == 0 and
+                                  set(range(0, n + 1, 2)) <= weights)
+    if not covered:
+        return False, None, f"the exclusions do not cover every code of {size} words"
+    via = "" if (n, d) == (n0, d0) else f" (through A({n},{d}))"
+    return True, claimed, (f"A({n0},{d0}) <= {claimed}{via}: {upper.get('kind')} gives {size}, size "
+                           f"{size} excluded by {len(weights)} four-point program(s) with the "
+                           f"{'odd-size' if size % 2 else '2-mod-4'} cut")
