@@ -580,7 +580,8 @@ def test_stored_pair_moment_certificates(n, d, value):
     # A(22,10) <= 84: the published four-point values of Gijswijt, Mittelmann and Schrijver
     # (2012; data/published_binary.csv, from memory; the d = 10 rows are marked uncertain
     # there). A(17,8) <= 38 and A(19,6) <= 1238 are one above the published 37 and 1237
-    # (A(19,6) at the target 1238 is not excluded: its bound is 1238.07), and never below
+    # (A(19,6) at the target 1238 is not excluded: its bound is 1238.07; the size cut does
+    # it, test_stored_size_cut_certificates), and never below
     # the published codes of 36 and 1024 words. The certificates were solved by
     # benchmarks/fourpoint_targets.py or the same call (6 to 84 minutes) and are re-checked
     # here from scratch (1 to 6 minutes each).
