@@ -251,7 +251,7 @@ def _four_point_stage(task: CellTask, errors: list[tuple[str, str]]
         cap = min(task.four_point, fourpoint.MAX_SECONDS)
         pairs = size.pair_solves_within(cap)
         found = fourpoint.four_point_bound(
-            p, pair_solves=pairs, size_cut=size.pair_seconds * (pairs + 1) <= cap)
+            p, pair_solves=pairs, size_cut=size.size_cut_fits(pairs, cap))
     except Exception as exc:  # a failing bound must not lose the cell's other work
         errors.append((FOUR_POINT_TASK, _one_line(exc)))
         return None, None, _one_line(exc)

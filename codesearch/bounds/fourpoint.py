@@ -436,6 +436,11 @@ class FourPointSize:
         solve at A(18,6); benchmarks/results_fourpoint.md)."""
         return self.seconds * (1.0 if self.d >= 8 else 1.2)
 
+    def size_cut_fits(self, pair_solves: int, limit: float = MAX_SECONDS) -> bool:
+        """Whether one size-cut solve (:attr:`pair_seconds`) fits in ``limit`` seconds after
+        ``pair_solves`` solves with the pair moment blocks."""
+        return self.pair_seconds * (pair_solves + 1) <= limit
+
     def pair_solves_within(self, limit: float = MAX_SECONDS) -> int:
         """How many of the :data:`PAIR_SOLVES` solves with the pair moment blocks fit in
         ``limit`` seconds (:attr:`pair_seconds` each)."""
@@ -578,6 +583,10 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
     """
     from codesearch.bounds.terwilliger import RowCollector, three_point_data
 
+    if size_cut is not None:  # refused before the build: a cut needs a size it fits
+        if target is None:
+            raise ParameterError("a size cut needs the target size of the code")
+        floors = size_cut_floors(n, target, *size_cut)
     base = three_point_data(n, d, even)
     tri_index = {tri: v for v, tri in enumerate(base.triangles)}
     quads = _quad_profiles(n, d, even)
@@ -663,26 +672,22 @@ def four_point_data(n: int, d: int, even: bool, *, quad_rows: bool = True,
                         # sum (-1)^|B'| x(A u B') >= 0, written as <= 0
                         terms.append((var(_set_key(prof, pts, d, even)), -(-1) ** r))
                 collector.add(("quad", *prof, mask), terms, 0)
+    rows_out = list(collector.rows)
     if size_cut is not None:
-        if target is None:
-            raise ParameterError("a size cut needs the target size of the code")
         from codesearch.bounds.krawtchouk import krawtchouk
 
-        floors = size_cut_floors(n, target, *size_cut)
-        cut_rows = []
         for k in range(n + 1):
             # target * sum_i A_i K_k(i) >= c_k, A_i = C(n,i) x(pair at i), A_0 = 1
             terms = [(var((i, i, 0) if i else ()), -target * comb(n, i) * krawtchouk(2, n, k, i))
                      for i in range(n + 1)]
+            # a collector of its own per row: it moves the constant to the right-hand side
+            # but does not merge the rows of k and n - k, which coincide for even codes.
+            # Keeping both is a numerical device, measured at A(18,8), size 73 (one pass,
+            # default settings): the solver's dual certifies 72.9989 with both rows and
+            # only 73.0019 with one.
             one = RowCollector()
             one.add(("size-cut", k), terms, -floors[k])
-            cut_rows += one.rows
-        # Every k is kept, though the rows of k and n - k coincide for even codes: a
-        # numerical device, measured at A(18,8), size 73 (one pass, default settings): the
-        # solver's dual certifies 72.9989 with both rows and only 73.0019 with one.
-        rows_out = list(collector.rows) + cut_rows
-    else:
-        rows_out = list(collector.rows)
+            rows_out += one.rows
     objective = tuple(list(base.objective) + [0] * len(quads))
     return FourPointData(n=n, d=d, even=even, triangles=tuple(base.triangles) + tuple(quads),
                          objective=objective, blocks=tuple(blocks),
@@ -969,10 +974,6 @@ def _solve_four_point(n: int, d: int, time_limit: float | None, solver: str, qua
     from codesearch.verify import check_certificate
     from codesearch.verify.four_point import check_size_cut_exclusion
 
-    if size_cut is not None:
-        if target is None:
-            raise ParameterError("a size cut needs the target size of the code")
-        size_cut_floors(n, target, *size_cut)  # refuses a cut that does not fit the size
     t0 = time.perf_counter()
     prog = _program(n, d, quad_rows=quad_rows, target=target, size_cut=size_cut)
     build = time.perf_counter() - t0
@@ -1160,7 +1161,7 @@ def four_point_bound(params: Params, *, time_limit: float | None = None,
     size = four_point_size(n, d)
     pair_solves = min(pair_solves, size.pair_solves_within())
     if size_cut is None:
-        size_cut = size.pair_seconds * (pair_solves + 1) <= MAX_SECONDS
+        size_cut = size.size_cut_fits(pair_solves)
     res = None
     if pair_solves:
         known = _known_size(n, d) if lower is None else lower

@@ -57,6 +57,7 @@ from typing import Any, Mapping
 
 from codesearch.errors import InputError
 from codesearch.verify import strict
+from codesearch.verify.lp import _kraw_columns
 from codesearch.verify.three_point import (
     _Objective, _ROW_SHAPES, _tp_beta, _tp_johnson, _tp_psd, add_schrijver_part,
     block_psd_work, compare_claims, read_binary_cell, read_block, read_row)
@@ -402,10 +403,6 @@ def _work(n: int, schrijver: list, pair: list, multipliers: list) -> int:
 _ROWS = dict(_ROW_SHAPES, quad=8, **{"size-cut": 1})
 
 
-def _kraw(n: int, k: int, i: int) -> int:
-    return sum((-1) ** s * math.comb(i, s) * math.comb(n - i, k - s) for s in range(k + 1))
-
-
 def _cut_floors(n: int, size: int, cut: Any) -> list[int] | str:
     """``c_k`` of the size cut named by the certificate's ``size_cut`` field, or the reason
     it does not apply: an odd ``size`` has every ``S_u`` odd, so ``b_k >= C(n,k)``; a size
@@ -431,16 +428,17 @@ def _cut_floors(n: int, size: int, cut: Any) -> list[int] | str:
         weights = [strict.get_int(cut, "sum_weight", where, 0, n)]
         if s % 2:
             return f"the sum of the words of an even-weight code has even weight, not {s}"
-    return [2 * (math.comb(n, k) + min(_kraw(n, k, w) for w in weights)) for k in range(n + 1)]
+    table = tuple(_kraw_columns(2, n))  # row w: K_k(w) for k = 0..n
+    return [2 * (math.comb(n, k) + min(table[w][k] for w in weights)) for k in range(n + 1)]
 
 
-def _size_cut_row(floors: list[int], size: int):
+def _size_cut_row(n: int, floors: list[int], size: int):
     """The handler of the rows ``["size-cut", k]``: ``size sum_i A_i K_k(i) >= c_k`` with
     ``A_i = C(n,i) x(pair at i)``, ``A_0 = 1``, i.e. ``-size sum_{i>=1} C(n,i) K_k(i) x_i <=
     size C(n,k) - c_k``; adds ``mu (rhs - row(x))``."""
+    table = tuple(_kraw_columns(2, n))  # row i: K_k(i) for k = 0..n
 
     def add(obj: _FourPointObjective, idx: list[int], mu: Fraction) -> str | None:
-        n = obj.n
         k = idx[0]
         if not 0 <= k <= n:
             return f"bad row {['size-cut', *idx]}"
@@ -448,7 +446,7 @@ def _size_cut_row(floors: list[int], size: int):
             return f"negative multiplier on row {['size-cut', *idx]}"
         obj.const += mu * (size * math.comb(n, k) - floors[k])
         for i in range(1, n + 1):
-            obj.add(obj.tri(i, 0, 0), mu * size * math.comb(n, i) * _kraw(n, k, i))
+            obj.add(obj.tri(i, 0, 0), mu * size * math.comb(n, i) * table[i][k])
         return None
 
     return add
@@ -473,7 +471,7 @@ def _four_point_total(cert: Mapping[str, Any]) -> tuple | str:
         floors = _cut_floors(n, target, cert["size_cut"])
         if isinstance(floors, str):
             return floors
-        handlers["size-cut"] = _size_cut_row(floors, target)
+        handlers["size-cut"] = _size_cut_row(n, floors, target)
     max_blocks = 2 * (n // 2 + 1) + 4 * (n + 1) * (n // 2 + 1) ** 2 * 4
     schrijver, pair = [], []
     for j, b in enumerate(strict.get_list(cert, "blocks", _WHAT, max_blocks)):
