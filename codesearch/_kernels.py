@@ -1299,6 +1299,100 @@ def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj):
             adj[i, j] = ok
 
 
+@nb.njit(cache=True)
+def orbit_sparse_moves(vertex_of, reps, weight, masks, in_set, conflicts, xor_ids, tabu_until,
+                       stamp, start_move, moves, tenure, rng_state, stop_weight, best_weight,
+                       best_set):
+    """Moves of the implicit-adjacency tabu search on orbits (binary words as integers).
+
+    ``vertex_of[x]`` is the vertex (admissible orbit) of word x, or -1; ``reps[v]`` its
+    representative; two vertices u != v conflict iff some word of v lies within distance
+    d - 1 of ``reps[u]``, i.e. ``vertex_of[reps[u] ^ m] == v`` for a mask m of ``masks``
+    (the weights 1 .. d-1). State: ``in_set``, ``conflicts[v]`` = members of the set in
+    conflict with v, ``xor_ids[v]`` = XOR of their ids (the one member when there is one),
+    ``tabu_until``. Each move adds the heaviest free non-tabu vertex, or else makes the best
+    1-swap (add v, drop its single conflicting member, which turns tabu), or else drops a
+    random member. ``rng_state`` is one int64 (xorshift). Returns the move count, the new
+    best weight (``best_set`` updated) and the final rng state.
+    """
+    k = reps.shape[0]
+    total = 0
+    for v in range(k):
+        if in_set[v]:
+            total += weight[v]
+    r = rng_state
+    done = 0
+    for it in range(start_move, start_move + moves):
+        done += 1
+        # the heaviest free vertex, else the best 1-swap (ties broken at random)
+        best_v = -1
+        best_gain = -(1 << 62)
+        best_free = False
+        ties = 0
+        for v in range(k):
+            if in_set[v] or tabu_until[v] > it:
+                continue
+            c = conflicts[v]
+            if c == 0:
+                g = weight[v]
+                if (not best_free) or g > best_gain:
+                    best_v, best_gain, best_free, ties = v, g, True, 1
+                elif g == best_gain:
+                    ties += 1
+                    r ^= r << 13; r ^= r >> 7; r ^= r << 17
+                    if (r & 0x7FFFFFFF) % ties == 0:
+                        best_v = v
+            elif c == 1 and not best_free:
+                g = weight[v] - weight[xor_ids[v]]
+                if g > best_gain:
+                    best_v, best_gain, ties = v, g, 1
+                elif g == best_gain:
+                    ties += 1
+                    r ^= r << 13; r ^= r >> 7; r ^= r << 17
+                    if (r & 0x7FFFFFFF) % ties == 0:
+                        best_v = v
+        drop = -1
+        add = best_v
+        if best_v >= 0 and not best_free:
+            drop = xor_ids[best_v]
+        elif best_v < 0:
+            # no move: drop a random member
+            members = 0
+            for v in range(k):
+                if in_set[v]:
+                    members += 1
+            if members == 0:
+                break
+            r ^= r << 13; r ^= r >> 7; r ^= r << 17
+            pick = (r & 0x7FFFFFFF) % members
+            for v in range(k):
+                if in_set[v]:
+                    if pick == 0:
+                        drop = v
+                        break
+                    pick -= 1
+        for sign, u in ((-1, drop), (1, add)):
+            if u < 0:
+                continue
+            in_set[u] = sign > 0
+            total += sign * weight[u]
+            if sign < 0:
+                tabu_until[u] = it + tenure
+            for m in masks:
+                v = vertex_of[reps[u] ^ m]
+                if v < 0 or v == u or stamp[v] == 2 * it + (sign > 0):
+                    continue
+                stamp[v] = 2 * it + (sign > 0)
+                conflicts[v] += sign
+                xor_ids[v] ^= u
+        if total > best_weight:
+            best_weight = total
+            best_set[:] = in_set
+            if best_weight >= stop_weight:
+                break
+    return done, best_weight, r
+
+
 # ======================================================================= DRAT proof checking
 # Used by codesearch.verify.drat (see its docstring for the algorithm and references). Literals are
 # encoded as ``2 * (v - 1) + (1 if negative else 0)`` so that ``l ^ 1`` is the negation.

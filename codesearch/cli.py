@@ -317,6 +317,12 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
         "'find 16 6 --method orbit --group rm1', 'find 20 10 --method orbit --group "
         "\"cyclic:0-18*rep\"', 'find 5 3 --q 4 --method orbit --group cyclic'. "
         "For auto: several specs separated by ';' (default: a few natural groups)")
+    p.add_argument(
+        "--orbit-mode", dest="mode", choices=("exact", "heuristic", "sparse"),
+        help="orbit: 'exact' (default) builds the orbit graph, runs the heuristics and then "
+        "the exact clique search; 'heuristic' stops after the heuristics; 'sparse' (q = 2) "
+        "skips the graph and finds conflicts on demand, for groups that leave more "
+        "admissible orbits than the graph's limit (heuristic, nothing proved)")
     _COMMANDS["find"] = _cmd_find
 
 
@@ -329,7 +335,7 @@ def _cmd_find(args: argparse.Namespace) -> int:
     params = Params(args.q, args.n, args.d)
     _kernels_first()  # after the input is checked: bad input never waits for the compiler
     with find_progress(_progress_mode(args), str(params)) as prog:
-        options = {name: getattr(args, name) for name in ("size", "proof", "group")
+        options = {name: getattr(args, name) for name in ("size", "proof", "group", "mode")
                    if getattr(args, name, None) is not None}
         result = search(params, args.method, time_limit=args.time, seed=args.seed,
                         progress=prog, **options)

@@ -345,6 +345,52 @@ def test_heuristics_return_cliques_no_heavier_than_networkx(k, density, seed):
     assert again == tabu
 
 
+def test_sparse_mode_finds_the_nordstrom_robinson_code():
+    # A(16,6) = 256, the Nordstrom-Robinson code, a union of 8 cosets of RM(1,4) (see above;
+    # from memory). The sparse mode finds it without the orbit graph.
+    params = Params(2, 16, 6)
+    res = search(params, "orbit", group="rm1", mode="sparse", size=256, time_limit=120)
+    _check(res, params, "rm1")
+    assert res.size == 256
+    assert res.settings["invariant_optimal"] is False
+    assert res.settings["clique_engine"].startswith("implicit")
+
+
+def test_sparse_mode_past_the_orbit_limit_and_reproducible():
+    # The dense graph refuses (limit 1 admissible orbit); the sparse mode ignores the limit.
+    # The [7,4,3] Hamming code is cyclic and perfect (16 = 2^7 / 8, sphere packing), so 16
+    # is the most any code can have.
+    params = Params(2, 7, 3)
+    with pytest.raises(ParameterError, match="admissible orbits"):
+        search(params, "orbit", group="cyclic", max_orbits=1)
+    res = search(params, "orbit", group="cyclic", mode="sparse", max_orbits=1, seed=3)
+    _check(res, params, "cyclic")
+    assert res.size == 16
+    a = search(Params(2, 12, 4), "orbit", group="cyclic", mode="sparse", seed=5, iterations=500)
+    b = search(Params(2, 12, 4), "orbit", group="cyclic", mode="sparse", seed=5, iterations=500)
+    _check(a, Params(2, 12, 4), "cyclic")
+    assert a.code == b.code and a.settings["iterations"] == b.settings["iterations"] <= 500
+    with pytest.raises(ParameterError, match="q = 2"):
+        search(Params(3, 4, 3), "orbit", group="cyclic", mode="sparse")
+
+
+@given(data=st.data())
+def test_sparse_mode_returns_invariant_codes_no_larger_than_the_exact_search(data):
+    n = data.draw(st.integers(5, 9))
+    d = data.draw(st.integers(3, 4))
+    spec = data.draw(st.sampled_from(["cyclic", "cyclic*rep", "cyclic*rev"]))
+    seed = data.draw(st.integers(0, 1000))
+    params = Params(2, n, d)
+    sparse = search(params, "orbit", group=spec, mode="sparse", seed=seed, iterations=300)
+    exact = search(params, "orbit", group=spec, time_limit=2)
+    if sparse.code is None:
+        assert exact.code is None
+        return
+    _check(sparse, params, spec)
+    if exact.settings["invariant_optimal"]:
+        assert sparse.size <= exact.size
+
+
 def test_size_option_stops_at_the_target():
     params = Params(2, 10, 4)
     res = search(params, "orbit", group="cyclic", size=30)
@@ -379,7 +425,8 @@ def test_importing_orbit_modules_loads_no_numba():
 
 def test_public_api_of_the_orbit_modules():
     assert sorted(orbit.__all__) == sorted(["OPTIONS", "run", "OrbitGraph", "orbit_graph",
-                                           "heuristic_clique", "tabu_clique", "bitsets"])
+                                           "heuristic_clique", "tabu_clique", "bitsets",
+                                           "sparse_orbit_search"])
     assert sorted(groups.__all__) == sorted([
         "Generator", "Group", "Orbits", "parse_group", "all_words", "encode", "compute_orbits",
         "is_invariant", "DEFAULT_MAX_WORDS"])

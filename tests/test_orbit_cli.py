@@ -1,4 +1,4 @@
-"""The --group option of `codesearch find` (methods orbit and auto)."""
+"""The --group and --orbit-mode options of `codesearch find` (methods orbit and auto)."""
 
 from __future__ import annotations
 
@@ -49,3 +49,19 @@ def test_find_auto_end_to_end(capsys):
     assert summary["size"] == 16 and summary["method"] == "auto"
     if summary["optimal"]:
         assert summary["upper"] == 16
+
+
+def test_find_orbit_sparse_mode(capsys):
+    # A(7,3) = 16: the cyclic Hamming code is perfect (sphere-packing bound met; common practice)
+    status, out, _ = _run(capsys, ["find", "7", "3", "--method", "orbit", "--group", "cyclic",
+                                   "--orbit-mode", "sparse", "--json"])
+    assert status == 0
+    summary = json.loads(out.strip().splitlines()[-1])
+    assert summary["size"] == 16 and summary["optimal"] is False
+
+
+@pytest.mark.parametrize("argv", [["7", "3", "--q", "3", "--method", "orbit"],
+                                  ["7", "3", "--method", "exact"]])
+def test_orbit_mode_misuse_is_a_one_line_error(capsys, argv):
+    status, _, err = _run(capsys, ["find", *argv, "--orbit-mode", "sparse"])
+    assert status == 2 and len(err.strip().splitlines()) == 1

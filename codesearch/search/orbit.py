@@ -47,18 +47,22 @@ from codesearch.search import groups as _groups
 from codesearch.search.base import Context, Outcome
 
 __all__ = ["OPTIONS", "run", "OrbitGraph", "orbit_graph", "heuristic_clique", "tabu_clique",
-           "bitsets"]
+           "bitsets", "sparse_orbit_search"]
 
 #: Options accepted by :func:`run` (see its docstring).
 OPTIONS = frozenset({"group", "mode", "restarts", "iterations", "size", "max_words",
                      "max_orbits"})
 SEEDING = "fixed"
-#: Tiny runs through the orbit graph and the weighted clique paths, binary and q-ary
+#: Tiny runs through the orbit graph and the weighted clique paths, binary and q-ary, and
+#: the sparse mode's kernel
 #: (:func:`codesearch.search.prepare_method`).
 WARM_UP = (((2, 7, 3), {"group": "cyclic"}), ((3, 4, 3), {"group": "cyclic"}),
-           ((2, 8, 4), {"group": "cyclic*rep"}))
+           ((2, 8, 4), {"group": "cyclic*rep"}),
+           ((2, 7, 3), {"group": "cyclic", "mode": "sparse", "iterations": 20}))
 
-_MODES = ("exact", "heuristic")
+_MODES = ("exact", "heuristic", "sparse")
+#: Move tenure of a dropped orbit in the sparse search.
+_SPARSE_TENURE = 7
 DEFAULT_MAX_ORBITS = 12000
 
 
@@ -123,6 +127,25 @@ class _GraphTimeout(Exception):
     """The time limit ran out while the orbit graph was being built."""
 
 
+def _admissible(params: Params, group: _groups.Group, max_words: int
+                ) -> tuple[_groups.Orbits, list[np.ndarray], np.ndarray]:
+    """The orbits of ``group``, the bit planes of every word, and the admissible orbits.
+
+    An orbit is admissible when its own words are pairwise at distance ``>= d``: the distance
+    from each word to its orbit's representative, minimised over the orbit (the representative
+    excluded), is the orbit's own minimum distance (isometry argument, step 2).
+    """
+    orbits = _groups.compute_orbits(group, max_words=max_words)
+    planes = _planes(orbits.words, params.q)
+    diff = planes[0] ^ planes[0][orbits.label]
+    for pl in planes[1:]:
+        diff |= pl ^ pl[orbits.label]
+    to_rep = _popcount(diff)
+    to_rep[orbits.reps] = params.n + 1
+    inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
+    return orbits, planes, np.flatnonzero(inner >= params.d)
+
+
 def orbit_graph(params: Params, group: _groups.Group, *,
                 max_words: int = _groups.DEFAULT_MAX_WORDS,
                 max_orbits: int = DEFAULT_MAX_ORBITS,
@@ -142,18 +165,8 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     if params.n > 64:
         # one uint64 per bit plane holds a word (the space limit keeps n far below this anyway)
         raise ParameterError(f"orbit search handles n <= 64, got n={params.n}")
-    orbits = _groups.compute_orbits(group, max_words=max_words)
-    planes = _planes(orbits.words, params.q)
+    orbits, planes, kept = _admissible(params, group, max_words)
     d = params.d
-    # Distance from each word to its orbit's representative; min over the orbit (excluding the
-    # representative itself) is the orbit's own minimum distance (isometry argument, step 2).
-    diff = planes[0] ^ planes[0][orbits.label]
-    for pl in planes[1:]:
-        diff |= pl ^ pl[orbits.label]
-    to_rep = _popcount(diff)
-    to_rep[orbits.reps] = params.n + 1
-    inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
-    kept = np.flatnonzero(inner >= d)
     k = kept.size
     if k > max_orbits:
         raise ParameterError(
@@ -373,6 +386,77 @@ def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
     return clique, bool(out.complete), int(out.nodes), int(out.upper)
 
 
+# ------------------------------------------------------------------------------ sparse mode
+def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
+                        deadline: float | None, stop: int | None = None,
+                        max_moves: int = 20000,
+                        max_words: int = _groups.DEFAULT_MAX_WORDS
+                        ) -> tuple[Code | None, int, int]:
+    """A large G-invariant binary code without the orbit graph (implicit adjacency).
+
+    For groups that leave more admissible orbits than a dense compatibility matrix holds
+    (``max_orbits``), conflicts are found on demand: orbits u and v conflict iff a word of v
+    lies within distance ``d - 1`` of the representative of u (the isometry argument of step
+    3), so adding or dropping u visits the ball of radius ``d - 1`` around one word and looks
+    up the orbit of each ball word. The search (kernel ``_kernels.orbit_sparse_moves``) is a
+    tabu search on orbits: add the heaviest free orbit, else the best swap of one orbit for
+    its single conflicting member (which turns tabu for a few moves), else drop a random
+    member; it starts from the empty set, so its first moves are the greedy by orbit size.
+    Heuristic: nothing is proved. Binary only (words are their integer indices).
+
+    Returns
+    -------
+    (code or None, moves made, admissible orbits)
+    """
+    if params.q != 2:
+        raise ParameterError(f"the sparse orbit search handles q = 2 only, got q = {params.q}")
+    orbits, _, kept = _admissible(params, group, max_words)
+    k = int(kept.size)
+    if k == 0:
+        return None, 0, 0
+    from codesearch import _kernels
+
+    position = np.full(orbits.count, -1, dtype=np.int64)
+    position[kept] = np.arange(k, dtype=np.int64)
+    # reps are increasing, so the orbit number of a word is the rank of its label among them
+    vertex_of = position[np.searchsorted(orbits.reps, orbits.label)]
+    reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
+    weight = orbits.sizes[kept].astype(np.int64)
+    space = np.arange(1 << params.n, dtype=np.int64)
+    masks = space[(_popcount(space.astype(np.uint64)) < params.d) & (space > 0)]
+    del space
+    in_set = np.zeros(k, dtype=np.bool_)
+    best_set = np.zeros(k, dtype=np.bool_)
+    conflicts = np.zeros(k, dtype=np.int64)
+    xor_ids = np.zeros(k, dtype=np.int64)
+    tabu_until = np.zeros(k, dtype=np.int64)
+    stamp = np.full(k, -1, dtype=np.int64)
+    rng = np.int64(np.random.default_rng(seed).integers(1, 2**62))
+    goal = np.iinfo(np.int64).max if stop is None else int(stop)
+    best, made, chunk = 0, 0, 4
+    while made < max_moves and best < goal:
+        if deadline is not None and time.perf_counter() > deadline:
+            break
+        t0 = time.perf_counter()
+        step = min(chunk, max_moves - made)
+        done, best, rng = _kernels.orbit_sparse_moves(
+            vertex_of, reps, weight, masks, in_set, conflicts, xor_ids, tabu_until, stamp,
+            made, step, _SPARSE_TENURE, rng, goal, best, best_set)
+        made += int(done)
+        if done < step:
+            break
+        # about 0.2 s per call, so the deadline is checked often
+        spent = time.perf_counter() - t0
+        chunk = max(1, min(4 * chunk, int(step * 0.2 / max(spent, 1e-4))))
+    chosen = np.flatnonzero(best_set)
+    if chosen.size == 0:
+        return None, made, k
+    o = orbits
+    rows = np.concatenate([o.order[o.starts[j]:o.starts[j + 1]] for j in kept[chosen]])
+    code = Code(o.words[np.sort(rows)], params.q)
+    return code, made, k
+
+
 # ------------------------------------------------------------------------------ method entry
 def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: int = 200,
         iterations: int = 20000, max_words: int = _groups.DEFAULT_MAX_WORDS,
@@ -391,12 +475,15 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
     mode : {"exact", "heuristic"}
         ``"exact"`` runs the heuristic and then an exact weighted clique search within the
         time limit (proving the largest G-invariant code when it finishes); ``"heuristic"``
-        stops after the heuristic.
+        stops after the heuristic; ``"sparse"`` (binary only) skips the orbit graph and runs
+        :func:`sparse_orbit_search`, for groups that leave more admissible orbits than
+        ``max_orbits`` (heuristic; ``max_orbits`` does not apply).
     restarts : int
         Randomised greedy passes (a deadline may cut them short).
     iterations : int
         Moves of the tabu search that follows the greedy passes (see :func:`tabu_clique`),
-        capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded).
+        capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded); in
+        sparse mode, the moves of :func:`sparse_orbit_search`.
     max_words, max_orbits : int
         Limits on ``q**n`` and on the number of admissible orbits.
 
@@ -415,6 +502,17 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
     params, size = ctx.params, ctx.target
     grp = _groups.parse_group(group, params.q, params.n)
     settings = {"group": grp.spec, "mode": mode, "restarts": restarts}
+    if mode == "sparse":
+        code, moves, k = sparse_orbit_search(params, grp, seed=ctx.seed, deadline=ctx.deadline,
+                                             stop=size, max_moves=iterations,
+                                             max_words=max_words)
+        if code is not None and not _groups.is_invariant(code, grp):
+            raise VerificationError(f"orbit search built a code not invariant under {grp.spec!r}")
+        ctx.report(phase="sparse", orbits=k, incumbent=0 if code is None else code.size)
+        return Outcome(code, nodes=moves, settings={
+            **settings, "generators": len(grp.generators), "admissible_orbits": k,
+            "clique_engine": "implicit tabu (sparse)", "invariant_optimal": False,
+            "invariant_upper": None, "iterations": moves})
     try:
         graph = orbit_graph(params, grp, max_words=max_words, max_orbits=max_orbits,
                             deadline=ctx.deadline)
