@@ -89,10 +89,14 @@ class OrbitGraph:
 
     def code_of(self, vertices: list[int] | np.ndarray, q: int) -> Code:
         """The union of the kept orbits ``vertices`` as a code."""
-        o = self.orbits
-        idx = [o.order[o.starts[k]:o.starts[k + 1]] for k in self.kept[np.asarray(vertices, int)]]
-        rows = np.concatenate(idx) if idx else np.zeros(0, dtype=np.int64)
-        return Code(o.words[np.sort(rows)].reshape(len(rows), o.words.shape[1]), q)
+        return _union_code(self.orbits, self.kept[np.asarray(vertices, int)], q)
+
+
+def _union_code(o: _groups.Orbits, orbit_ids: np.ndarray, q: int) -> Code:
+    """The union of the orbits ``orbit_ids`` (indices into ``o``) as a code."""
+    idx = [o.order[o.starts[k]:o.starts[k + 1]] for k in orbit_ids]
+    rows = np.concatenate(idx) if idx else np.zeros(0, dtype=np.int64)
+    return Code(o.words[np.sort(rows)].reshape(len(rows), o.words.shape[1]), q)
 
 
 def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
@@ -422,9 +426,9 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
     vertex_of = position[np.searchsorted(orbits.reps, orbits.label)]
     reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
     weight = orbits.sizes[kept].astype(np.int64)
-    space = np.arange(1 << params.n, dtype=np.int64)
-    masks = space[(_popcount(space.astype(np.uint64)) < params.d) & (space > 0)]
-    del space
+    from codesearch.search._wordspace import ball_masks
+
+    masks = ball_masks(params.n, params.d - 1)[1:]  # weights 1 .. d-1 (the zero mask first)
     in_set = np.zeros(k, dtype=np.bool_)
     best_set = np.zeros(k, dtype=np.bool_)
     conflicts = np.zeros(k, dtype=np.int64)
@@ -451,10 +455,7 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
     chosen = np.flatnonzero(best_set)
     if chosen.size == 0:
         return None, made, k
-    o = orbits
-    rows = np.concatenate([o.order[o.starts[j]:o.starts[j + 1]] for j in kept[chosen]])
-    code = Code(o.words[np.sort(rows)], params.q)
-    return code, made, k
+    return _union_code(orbits, kept[chosen], params.q), made, k
 
 
 # ------------------------------------------------------------------------------ method entry
