@@ -38,6 +38,21 @@ def _int_range(text: str) -> range:
     return range(a, b + 1)
 
 
+def _word_count(text: str) -> int:
+    """Parse a positive word count: ``N`` or ``2^K``."""
+    try:
+        if "^" in text:
+            base, exp = text.split("^", 1)
+            value = int(base) ** int(exp)
+        else:
+            value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a count N or 2^K, got {text!r}")
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected a positive count, got {text!r}")
+    return value
+
+
 #: Digits of the longest exact integer this tool prints (q^n at q = 36, n = 4096 has 6375).
 _JSON_DIGITS = 8000
 
@@ -323,6 +338,11 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
         "the exact clique search; 'heuristic' stops after the heuristics; 'sparse' (q = 2) "
         "skips the graph and finds conflicts on demand, for groups that leave more "
         "admissible orbits than the graph's limit (heuristic, nothing proved)")
+    p.add_argument(
+        "--max-words", dest="max_words", type=_word_count, metavar="N",
+        help="orbit: list the orbits of spaces of up to N words, N or 2^K (default 2^22; "
+        "about 100 bytes of memory per word, e.g. 6-7 GB at 2^26; refused when the "
+        "estimate exceeds the memory available)")
     _COMMANDS["find"] = _cmd_find
 
 
@@ -335,7 +355,7 @@ def _cmd_find(args: argparse.Namespace) -> int:
     params = Params(args.q, args.n, args.d)
     _kernels_first()  # after the input is checked: bad input never waits for the compiler
     with find_progress(_progress_mode(args), str(params)) as prog:
-        options = {name: getattr(args, name) for name in ("size", "proof", "group", "mode")
+        options = {name: getattr(args, name) for name in ("size", "proof", "group", "mode", "max_words")
                    if getattr(args, name, None) is not None}
         result = search(params, args.method, time_limit=args.time, seed=args.seed,
                         progress=prog, **options)

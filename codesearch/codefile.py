@@ -58,6 +58,7 @@ __all__ = [
     "read_certificate",
     "write_certificate",
     "check_fits_in_memory",
+    "available_memory",
 ]
 
 #: Format name and version written in every file this tool produces.
@@ -101,7 +102,8 @@ class CodeFile:
         return None if value in (None, "") else int(value)
 
 
-def _available_memory() -> int:
+def available_memory() -> int:
+    """Bytes of memory available now (MemAvailable; 2^62 when unknown)."""
     try:
         with open("/proc/meminfo") as fh:
             for line in fh:
@@ -117,7 +119,7 @@ def _available_memory() -> int:
 
 def check_fits_in_memory(path: str, needed: int, what: str) -> None:
     """Raise InputError when ``needed`` bytes clearly exceed the memory available now."""
-    avail = _available_memory()
+    avail = available_memory()
     if needed > avail:
         raise InputError(
             f"{path}: too large for memory: {what} needs about {needed / 2**30:.1f} GiB, "

@@ -103,7 +103,7 @@ def test_missing_file_and_directory_through_cli(tmp_path):
 def test_too_large_for_memory_is_refused_before_reading(tmp_path, monkeypatch):
     path = tmp_path / "big.txt"
     path.write_text("0101\n" * 1000)
-    monkeypatch.setattr(codefile, "_available_memory", lambda: 1000)
+    monkeypatch.setattr(codefile, "available_memory", lambda: 1000)
     with pytest.raises(InputError, match="too large for memory"):
         codefile.read_code(str(path))
 

@@ -429,6 +429,6 @@ def test_public_api_of_the_orbit_modules():
                                            "sparse_orbit_search"])
     assert sorted(groups.__all__) == sorted([
         "Generator", "Group", "Orbits", "parse_group", "all_words", "encode", "compute_orbits",
-        "is_invariant", "DEFAULT_MAX_WORDS"])
+        "is_invariant", "DEFAULT_MAX_WORDS", "orbit_memory"])
     assert orbit.OPTIONS == {"group", "mode", "restarts", "iterations", "size", "max_words",
                              "max_orbits"}

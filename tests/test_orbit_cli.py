@@ -65,3 +65,33 @@ def test_find_orbit_sparse_mode(capsys):
 def test_orbit_mode_misuse_is_a_one_line_error(capsys, argv):
     status, _, err = _run(capsys, ["find", *argv, "--orbit-mode", "sparse"])
     assert status == 2 and len(err.strip().splitlines()) == 1
+
+
+def test_max_words_raises_the_orbit_listing_limit(capsys):
+    # A(7,3) = 16: the cyclic Hamming code is perfect (sphere-packing bound met; common practice)
+    status, _, err = _run(capsys, ["find", "7", "3", "--method", "orbit", "--max-words", "64"])
+    assert status == 2 and len(err.strip().splitlines()) == 1 and "--max-words" in err
+    status, out, _ = _run(capsys, ["find", "7", "3", "--method", "orbit", "--max-words", "2^7",
+                                   "--json"])
+    assert status == 0 and json.loads(out.strip().splitlines()[-1])["size"] == 16
+
+
+@pytest.mark.parametrize("value", ["2^x", "0"])
+def test_bad_max_words_is_a_usage_error(capsys, value):
+    with pytest.raises(SystemExit) as exc:
+        cli.main(["find", "7", "3", "--method", "orbit", "--max-words", value])
+    err = capsys.readouterr().err
+    assert exc.value.code == 2 and "--max-words" in err.strip().splitlines()[-1]
+
+
+def test_max_words_on_another_method_is_a_one_line_error(capsys):
+    status, _, err = _run(capsys, ["find", "7", "3", "--method", "greedy", "--max-words", "128"])
+    assert status == 2 and len(err.strip().splitlines()) == 1 and "max_words" in err
+
+
+def test_orbit_listing_that_would_not_fit_in_memory_is_refused(capsys, monkeypatch):
+    from codesearch.search import groups
+
+    monkeypatch.setattr(groups, "available_memory", lambda: 1 << 20)
+    status, _, err = _run(capsys, ["find", "16", "6", "--method", "orbit", "--group", "rm1"])
+    assert status == 2 and len(err.strip().splitlines()) == 1 and "GiB" in err
