@@ -96,12 +96,12 @@ DEFAULT_MAX_WORDS = 1 << 22
 def orbit_memory(group: "Group") -> int:
     """Bytes the orbit listing and the admissibility test of ``group`` need at their peak.
 
-    Per word of the space: the word itself (n bytes) and about 8 + (number of generators)
-    int64 arrays (labels, their copies, sort order, one image per generator, bit planes and
-    distances). Measured (peak RSS, 2-core machine): 6.1 GB for q^n = 2^26 with 2 generators,
-    against 7.1 GB estimated; the estimate errs on the safe side.
+    Per word of the space: about 8 + (number of generators) int64 arrays (labels, their
+    copies, sort order, one image per generator, bit planes and distances), and for q > 2 the
+    word itself (n bytes; binary words are decoded from their index).
     """
-    return group.q**group.n * (group.n + 8 * (8 + len(group.generators)))
+    table = group.n if group.q > 2 else 0
+    return group.q**group.n * (table + 8 * (8 + len(group.generators)))
 
 
 @dataclass(frozen=True, eq=False)
@@ -400,8 +400,8 @@ class Orbits:
 
     Attributes
     ----------
-    words : numpy.ndarray
-        ``(q**n, n)`` uint8, row r the word with index r.
+    q, n : int
+        Alphabet size and length.
     label : numpy.ndarray
         ``label[r]`` is the least index in the orbit of word r (the orbit's representative).
     order : numpy.ndarray
@@ -410,13 +410,48 @@ class Orbits:
         Orbit k occupies ``order[starts[k]:starts[k+1]]`` (one trailing sentinel).
     reps : numpy.ndarray
         Representative (least index) of each orbit.
+    stored : numpy.ndarray or None
+        ``(q**n, n)`` uint8 words (q > 2); binary words are decoded from their index
+        instead (bit i of r is coordinate i), so no word table is held.
     """
 
-    words: np.ndarray
+    q: int
+    n: int
     label: np.ndarray
     order: np.ndarray
     starts: np.ndarray
     reps: np.ndarray
+    stored: np.ndarray | None = None
+
+    @property
+    def words(self) -> np.ndarray:
+        """Every word as a ``(q**n, n)`` uint8 array, row r the word with index r."""
+        if self.stored is not None:
+            return self.stored
+        return all_words(self.q, self.n)
+
+    def rows(self, indices: np.ndarray) -> np.ndarray:
+        """The words with the given indices, as uint8 rows."""
+        indices = np.asarray(indices, dtype=np.int64)
+        if self.stored is not None:
+            return self.stored[indices].reshape(indices.size, self.n)
+        bits = (indices[:, None] >> np.arange(self.n, dtype=np.int64)) & 1
+        return bits.astype(np.uint8)
+
+    def planes(self) -> list[np.ndarray]:
+        """Bit planes of every word as uint64 integers: bit i of plane p is bit p of symbol
+        i (binary: the index itself). Two words differ at coordinate i iff some plane differs
+        at bit i, so ``dist = popcount(OR_p plane_p(x) XOR plane_p(y))``."""
+        if self.stored is None:
+            return [np.arange(self.q**self.n, dtype=np.uint64)]
+        words = self.stored
+        out = []
+        for p in range(max(1, (self.q - 1).bit_length())):
+            acc = np.zeros(words.shape[0], dtype=np.uint64)
+            for i in range(self.n):
+                acc |= ((words[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
+            out.append(acc)
+        return out
 
     @property
     def count(self) -> int:
@@ -427,6 +462,28 @@ class Orbits:
     def sizes(self) -> np.ndarray:
         """Size of each orbit."""
         return np.diff(self.starts)
+
+
+def _binary_image(g: Generator, n: int) -> np.ndarray:
+    """Index of the image of every binary word (index r: bit i is coordinate i) under ``g``,
+    computed on the indices, without a table of words."""
+    idx = np.arange(1 << n, dtype=np.int64)
+    if g.kind == "perm":
+        # apply() moves coordinate i to position data[i]; one table lookup per byte of the
+        # index: table[b] = image of the byte b placed at coordinates 8k .. 8k + 7
+        target = g.data.tolist()
+        out = np.zeros_like(idx)
+        for k in range(0, n, 8):
+            table = np.zeros(256, dtype=np.int64)
+            for b in range(256):
+                table[b] = sum(1 << target[k + t] for t in range(min(8, n - k)) if b >> t & 1)
+            out |= table[(idx >> k) & 255]
+        return out
+    if g.kind == "symbol":
+        flip = int(g.data[0]) == 1  # the only symbol maps of {0, 1}: identity and swap
+        return idx ^ ((1 << n) - 1) if flip else idx
+    mask = sum(1 << i for i, b in enumerate(g.data.tolist()) if b)
+    return idx ^ mask
 
 
 def compute_orbits(group: Group, max_words: int = DEFAULT_MAX_WORDS) -> Orbits:
@@ -455,8 +512,12 @@ def compute_orbits(group: Group, max_words: int = DEFAULT_MAX_WORDS) -> Orbits:
         raise ParameterError(
             f"orbit search over q^n = {total} words needs about {needed / 2**30:.1f} GiB of "
             f"memory, {avail / 2**30:.1f} GiB available")
-    words = all_words(q, n)
-    images = [encode(g.apply(words, q), q) for g in group.generators]
+    if q == 2:
+        words = None
+        images = [_binary_image(g, n) for g in group.generators]
+    else:
+        words = all_words(q, n)
+        images = [encode(g.apply(words, q), q) for g in group.generators]
     label = np.arange(total, dtype=np.int64)
     while True:
         before = label.copy()
@@ -477,7 +538,7 @@ def compute_orbits(group: Group, max_words: int = DEFAULT_MAX_WORDS) -> Orbits:
     first = np.flatnonzero(np.r_[True, sorted_labels[1:] != sorted_labels[:-1]])
     starts = np.r_[first, total].astype(np.int64)
     reps = sorted_labels[first]
-    return Orbits(words=words, label=label, order=order, starts=starts, reps=reps)
+    return Orbits(q=q, n=n, label=label, order=order, starts=starts, reps=reps, stored=words)
 
 
 def is_invariant(code: Code, group: Group) -> bool:

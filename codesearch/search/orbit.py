@@ -96,24 +96,7 @@ def _union_code(o: _groups.Orbits, orbit_ids: np.ndarray, q: int) -> Code:
     """The union of the orbits ``orbit_ids`` (indices into ``o``) as a code."""
     idx = [o.order[o.starts[k]:o.starts[k + 1]] for k in orbit_ids]
     rows = np.concatenate(idx) if idx else np.zeros(0, dtype=np.int64)
-    return Code(o.words[np.sort(rows)].reshape(len(rows), o.words.shape[1]), q)
-
-
-def _planes(words: np.ndarray, q: int) -> list[np.ndarray]:
-    """Bit planes of every word as uint64 integers: bit i of plane p is bit p of symbol i.
-
-    Two words differ at coordinate i iff some plane differs at bit i, so
-    ``dist = popcount(OR_p plane_p(x) XOR plane_p(y))``.
-    """
-    n = words.shape[1]
-    nplanes = max(1, (q - 1).bit_length())
-    out = []
-    for p in range(nplanes):
-        acc = np.zeros(words.shape[0], dtype=np.uint64)
-        for i in range(n):
-            acc |= ((words[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
-        out.append(acc)
-    return out
+    return Code(o.rows(np.sort(rows)), q)
 
 
 _BYTE_POPCOUNT = np.array([bin(i).count("1") for i in range(256)], dtype=np.int64)
@@ -140,7 +123,7 @@ def _admissible(params: Params, group: _groups.Group, max_words: int
     excluded), is the orbit's own minimum distance (isometry argument, step 2).
     """
     orbits = _groups.compute_orbits(group, max_words=max_words)
-    planes = _planes(orbits.words, params.q)
+    planes = orbits.planes()
     diff = planes[0] ^ planes[0][orbits.label]
     for pl in planes[1:]:
         diff |= pl ^ pl[orbits.label]
