@@ -1269,6 +1269,64 @@ def heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr, pa
 
 
 # ======================================================================= orbits (orbit search)
+@nb.njit(nb.void(nb.int64[::1], nb.int64[::1]), cache=True)
+def orbit_union(parent, image):
+    """Join every index r with ``image[r]`` in the union-find forest ``parent``.
+
+    Roots are always the least index of their tree (the larger root is linked under the
+    smaller), so after :func:`orbit_flatten` each index points at the least index of its
+    orbit. Path halving keeps the trees shallow.
+    """
+    for r in range(parent.shape[0]):
+        a = r
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        b = image[r]
+        while parent[b] != b:
+            parent[b] = parent[parent[b]]
+            b = parent[b]
+        if a < b:
+            parent[b] = a
+        elif b < a:
+            parent[a] = b
+
+
+@nb.njit(nb.types.UniTuple(nb.int64[::1], 3)(nb.int64[::1]), cache=True)
+def orbit_flatten(parent):
+    """Point every index at its root (in place) and group the indices by root.
+
+    Returns ``order`` (indices grouped by orbit, orbits by increasing root, indices increasing
+    within an orbit), ``starts`` (orbit k is ``order[starts[k]:starts[k+1]]``) and ``reps``
+    (the roots, increasing). Relies on ``parent[r] <= r`` (see :func:`orbit_union`): in
+    increasing r, ``parent[parent[r]]`` is already a root.
+    """
+    total = parent.shape[0]
+    count = 0
+    for r in range(total):
+        parent[r] = parent[parent[r]]
+        if parent[r] == r:
+            count += 1
+    reps = np.empty(count, dtype=np.int64)
+    slot = np.empty(total, dtype=np.int64)  # slot[root] = orbit number, then fill position
+    sizes = np.zeros(count + 1, dtype=np.int64)
+    k = 0
+    for r in range(total):
+        if parent[r] == r:
+            reps[k] = r
+            slot[r] = k
+            k += 1
+        sizes[slot[parent[r]] + 1] += 1
+    starts = np.cumsum(sizes)
+    fill = starts[:-1].copy()
+    order = np.empty(total, dtype=np.int64)
+    for r in range(total):
+        o = slot[parent[r]]
+        order[fill[o]] = r
+        fill[o] += 1
+    return order, starts, reps
+
+
 @nb.njit(
     nb.void(nb.uint64[:, ::1], nb.int64[::1], nb.int64[::1], nb.int64[::1], nb.int64,
             nb.int64, nb.int64, nb.uint8[:, ::1]),

@@ -296,6 +296,34 @@ def heur_conflicts(words, q: int, n: int, d: int) -> list[int]:
 # ======================================================================= orbits (orbit search)
 
 
+def orbit_labels(images: list) -> tuple[list[int], list[int], list[int], list[int]]:
+    """Twin of :func:`codesearch._kernels.orbit_union` + :func:`~codesearch._kernels.orbit_flatten`,
+    by breadth-first search over the generator graph: ``(label, order, starts, reps)`` with
+    ``label[r]`` the least index of the orbit of r."""
+    total = len(images[0]) if images else 0
+    label = [-1] * total
+    members: list[list[int]] = []
+    for r in range(total):
+        if label[r] >= 0:
+            continue
+        orbit, queue = [r], [r]
+        label[r] = r
+        while queue:
+            x = queue.pop()
+            for img in images:
+                y = int(img[x])
+                if label[y] < 0:
+                    label[y] = r
+                    orbit.append(y)
+                    queue.append(y)
+        members.append(sorted(orbit))
+    order = [x for orbit in members for x in orbit]
+    starts = [0]
+    for orbit in members:
+        starts.append(starts[-1] + len(orbit))
+    return label, order, starts, [orbit[0] for orbit in members]
+
+
 def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj) -> None:
     """Twin of :func:`codesearch._kernels.orbit_adjacency_rows`, by the definition.
 

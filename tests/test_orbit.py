@@ -219,6 +219,24 @@ def test_orbit_graph_matches_all_pairs(q, n, d, data):
     assert not g.adj.diagonal().any()
 
 
+@given(total=st.integers(1, 60), ngens=st.integers(0, 3), seed=st.integers(0, 10**6))
+def test_union_find_orbit_kernels_match_the_reference(total, ngens, seed):
+    # Random permutations of 0..total-1 as generators: the kernels' labels, grouping and
+    # representatives equal those of a breadth-first search over the generator graph.
+    from codesearch import _kernels
+
+    rng = np.random.default_rng(seed)
+    images = [rng.permutation(total).astype(np.int64) for _ in range(ngens)]
+    parent = np.arange(total, dtype=np.int64)
+    for img in images:
+        _kernels.orbit_union(parent, img)
+    order, starts, reps = _kernels.orbit_flatten(parent)
+    label, order_ref, starts_ref, reps_ref = ref.orbit_labels(images or [np.arange(total)])
+    assert parent.tolist() == label
+    assert order.tolist() == order_ref and starts.tolist() == starts_ref
+    assert reps.tolist() == reps_ref
+
+
 @given(data=st.data())
 def test_adjacency_kernel_equals_twin(data):
     from codesearch import _kernels
