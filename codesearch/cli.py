@@ -341,8 +341,8 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument(
         "--max-words", dest="max_words", type=_word_count, metavar="N",
         help="orbit: list the orbits of spaces of up to N words, N or 2^K (default 2^22; "
-        "about 100 bytes of memory per word, e.g. 6-7 GB at 2^26; refused when the "
-        "estimate exceeds the memory available)")
+        "about 64 bytes of memory per word, 4 GB at 2^26; refused when the estimate "
+        "exceeds the memory available)")
     _COMMANDS["find"] = _cmd_find
 
 
@@ -355,7 +355,8 @@ def _cmd_find(args: argparse.Namespace) -> int:
     params = Params(args.q, args.n, args.d)
     _kernels_first()  # after the input is checked: bad input never waits for the compiler
     with find_progress(_progress_mode(args), str(params)) as prog:
-        options = {name: getattr(args, name) for name in ("size", "proof", "group", "mode", "max_words")
+        names = ("size", "proof", "group", "mode", "max_words")
+        options = {name: getattr(args, name) for name in names
                    if getattr(args, name, None) is not None}
         result = search(params, args.method, time_limit=args.time, seed=args.seed,
                         progress=prog, **options)

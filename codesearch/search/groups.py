@@ -88,7 +88,7 @@ __all__ = [
     "orbit_memory",
 ]
 
-#: Largest ambient space (q**n) whose orbits are computed by default (about 0.4 GB of working
+#: Largest ambient space (q**n) whose orbits are computed by default (about 0.3 GB of working
 #: memory at n = 22); the option ``max_words`` (``find --max-words``) raises it.
 DEFAULT_MAX_WORDS = 1 << 22
 
