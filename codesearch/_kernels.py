@@ -1308,7 +1308,7 @@ def orbit_flatten(parent):
         if parent[r] == r:
             count += 1
     reps = np.empty(count, dtype=np.int64)
-    slot = np.empty(total, dtype=np.int64)  # slot[root] = orbit number, then fill position
+    slot = np.empty(total, dtype=np.int64)  # slot[root] = orbit number of that root
     sizes = np.zeros(count + 1, dtype=np.int64)
     k = 0
     for r in range(total):

@@ -42,8 +42,10 @@ def _word_count(text: str) -> int:
     """Parse a positive word count: ``N`` or ``2^K``."""
     try:
         if "^" in text:
-            base, exp = text.split("^", 1)
-            value = int(base) ** int(exp)
+            base, exp = (int(part) for part in text.split("^", 1))
+            if exp > 64:  # far past any memory; also keeps the power cheap to compute
+                raise argparse.ArgumentTypeError(f"count {text!r} is far too large")
+            value = base**exp
         else:
             value = int(text)
     except ValueError:

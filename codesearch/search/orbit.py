@@ -402,6 +402,7 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
     if k == 0:
         return None, 0, 0
     from codesearch import _kernels
+    from codesearch.search._wordspace import ball_masks
 
     position = np.full(orbits.count, -1, dtype=np.int64)
     position[kept] = np.arange(k, dtype=np.int64)
@@ -409,8 +410,6 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
     vertex_of = position[np.searchsorted(orbits.reps, orbits.label)]
     reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
     weight = orbits.sizes[kept].astype(np.int64)
-    from codesearch.search._wordspace import ball_masks
-
     masks = ball_masks(params.n, params.d - 1)[1:]  # weights 1 .. d-1 (the zero mask first)
     in_set = np.zeros(k, dtype=np.bool_)
     best_set = np.zeros(k, dtype=np.bool_)
