@@ -36,6 +36,15 @@ def _stop(proc: subprocess.Popen) -> None:
             proc.wait(timeout=5)
 
 
+def _scheduler_address(info) -> str | None:
+    """The address in the scheduler file, or None while the file is missing or half-written
+    (the scheduler creates it before it writes the JSON)."""
+    try:
+        return json.loads(info.read_text())["address"]
+    except (OSError, ValueError, KeyError):
+        return None
+
+
 @pytest.fixture
 def dask_scheduler(tmp_path):
     """Address of a scheduler with one single-threaded worker, both stopped afterwards."""
@@ -51,8 +60,8 @@ def dask_scheduler(tmp_path):
                                "--no-dashboard", "--scheduler-file", str(info)],
                               stdout=log, stderr=subprocess.STDOUT, env=env, cwd=tmp_path)]
     try:
-        _wait_for(info.exists, 60, "the Dask scheduler")
-        address = json.loads(info.read_text())["address"]
+        _wait_for(lambda: _scheduler_address(info) is not None, 60, "the Dask scheduler")
+        address = _scheduler_address(info)
         procs.append(subprocess.Popen([dask, "worker", address, "--nworkers", "1",
                                        "--nthreads", "1", "--no-dashboard", "--host",
                                        "127.0.0.1"],
