@@ -1269,6 +1269,26 @@ def heur_local_grow(q, n, d, space, M, words, conf, mode, pw, masks, pat_ptr, pa
 
 
 # ======================================================================= orbits (orbit search)
+@nb.njit(cache=True)
+def _union_root(parent, a):
+    """Root of ``a`` in the union-find forest, halving the path on the way."""
+    while parent[a] != a:
+        parent[a] = parent[parent[a]]
+        a = parent[a]
+    return a
+
+
+@nb.njit(cache=True)
+def _union_link(parent, r, s):
+    """Join the trees of r and s, the larger root under the smaller."""
+    a = _union_root(parent, r)
+    b = _union_root(parent, s)
+    if a < b:
+        parent[b] = a
+    elif b < a:
+        parent[a] = b
+
+
 @nb.njit(nb.void(nb.int64[::1], nb.int64[::1]), cache=True)
 def orbit_union(parent, image):
     """Join every index r with ``image[r]`` in the union-find forest ``parent``.
@@ -1278,18 +1298,33 @@ def orbit_union(parent, image):
     orbit. Path halving keeps the trees shallow.
     """
     for r in range(parent.shape[0]):
-        a = r
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        b = image[r]
-        while parent[b] != b:
-            parent[b] = parent[parent[b]]
-            b = parent[b]
-        if a < b:
-            parent[b] = a
-        elif b < a:
-            parent[a] = b
+        _union_link(parent, r, image[r])
+
+
+@nb.njit(cache=True)
+def _index_image(tables, mask, r):
+    """Image of the binary word with index r under a coordinate permutation followed by a
+    translation: ``tables[k, b]`` is the image of byte value b at coordinates 8k .. 8k + 7,
+    ``mask`` the translation (bit i = coordinate i)."""
+    out = mask
+    for k in range(tables.shape[0]):
+        out ^= tables[k, (r >> (8 * k)) & 255]
+    return out
+
+
+@nb.njit(nb.void(nb.int64[:, ::1], nb.int64, nb.int64[::1]), cache=True)
+def binary_image(tables, mask, out):
+    """``out[r]`` = index of the image of binary word r (see :func:`_index_image`)."""
+    for r in range(out.shape[0]):
+        out[r] = _index_image(tables, mask, r)
+
+
+@nb.njit(nb.void(nb.int64[::1], nb.int64[:, ::1], nb.int64), cache=True)
+def orbit_union_binary(parent, tables, mask):
+    """:func:`orbit_union` with the image of each binary word computed on the fly
+    (:func:`_index_image`), so no image array is held."""
+    for r in range(parent.shape[0]):
+        _union_link(parent, r, _index_image(tables, mask, r))
 
 
 @nb.njit(nb.types.UniTuple(nb.int64[::1], 3)(nb.int64[::1]), cache=True)
@@ -1325,6 +1360,49 @@ def orbit_flatten(parent):
         order[fill[o]] = r
         fill[o] += 1
     return order, starts, reps
+
+
+@nb.njit(nb.int64[::1](nb.int64[::1], nb.int64[::1], nb.int64[::1]), cache=True)
+def orbit_vertex_of(order, starts, kept):
+    """``out[x]`` = v when word x lies in orbit ``kept[v]``, else -1 (orbit k is
+    ``order[starts[k]:starts[k+1]]``)."""
+    out = np.full(order.shape[0], -1, dtype=np.int64)
+    for v in range(kept.shape[0]):
+        k = kept[v]
+        for t in range(starts[k], starts[k + 1]):
+            out[order[t]] = v
+    return out
+
+
+@nb.njit(nb.int64[::1](nb.uint64[:, ::1], nb.int64[::1], nb.int64[::1], nb.int64), cache=True)
+def orbit_inner_distance(planes, order, starts, n):
+    """Minimum distance inside each orbit, ``n + 1`` for an orbit of one word.
+
+    Orbit k is ``order[starts[k]:starts[k+1]]``, its least index first (its representative).
+    Distances are taken from the representative, which is the orbit's own minimum distance
+    (the group acts by isometries). ``planes[p, w]`` is bit plane p of word w as in
+    :func:`orbit_adjacency_rows`; with no planes (``planes.shape[0] == 0``) the words are
+    binary and their indices are the words themselves.
+    """
+    count = starts.shape[0] - 1
+    nplanes = planes.shape[0]
+    out = np.empty(count, dtype=np.int64)
+    for k in range(count):
+        r = order[starts[k]]
+        best = n + 1
+        for t in range(starts[k] + 1, starts[k + 1]):
+            w = order[t]
+            if nplanes == 0:
+                diff = np.uint64(r ^ w)
+            else:
+                diff = np.uint64(0)
+                for p in range(nplanes):
+                    diff |= planes[p, r] ^ planes[p, w]
+            dist = popcount64(diff)
+            if dist < best:
+                best = dist
+        out[k] = best
+    return out
 
 
 @nb.njit(

@@ -324,6 +324,29 @@ def orbit_labels(images: list) -> tuple[list[int], list[int], list[int], list[in
     return label, order, starts, [orbit[0] for orbit in members]
 
 
+def orbit_inner_distance(planes, order, starts, n) -> list[int]:
+    """Twin of :func:`codesearch._kernels.orbit_inner_distance`, by the definition: the least
+    distance between two words of each orbit (all pairs), ``n + 1`` for one word; with no
+    planes the words are their indices."""
+    def word(w):
+        if planes.shape[0] == 0:
+            return [int(w)]
+        return [int(planes[p, w]) for p in range(planes.shape[0])]
+
+    out = []
+    for k in range(len(starts) - 1):
+        members = [int(w) for w in order[int(starts[k]):int(starts[k + 1])]]
+        best = n + 1
+        for i, a in enumerate(members):
+            for b in members[i + 1:]:
+                diff = 0
+                for x, y in zip(word(a), word(b)):
+                    diff |= x ^ y
+                best = min(best, bin(diff).count("1"))
+        out.append(best)
+    return out
+
+
 def orbit_adjacency_rows(planes, reps, words, starts, d, lo, hi, adj) -> None:
     """Twin of :func:`codesearch._kernels.orbit_adjacency_rows`, by the definition.
 

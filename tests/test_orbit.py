@@ -81,8 +81,17 @@ def test_binary_images_computed_on_indices_match_the_word_table(spec):
     n = 15 if spec == "rm1" else 10
     group = groups.parse_group(spec, 2, n)
     words = groups.all_words(2, n)
+    from codesearch import _kernels
+
+    fused = np.arange(2**n, dtype=np.int64)
+    by_table = np.arange(2**n, dtype=np.int64)
     for g in group.generators:
-        assert np.array_equal(groups._binary_image(g, n), groups.encode(g.apply(words, 2), 2))
+        image = groups.encode(g.apply(words, 2), 2)
+        assert np.array_equal(groups._binary_image(g, n), image)
+        # the union-find that computes images on the fly joins the same pairs
+        _kernels.orbit_union_binary(fused, *groups._binary_tables(g, n))
+        _kernels.orbit_union(by_table, np.ascontiguousarray(image, dtype=np.int64))
+    assert np.array_equal(_kernels.orbit_flatten(fused)[0], _kernels.orbit_flatten(by_table)[0])
     o = groups.compute_orbits(group)
     assert np.array_equal(o.rows(np.arange(2**n)), words)
     assert np.array_equal(o.planes()[0], groups.encode(words, 2).astype(np.uint64))
@@ -235,6 +244,31 @@ def test_union_find_orbit_kernels_match_the_reference(total, ngens, seed):
     assert parent.tolist() == label
     assert order.tolist() == order_ref and starts.tolist() == starts_ref
     assert reps.tolist() == reps_ref
+
+
+@given(data=st.data())
+def test_inner_distance_kernel_equals_twin(data):
+    # The admissibility test's kernel (distances from each orbit's first word) against all
+    # pairs inside each orbit, which is the same minimum only for orbits of a group of
+    # isometries: so the orbits here are true orbits, of random permutation groups on words.
+    from codesearch import _kernels
+
+    q = data.draw(st.sampled_from([2, 3]))
+    n = data.draw(st.integers(2, 6))
+    nperm = data.draw(st.integers(1, 2))
+    # random cycles on the coordinates, written as a perm spec (a fixed point is allowed)
+    specs = []
+    for _ in range(nperm):
+        points = data.draw(st.permutations(range(n)))
+        cut = data.draw(st.integers(2, n))
+        specs.append("perm:(" + " ".join(map(str, points[:cut])) + ")")
+    spec = "*".join(specs) + ("*rep" if q == 2 else "*scale")
+    group = groups.parse_group(spec, q, n)
+    o = groups.compute_orbits(group)
+    planes = (np.zeros((0, 0), dtype=np.uint64) if o.stored is None
+              else np.ascontiguousarray(np.stack(o.planes())))
+    fast = _kernels.orbit_inner_distance(planes, o.order, o.starts, n)
+    assert fast.tolist() == ref.orbit_inner_distance(planes, o.order, o.starts, n)
 
 
 @given(data=st.data())

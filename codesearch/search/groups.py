@@ -96,14 +96,16 @@ DEFAULT_MAX_WORDS = 1 << 22
 def orbit_memory(group: "Group") -> int:
     """Bytes the orbit listing and the admissibility test of ``group`` need at their peak.
 
-    Per word of the space: 8 int64 arrays at most at a time (union-find parents, one
-    generator image and its temporaries, grouping order, bit planes, distances), and for
-    q > 2 the word itself (n bytes; binary words are decoded from their index). Measured peak
-    RSS of a whole `find --method orbit` run: 1.77 GB at 2^25 words (estimate 2.1 GB), 3.34 GB
-    at 2^26 with 5 generators (estimate 4.3 GB).
+    Binary: 5 int64 arrays per word of the space at most at a time (union-find parents, the
+    grouping order and its slot table, the orbit of each word in the sparse mode; generator
+    images are computed on the fly). Measured peak RSS of a whole `find --method orbit` run:
+    0.73 GB at 2^25 words (estimate 1.25 GiB), 1.27 GB at 2^26 with 5 generators (2.5 GiB);
+    the sparse mode 1.29 GB at 2^25. For q > 2 also the word table (n bytes per word) and one
+    image array with its temporaries: 8 int64 arrays.
     """
-    table = group.n if group.q > 2 else 0
-    return group.q**group.n * (table + 64)
+    if group.q == 2:
+        return 40 << group.n
+    return group.q**group.n * (group.n + 64)
 
 
 @dataclass(frozen=True, eq=False)
@@ -466,26 +468,40 @@ class Orbits:
         return np.diff(self.starts)
 
 
+def _binary_tables(g: Generator, n: int) -> tuple[np.ndarray, int]:
+    """``(tables, mask)`` with the image of binary word r (bit i = coordinate i) under ``g``
+    equal to ``mask`` XOR the ``tables[k, (r >> 8k) & 255]`` (kernel ``_index_image``).
+
+    ``tables[k, b]`` is the image of the byte value b placed at coordinates 8k .. 8k + 7: for a
+    permutation, apply() moves coordinate i to position data[i]; for the complement and the
+    translations the tables are the identity and ``mask`` is the translation.
+    """
+    nbytes = (n + 7) // 8
+    target = g.data.tolist() if g.kind == "perm" else list(range(n))
+    tables = np.zeros((nbytes, 256), dtype=np.int64)
+    for k in range(nbytes):
+        for b in range(min(256, 1 << (n - 8 * k))):
+            tables[k, b] = sum(1 << target[8 * k + t] for t in range(min(8, n - 8 * k))
+                               if b >> t & 1)
+    if g.kind == "perm":
+        mask = 0
+    elif g.kind == "symbol":
+        # the only symbol maps of {0, 1}: identity and swap (the complement)
+        mask = (1 << n) - 1 if int(g.data[0]) == 1 else 0
+    else:
+        mask = sum(1 << i for i, b in enumerate(g.data.tolist()) if b)
+    return tables, mask
+
+
 def _binary_image(g: Generator, n: int) -> np.ndarray:
     """Index of the image of every binary word (index r: bit i is coordinate i) under ``g``,
     computed on the indices, without a table of words."""
-    idx = np.arange(1 << n, dtype=np.int64)
-    if g.kind == "perm":
-        # apply() moves coordinate i to position data[i]; one table lookup per byte of the
-        # index: table[b] = image of the byte b placed at coordinates 8k .. 8k + 7
-        target = g.data.tolist()
-        out = np.zeros_like(idx)
-        for k in range(0, n, 8):
-            table = np.zeros(256, dtype=np.int64)
-            for b in range(256):
-                table[b] = sum(1 << target[k + t] for t in range(min(8, n - k)) if b >> t & 1)
-            out |= table[(idx >> k) & 255]
-        return out
-    if g.kind == "symbol":
-        flip = int(g.data[0]) == 1  # the only symbol maps of {0, 1}: identity and swap
-        return idx ^ ((1 << n) - 1) if flip else idx
-    mask = sum(1 << i for i, b in enumerate(g.data.tolist()) if b)
-    return idx ^ mask
+    from codesearch import _kernels
+
+    tables, mask = _binary_tables(g, n)
+    out = np.empty(1 << n, dtype=np.int64)
+    _kernels.binary_image(tables, mask, out)
+    return out
 
 
 def compute_orbits(group: Group, max_words: int = DEFAULT_MAX_WORDS) -> Orbits:
@@ -518,10 +534,14 @@ def compute_orbits(group: Group, max_words: int = DEFAULT_MAX_WORDS) -> Orbits:
 
     words = None if q == 2 else all_words(q, n)
     parent = np.arange(total, dtype=np.int64)
-    for g in group.generators:  # one image array at a time
-        image = _binary_image(g, n) if q == 2 else encode(g.apply(words, q), q)
-        _kernels.orbit_union(parent, np.ascontiguousarray(image, dtype=np.int64))
-        del image
+    for g in group.generators:
+        if q == 2:  # images computed on the fly from byte tables
+            tables, mask = _binary_tables(g, n)
+            _kernels.orbit_union_binary(parent, tables, mask)
+        else:  # one image array at a time
+            image = encode(g.apply(words, q), q)
+            _kernels.orbit_union(parent, np.ascontiguousarray(image, dtype=np.int64))
+            del image
     order, starts, reps = _kernels.orbit_flatten(parent)
     label = parent
     return Orbits(q=q, n=n, label=label, order=order, starts=starts, reps=reps, stored=words)

@@ -99,38 +99,39 @@ def _union_code(o: _groups.Orbits, orbit_ids: np.ndarray, q: int) -> Code:
     return Code(o.rows(np.sort(rows)), q)
 
 
-_BYTE_POPCOUNT = np.array([bin(i).count("1") for i in range(256)], dtype=np.int64)
-
-
-def _popcount(x: np.ndarray) -> np.ndarray:
-    """Bits set in each uint64 (numpy >= 2 has ``bitwise_count``; a byte table otherwise)."""
-    if hasattr(np, "bitwise_count"):
-        return np.bitwise_count(x).astype(np.int64)
-    as_bytes = np.ascontiguousarray(x, dtype=np.uint64).view(np.uint8).reshape(x.size, 8)
-    return _BYTE_POPCOUNT[as_bytes].sum(axis=1)
-
-
 class _GraphTimeout(Exception):
     """The time limit ran out while the orbit graph was being built."""
 
 
 def _admissible(params: Params, group: _groups.Group, max_words: int
-                ) -> tuple[_groups.Orbits, list[np.ndarray], np.ndarray]:
-    """The orbits of ``group``, the bit planes of every word, and the admissible orbits.
+                ) -> tuple[_groups.Orbits, np.ndarray]:
+    """The orbits of ``group`` and the admissible ones (their numbers, increasing).
 
     An orbit is admissible when its own words are pairwise at distance ``>= d``: the distance
     from each word to its orbit's representative, minimised over the orbit (the representative
-    excluded), is the orbit's own minimum distance (isometry argument, step 2).
+    excluded), is the orbit's own minimum distance (isometry argument, step 2; kernel
+    ``_kernels.orbit_inner_distance``, binary words read from their indices).
     """
+    from codesearch import _kernels
+
     orbits = _groups.compute_orbits(group, max_words=max_words)
-    planes = orbits.planes()
-    diff = planes[0] ^ planes[0][orbits.label]
-    for pl in planes[1:]:
-        diff |= pl ^ pl[orbits.label]
-    to_rep = _popcount(diff)
-    to_rep[orbits.reps] = params.n + 1
-    inner = np.minimum.reduceat(to_rep[orbits.order], orbits.starts[:-1])
-    return orbits, planes, np.flatnonzero(inner >= params.d)
+    planes = (np.zeros((0, 0), dtype=np.uint64) if orbits.stored is None
+              else np.ascontiguousarray(np.stack(orbits.planes())))
+    inner = _kernels.orbit_inner_distance(planes, orbits.order, orbits.starts, params.n)
+    return orbits, np.flatnonzero(inner >= params.d)
+
+
+def _kept_planes(orbits: _groups.Orbits, indices: np.ndarray) -> np.ndarray:
+    """Bit planes (as :meth:`Orbits.planes`) of the words with the given indices, one row per
+    plane: for binary words the index itself."""
+    if orbits.stored is None:
+        return np.ascontiguousarray(indices.astype(np.uint64)[None, :])
+    rows = orbits.rows(indices)
+    out = np.zeros((max(1, (orbits.q - 1).bit_length()), indices.size), dtype=np.uint64)
+    for p in range(out.shape[0]):
+        for i in range(orbits.n):
+            out[p] |= ((rows[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
+    return out
 
 
 def orbit_graph(params: Params, group: _groups.Group, *,
@@ -152,7 +153,7 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     if params.n > 64:
         # one uint64 per bit plane holds a word (the space limit keeps n far below this anyway)
         raise ParameterError(f"orbit search handles n <= 64, got n={params.n}")
-    orbits, planes, kept = _admissible(params, group, max_words)
+    orbits, kept = _admissible(params, group, max_words)
     d = params.d
     k = kept.size
     if k > max_orbits:
@@ -164,8 +165,11 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     words = np.ascontiguousarray(np.concatenate(seg) if seg else np.zeros(0, dtype=np.int64),
                                  dtype=np.int64)
     starts = np.r_[0, np.cumsum(sizes)].astype(np.int64)
-    reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
-    plane_arr = np.ascontiguousarray(np.stack(planes))
+    # The kernel reads bit planes of the kept words only, renumbered 0 .. len(words) - 1;
+    # each orbit's representative (its least index) comes first among its words.
+    plane_arr = _kept_planes(orbits, words)
+    words = np.arange(words.size, dtype=np.int64)
+    reps = np.ascontiguousarray(starts[:-1])
     adj8 = np.zeros((k, k), dtype=np.uint8)
     if k > 1:
         from codesearch import _kernels
@@ -397,17 +401,15 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
     """
     if params.q != 2:
         raise ParameterError(f"the sparse orbit search handles q = 2 only, got q = {params.q}")
-    orbits, _, kept = _admissible(params, group, max_words)
+    orbits, kept = _admissible(params, group, max_words)
     k = int(kept.size)
     if k == 0:
         return None, 0, 0
     from codesearch import _kernels
     from codesearch.search._wordspace import ball_masks
 
-    position = np.full(orbits.count, -1, dtype=np.int64)
-    position[kept] = np.arange(k, dtype=np.int64)
-    # reps are increasing, so the orbit number of a word is the rank of its label among them
-    vertex_of = position[np.searchsorted(orbits.reps, orbits.label)]
+    vertex_of = _kernels.orbit_vertex_of(orbits.order, orbits.starts,
+                                         np.ascontiguousarray(kept, dtype=np.int64))
     reps = np.ascontiguousarray(orbits.reps[kept], dtype=np.int64)
     weight = orbits.sizes[kept].astype(np.int64)
     masks = ball_masks(params.n, params.d - 1)[1:]  # weights 1 .. d-1 (the zero mask first)
