@@ -95,3 +95,12 @@ def test_orbit_listing_that_would_not_fit_in_memory_is_refused(capsys, monkeypat
     monkeypatch.setattr(groups, "available_memory", lambda: 1 << 20)
     status, _, err = _run(capsys, ["find", "16", "6", "--method", "orbit", "--group", "rm1"])
     assert status == 2 and len(err.strip().splitlines()) == 1 and "GiB" in err
+
+
+def test_too_many_admissible_orbits_points_to_the_sparse_mode(capsys):
+    # Four 5-cycles at (20,9) leave 100016 admissible orbits, past the dense graph's limit:
+    # one line, exit 2, naming the mode that has no such limit.
+    status, _, err = _run(capsys, ["find", "20", "9", "--method", "orbit", "--group",
+                                   "cyclic:0-4,5-9,10-14,15-19"])
+    assert status == 2 and len(err.strip().splitlines()) == 1
+    assert "admissible orbits" in err and "--orbit-mode sparse" in err

@@ -158,8 +158,9 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     k = kept.size
     if k > max_orbits:
         raise ParameterError(
-            f"group {group.spec!r} leaves {k} admissible orbits, above the limit {max_orbits}; "
-            f"use a larger group")
+            f"group {group.spec!r} leaves {k} admissible orbits, above the limit {max_orbits}"
+            + ("; use a larger group, or the sparse mode (find --orbit-mode sparse), which "
+               "has no such limit" if params.q == 2 else "; use a larger group"))
     sizes = orbits.sizes[kept].astype(np.int64)
     seg = [orbits.order[orbits.starts[j]:orbits.starts[j + 1]] for j in kept]
     words = np.ascontiguousarray(np.concatenate(seg) if seg else np.zeros(0, dtype=np.int64),
