@@ -343,7 +343,7 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
     p.add_argument(
         "--max-words", dest="max_words", type=_word_count, metavar="N",
         help="orbit: list the orbits of spaces of up to N words, N or 2^K (default 2^22; "
-        "about 64 bytes of memory per word, 4 GB at 2^26; refused when the estimate "
+        "about 40 bytes of memory per binary word, 2.5 GiB at 2^26; refused when the estimate "
         "exceeds the memory available)")
     _COMMANDS["find"] = _cmd_find
 

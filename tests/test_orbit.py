@@ -266,7 +266,7 @@ def test_inner_distance_kernel_equals_twin(data):
     group = groups.parse_group(spec, q, n)
     o = groups.compute_orbits(group)
     planes = (np.zeros((0, 0), dtype=np.uint64) if o.stored is None
-              else np.ascontiguousarray(np.stack(o.planes())))
+              else o.planes())
     fast = _kernels.orbit_inner_distance(planes, o.order, o.starts, n)
     assert fast.tolist() == ref.orbit_inner_distance(planes, o.order, o.starts, n)
 

@@ -442,19 +442,19 @@ class Orbits:
         bits = (indices[:, None] >> np.arange(self.n, dtype=np.int64)) & 1
         return bits.astype(np.uint8)
 
-    def planes(self) -> list[np.ndarray]:
-        """Bit planes of every word as uint64 integers: bit i of plane p is bit p of symbol
-        i (binary: the index itself). Two words differ at coordinate i iff some plane differs
-        at bit i, so ``dist = popcount(OR_p plane_p(x) XOR plane_p(y))``."""
+    def planes(self, indices: np.ndarray | None = None) -> np.ndarray:
+        """Bit planes of the words with the given indices (default: every word) as a
+        ``(planes, words)`` uint64 array: bit i of plane p is bit p of symbol i (binary: one
+        plane, the index itself). Two words differ at coordinate i iff some plane differs at
+        bit i, so ``dist = popcount(OR_p plane_p(x) XOR plane_p(y))``."""
         if self.stored is None:
-            return [np.arange(self.q**self.n, dtype=np.uint64)]
-        words = self.stored
-        out = []
-        for p in range(max(1, (self.q - 1).bit_length())):
-            acc = np.zeros(words.shape[0], dtype=np.uint64)
+            idx = np.arange(self.q**self.n) if indices is None else np.asarray(indices)
+            return np.ascontiguousarray(idx.astype(np.uint64)[None, :])
+        rows = self.stored if indices is None else self.rows(indices)
+        out = np.zeros((max(1, (self.q - 1).bit_length()), rows.shape[0]), dtype=np.uint64)
+        for p in range(out.shape[0]):
             for i in range(self.n):
-                acc |= ((words[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
-            out.append(acc)
+                out[p] |= ((rows[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
         return out
 
     @property

@@ -116,22 +116,9 @@ def _admissible(params: Params, group: _groups.Group, max_words: int
 
     orbits = _groups.compute_orbits(group, max_words=max_words)
     planes = (np.zeros((0, 0), dtype=np.uint64) if orbits.stored is None
-              else np.ascontiguousarray(np.stack(orbits.planes())))
+              else orbits.planes())
     inner = _kernels.orbit_inner_distance(planes, orbits.order, orbits.starts, params.n)
     return orbits, np.flatnonzero(inner >= params.d)
-
-
-def _kept_planes(orbits: _groups.Orbits, indices: np.ndarray) -> np.ndarray:
-    """Bit planes (as :meth:`Orbits.planes`) of the words with the given indices, one row per
-    plane: for binary words the index itself."""
-    if orbits.stored is None:
-        return np.ascontiguousarray(indices.astype(np.uint64)[None, :])
-    rows = orbits.rows(indices)
-    out = np.zeros((max(1, (orbits.q - 1).bit_length()), indices.size), dtype=np.uint64)
-    for p in range(out.shape[0]):
-        for i in range(orbits.n):
-            out[p] |= ((rows[:, i] >> p) & 1).astype(np.uint64) << np.uint64(i)
-    return out
 
 
 def orbit_graph(params: Params, group: _groups.Group, *,
@@ -168,7 +155,7 @@ def orbit_graph(params: Params, group: _groups.Group, *,
     starts = np.r_[0, np.cumsum(sizes)].astype(np.int64)
     # The kernel reads bit planes of the kept words only, renumbered 0 .. len(words) - 1;
     # each orbit's representative (its least index) comes first among its words.
-    plane_arr = _kept_planes(orbits, words)
+    plane_arr = orbits.planes(words)
     words = np.arange(words.size, dtype=np.int64)
     reps = np.ascontiguousarray(starts[:-1])
     adj8 = np.zeros((k, k), dtype=np.uint8)
