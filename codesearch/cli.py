@@ -339,7 +339,9 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
         help="orbit: 'exact' (default) builds the orbit graph, runs the heuristics and then "
         "the exact clique search; 'heuristic' stops after the heuristics; 'sparse' (q = 2) "
         "skips the graph and finds conflicts on demand, for groups that leave more "
-        "admissible orbits than the graph's limit (heuristic, nothing proved)")
+        "admissible orbits than the graph's limit (heuristic, nothing proved). With --time, "
+        "'heuristic' and 'sparse' search until the time is up (or --size is reached); "
+        "without it they stop after 20000 moves")
     p.add_argument(
         "--max-words", dest="max_words", type=_word_count, metavar="N",
         help="orbit: list the orbits of spaces of up to N words, N or 2^K (default 2^22; "

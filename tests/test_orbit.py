@@ -441,6 +441,25 @@ def test_sparse_mode_past_the_orbit_limit_and_reproducible():
         search(Params(3, 4, 3), "orbit", group="cyclic", mode="sparse")
 
 
+def test_heuristic_modes_spend_the_time_limit_they_are_given():
+    # Without a time limit the sparse tabu stops after the default move count; with one (and
+    # no explicit iterations) it moves until the deadline, so a longer budget is not cut
+    # short at 20000 moves. An explicit iterations still caps the run. The code is checked
+    # as everywhere in this file (distance by the independent checker, invariance).
+    params = Params(2, 12, 4)
+    capped = search(params, "orbit", group="cyclic", mode="sparse", seed=1)
+    assert capped.settings["iterations"] == orbit.DEFAULT_ITERATIONS
+    timed = search(params, "orbit", group="cyclic", mode="sparse", seed=1, time_limit=2)
+    _check(timed, params, "cyclic")
+    assert timed.settings["iterations"] > orbit.DEFAULT_ITERATIONS
+    explicit = search(params, "orbit", group="cyclic", mode="sparse", seed=1, time_limit=2,
+                      iterations=300)
+    assert explicit.settings["iterations"] <= 300
+    heur = search(params, "orbit", group="cyclic", mode="heuristic", seed=1, time_limit=1)
+    _check(heur, params, "cyclic")
+    assert heur.settings["iterations"] > 0
+
+
 @given(data=st.data())
 def test_sparse_mode_returns_invariant_codes_no_larger_than_the_exact_search(data):
     n = data.draw(st.integers(5, 9))

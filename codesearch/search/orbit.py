@@ -61,6 +61,10 @@ WARM_UP = (((2, 7, 3), {"group": "cyclic"}), ((3, 4, 3), {"group": "cyclic"}),
            ((2, 7, 3), {"group": "cyclic", "mode": "sparse", "iterations": 20}))
 
 _MODES = ("exact", "heuristic", "sparse")
+#: Tabu / sparse moves when neither ``iterations`` nor a time limit bounds them.
+DEFAULT_ITERATIONS = 20000
+#: Move cap standing for "until the deadline" (sparse and heuristic modes with a time limit).
+_UNTIL_DEADLINE = 1 << 62
 #: Move tenure of a dropped orbit in the sparse search.
 _SPARSE_TENURE = 7
 DEFAULT_MAX_ORBITS = 12000
@@ -368,7 +372,7 @@ def _exact_clique(adj: np.ndarray, w: np.ndarray, incumbent: list[int],
 # ------------------------------------------------------------------------------ sparse mode
 def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
                         deadline: float | None, stop: int | None = None,
-                        max_moves: int = 20000,
+                        max_moves: int = DEFAULT_ITERATIONS,
                         max_words: int = _groups.DEFAULT_MAX_WORDS
                         ) -> tuple[Code | None, int, int]:
     """A large G-invariant binary code without the orbit graph (implicit adjacency).
@@ -432,7 +436,7 @@ def sparse_orbit_search(params: Params, group: _groups.Group, *, seed: int,
 
 # ------------------------------------------------------------------------------ method entry
 def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: int = 200,
-        iterations: int = 20000, max_words: int = _groups.DEFAULT_MAX_WORDS,
+        iterations: int | None = None, max_words: int = _groups.DEFAULT_MAX_WORDS,
         max_orbits: int = DEFAULT_MAX_ORBITS) -> Outcome:
     """Largest code found that is invariant under the group ``group``.
 
@@ -453,10 +457,13 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
         ``max_orbits`` (heuristic; ``max_orbits`` does not apply).
     restarts : int
         Randomised greedy passes (a deadline may cut them short).
-    iterations : int
+    iterations : int, optional
         Moves of the tabu search that follows the greedy passes (see :func:`tabu_clique`),
         capped at ``50 K + 500`` for a graph of K orbits (the value used is recorded); in
-        sparse mode, the moves of :func:`sparse_orbit_search`.
+        sparse mode, the moves of :func:`sparse_orbit_search`. Default
+        :data:`DEFAULT_ITERATIONS`; but in the sparse and heuristic modes, which have no
+        exact phase to hand the time to, a run with a time limit and no ``iterations``
+        moves until the deadline (or the target ``size``).
     max_words, max_orbits : int
         Limits on ``q**n`` and on the number of admissible orbits.
 
@@ -469,6 +476,10 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
     """
     if mode not in _MODES:
         raise ParameterError(f"orbit mode must be one of {', '.join(_MODES)}, got {mode!r}")
+    if iterations is None:
+        # the heuristic-only modes spend the budget they are given
+        until_deadline = mode != "exact" and ctx.deadline is not None
+        iterations = _UNTIL_DEADLINE if until_deadline else DEFAULT_ITERATIONS
     for name, value in (("restarts", restarts), ("iterations", iterations)):
         if isinstance(value, bool) or not isinstance(value, int) or value < 0:
             raise ParameterError(f"{name} must be a non-negative integer, got {value!r}")
@@ -506,7 +517,8 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
     clique, passes = heuristic_clique(graph.adj, w, restarts=restarts, seed=ctx.seed,
                                       deadline=heur_deadline, stop=size)
     # Small graphs need few moves (and the exact search settles them anyway).
-    iterations = min(iterations, 50 * int(w.size) + 500)
+    if iterations != _UNTIL_DEADLINE:
+        iterations = min(iterations, 50 * int(w.size) + 500)
     clique, moves = tabu_clique(graph.adj, w, clique, iterations=iterations, seed=ctx.seed,
                                 deadline=heur_deadline, stop=size)
     report("heuristic", clique)
@@ -539,5 +551,6 @@ def run(ctx: Context, *, group: str = "cyclic", mode: str = "exact", restarts: i
         "invariant_optimal": bool(complete),
         # a proven bound on the size of every G-invariant code (not on A_q(n,d))
         "invariant_upper": inv_upper,
-        "iterations": iterations,
+        # the moves made when they ran until the deadline
+        "iterations": moves if iterations == _UNTIL_DEADLINE else iterations,
     })
