@@ -13,7 +13,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from typing import Any, Callable, Sequence
+from typing import Any, Callable, NoReturn, Sequence
 
 from codesearch._version import __version__
 from codesearch.errors import InputError, ParameterError
@@ -698,9 +698,17 @@ def _cmd_prepare(args: argparse.Namespace) -> int:
 
 
 # ------------------------------------------------------------------------------------ main
+class _Parser(argparse.ArgumentParser):
+    """An argument parser whose usage errors are one line (and exit status 2), like every
+    other bad-input error of the tool; the full usage stays on ``--help``."""
+
+    def error(self, message: str) -> NoReturn:
+        self.exit(2, f"{self.prog}: {message} (see '{self.prog} --help')\n")
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser with every subcommand."""
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="codesearch",
         description="Find codes, prove upper bounds and fill tables of A_q(n,d).",
     )
@@ -715,7 +723,12 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``codesearch`` console script; returns the exit status."""
     parser = build_parser()
-    args = parser.parse_args(argv)
+    args, extra = parser.parse_known_args(argv)
+    if extra:
+        # named after the subcommand whose options they are not
+        prog = f"codesearch {args.command}" if args.command else "codesearch"
+        parser.exit(2, f"{prog}: unrecognized arguments: {' '.join(extra)} "
+                       f"(see '{prog} --help')\n")
     if args.command is None:
         parser.print_help()
         return 2

@@ -267,3 +267,22 @@ def test_fuzz_findings_stay_fixed(tmp_path):
         path.write_text(json.dumps([{"q": 2, "n": 7, "d": 3, "lower": 16, **rec}]))
         with pytest.raises(InputError):
             read_published_file(str(path))
+
+
+@pytest.mark.parametrize("argv, named", [
+    (["find", "7", "3", "--max-words", "abc"], "--max-words"),
+    (["table", "--n", "4..x", "--d", "3"], "--n"),
+    (["find"], "required"),
+    (["find", "7", "3", "--orbit-mode", "bogus"], "--orbit-mode"),
+    (["bounds", "17", "4", "--method", "sdp4"], "--method sdp4"),
+    (["construct", "list", "18", "4"], "18 4"),
+])
+def test_usage_errors_are_one_line_naming_the_argument(argv, named, capsys):
+    # argparse prints its whole usage block before the error; the tool keeps to one line
+    # naming the argument and the subcommand's --help (exit 2, as for every bad input)
+    with pytest.raises(SystemExit) as exc:
+        main(argv)
+    assert exc.value.code == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and named in err[0] and "--help" in err[0]
+    assert err[0].startswith(f"codesearch {argv[0]}:")
