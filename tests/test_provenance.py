@@ -119,3 +119,26 @@ def test_older_search_bounds_are_not_labelled_as_theorems(tmp_path):
         r = collect(s)[0]
     assert r.upper_kind == "theorem" and r.upper_basis == "exhaustive search"
     assert "not recorded" in r.upper_detail
+
+
+def test_reports_name_the_construction_of_each_lower_value(tmp_path):
+    # The binary Golay code [23,12,7] (MacWilliams-Sloane ch. 20) comes from the construction
+    # library; the CSV and JSON reports name it in lower_detail, and the padded code one cell
+    # over names the operation too (the provenance a reader wants, not just "construction").
+    import csv
+    import io
+
+    from codesearch.batch import run_table, table_cells
+
+    path = tmp_path / "t.sqlite"
+    out = run_table(str(path), table_cells(2, range(23, 25), range(7, 8)), budget=1.0,
+                    methods=[], workers=1, bounds=False)
+    assert not out.failed and not out.errors
+    with Store(path) as s:
+        data = {(c["n"], c["d"]): c for c in json.loads(render(s, "json"))}
+        rows = csv.DictReader(io.StringIO(render(s, "csv")))
+        table = {(int(r["n"]), int(r["d"])): r for r in rows}
+    assert data[(23, 7)]["lower"] == 4096 and "Golay" in data[(23, 7)]["lower_detail"]
+    assert "Golay" in table[(23, 7)]["lower_detail"]
+    assert data[(24, 7)]["lower"] == 4096 and "Golay" in data[(24, 7)]["lower_detail"]
+    assert table[(24, 7)]["lower_detail"] == data[(24, 7)]["lower_detail"]

@@ -91,9 +91,16 @@ class CellRow(CellSummary):
         """``=`` matched, ``+`` improved, ``<`` short vs published; empty when none imported."""
         return {"matched": "=", "improved": "+", "short": "<"}.get(self.compare or "", "")
 
+    @property
+    def lower_detail(self) -> str | None:
+        """How the best code was made, as its provenance names it ("3x shortened extended
+        Golay(24,12)"); None when the store records no construction or derivation."""
+        return _made_by(self)
+
     def to_json(self) -> dict[str, Any]:
         out = {f.name: getattr(self, f.name) for f in fields(self) if f.name not in _ROW_IDS}
         out["exact"] = self.exact
+        out["lower_detail"] = self.lower_detail
         return out
 
 
@@ -290,13 +297,14 @@ def render_csv(rows: Sequence[CellRow]) -> str:
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["q", "n", "d", "lower", "upper", "exact", "gap", "lower_method", "upper_method",
                 "upper_kind", "published_lower", "published_upper", "published_source",
-                "compare", "upper_basis", "upper_detail"])
+                "compare", "upper_basis", "upper_detail", "lower_detail"])
     for r in rows:
         gap = "" if r.upper is None else r.upper - (r.lower or 0)
         w.writerow([r.q, r.n, r.d, _e(r.lower), _e(r.upper), int(r.exact), gap,
                     _e(r.lower_method), _e(r.upper_method), _e(r.upper_kind),
                     _e(r.published_lower), _e(r.published_upper), _e(r.published_source),
-                    _e(r.compare), _e(r.upper_basis), _e(r.upper_detail)])
+                    _e(r.compare), _e(r.upper_basis), _e(r.upper_detail),
+                    _e(r.lower_detail)])
     return buf.getvalue()
 
 
