@@ -13,7 +13,8 @@ at >= d, and scores the new inner code by
 seconds, a fresh seed per step); ties are broken towards fewer distinct syndromes of weight
 < d (a sparser conflict graph). A step whose score is at least the current one is kept. The
 scan prints each new best: cosets including the inner code, and the columns. The seed of
-``numpy.random.default_rng`` fixes the columns drawn and the inner seeds.
+``numpy.random.default_rng`` fixes the columns drawn and the inner seeds; the inner search
+stops on its time limit, so two runs with one seed can still take different paths.
 """
 
 from __future__ import annotations
@@ -28,21 +29,11 @@ from codesearch.constructions.searched import null_space_code
 from codesearch.errors import ParameterError
 
 
-def _rank(columns: list[int]) -> int:
-    basis: list[int] = []
-    for c in columns:
-        for b in basis:
-            c = min(c, c ^ b)
-        if c:
-            basis.append(c)
-    return len(basis)
-
-
 def score(columns: list[int], r: int, d: int, inner_time: float, seed: int) -> tuple[int, int]:
     """(cosets found, minus the size of the connection set's complement); (-1, 0) if invalid."""
-    if _rank(columns) < r:
-        return (-1, 0)
     code = null_space_code(columns, r)
+    if code.k != len(columns) - r:  # the columns do not span GF(2)^r
+        return (-1, 0)
     try:
         w = coset_weights(code)
         res = coset_union_search(code, d, method="local", time_limit=inner_time, seed=seed,
