@@ -371,6 +371,34 @@ def test_orbit_codes_meet_the_published_values(key, q, n, d, size):
         assert candidates(Params(2, n + 1, d + 1))[0].size >= size
 
 
+def test_gray_image_record_passes_the_recalled_values_at_length_17():
+    # (17, 6144, 3): the Gray image of 96 cosets of an additive code in Z2 x Z4^8. Above the
+    # published lower values recalled in data/published_binary.csv (from memory): A(17,3) =
+    # A(18,4) >= 5312 and, shortened, A(16,3) = A(17,4) >= 2720; below the upper values
+    # 6552 and 3276 there (and below this library's Delsarte bounds).
+    from codesearch.constructions.sporadic import ORBITS
+    from codesearch.search import groups, search
+
+    rec = ORBITS["z2z4-17"]
+    b = build_family("orbit", key="z2z4-17")
+    assert (b.code.n, b.size, b.d) == (17, 6144, 3)
+    verify.assert_code(b.code, Params(2, 17, 3))
+    # distance >= 3 from the definition, independently of the checker: the radius-1 balls
+    # around the words are pairwise disjoint (common practice)
+    ints = (b.code.words.astype(np.int64) << np.arange(17)).sum(axis=1)
+    balls = np.concatenate([ints] + [ints ^ (1 << j) for j in range(17)])
+    assert np.unique(ints).size == 6144 and np.unique(balls).size == 18 * 6144
+    assert groups.is_invariant(b.code, groups.parse_group(rec.group, 2, 17))
+    counts = np.unique(b.code.words[:, :rec.balanced], axis=0, return_counts=True)[1]
+    assert len(counts) == 2**rec.balanced and set(counts.tolist()) == {6144 >> rec.balanced}
+    for n, d, size in [(17, 3, 6144), (18, 4, 6144), (16, 3, 3072), (17, 4, 3072)]:
+        assert candidates(Params(2, n, d))[0].size >= size
+    # the recorded orbit search finds a code of this size again (about 1 s)
+    options = dict(rec.found_by)
+    r = search(Params(2, 17, 3), options.pop("method"), time_limit=600, **options)
+    assert r.size == 6144
+
+
 #: orbit records short of the published lower value: (n, size, the library's best at (n, 9)
 #: before them, published lower value of A(n,9) in data/published_binary.csv, from memory,
 #: marked uncertain there)

@@ -74,7 +74,8 @@ def test_rm1_translations_give_cosets():
 
 
 @pytest.mark.parametrize("spec", ["cyclic", "cyclic:0-6*mul:2:0-6", "rev*rep",
-                                  "perm:(0 9 3)(1 2)*scale", "rm1", "sym:0-3,4-9"])
+                                  "perm:(0 9 3)(1 2)*scale", "rm1", "sym:0-3,4-9",
+                                  "gray:2:010123,103210*cyclic:0-1"])
 def test_binary_images_computed_on_indices_match_the_word_table(spec):
     # The binary fast path permutes / translates the bits of each index; the word table path
     # applies the generator to explicit words: both must give the same image of every word.
@@ -168,6 +169,7 @@ def test_spec_parsing_builds_the_right_permutations():
 @pytest.mark.parametrize("spec", [
     "", "cyclic:0-9", "cyclic:3-1", "sym", "mul:2", "mul:x:0-3", "perm:(0 1", "perm:(0 0)",
     "perm:(0 9)", "scale", "rm1", "span:101", "span:", "frob", "cyclic**rev", "sym:0-3,2-5",
+    "gray:2:0123", "gray:1:0123", "gray:x:0123", "gray:0:012", "gray:2:2033", "gray:2",
 ])
 def test_bad_specs_raise_parameter_error(spec):
     # q = 4 (not prime: 'scale' refused), n = 6 (not 2^m or 2^m - 1: 'rm1' refused),
@@ -361,6 +363,65 @@ def test_nordstrom_robinson_as_union_of_rm1_cosets():
     assert res.size == 256 and res.settings["orbits_used"] == 8
 
 
+# ------------------------------------------------------------------------------ Gray group
+#: The Gray map of Z4 (Hammons, Kumar, Calderbank, Sloane and Sole, IEEE Trans. IT 40, 1994):
+#: 0 -> 00, 1 -> 01, 2 -> 11, 3 -> 10, an isometry from the Lee metric to the Hamming metric.
+_GRAY_PAIRS = {0: (0, 0), 1: (0, 1), 2: (1, 1), 3: (1, 0)}
+
+
+def _gray(vec: list[int], a: int) -> tuple[int, ...]:
+    out = list(vec[:a])
+    for z in vec[a:]:
+        out.extend(_GRAY_PAIRS[z % 4])
+    return tuple(out)
+
+
+@given(a=st.integers(0, 3), b=st.integers(1, 3), data=st.data())
+def test_gray_translation_is_addition_in_z2_z4_through_the_gray_map(a, b, data):
+    # straight from the definition: Gray(x + t) for every x in Z2^a x Z4^b
+    t = data.draw(st.lists(st.integers(0, 1), min_size=a, max_size=a)) + \
+        data.draw(st.lists(st.integers(0, 3), min_size=b, max_size=b))
+    g = groups.gray_translation(t, a)
+    xs = list(itertools.product(*([range(2)] * a + [range(4)] * b)))
+    words = np.array([_gray(list(x), a) for x in xs], dtype=np.uint8)
+    sums = np.array([_gray([(xi + ti) % (2 if i < a else 4) for i, (xi, ti) in
+                            enumerate(zip(x, t))], a) for x in xs], dtype=np.uint8)
+    assert np.array_equal(g.apply(words, 2), sums)
+    n = a + 2 * b
+    if n <= 12:  # the fast binary path agrees with the word table
+        assert np.array_equal(groups._binary_image(g, n),
+                              groups.encode(g.apply(groups.all_words(2, n), 2), 2))
+
+
+@pytest.mark.parametrize("spec", ["gray:2:2120", "gray:1:0120", "gray:2:012", "gray:2:0140",
+                                  "gray:7:0120", "gray:2:", "gray:a:0120"])
+def test_bad_gray_specs_name_the_problem(spec):
+    # n = 6: A = 2 binary coordinates and 2 Z4 symbols per row; one line naming the factor
+    with pytest.raises(ParameterError, match="gray"):
+        groups.parse_group(spec, 2, 6)
+    assert len(groups.parse_group("gray:2:0120", 2, 6).generators) == 1
+
+
+def test_gray_group_of_the_octacode_gives_the_nordstrom_robinson_code():
+    # The Nordstrom-Robinson code is the Gray image of the octacode, a Z4-linear code of
+    # length 8 with 256 words and Lee distance 6, and A(16,6) = 256 (Hammons et al. 1994;
+    # MacWilliams & Sloane ch. 15, from memory). The octacode's generator is the extended
+    # cyclic code from the Hensel lift of x^3 + x + 1 (the library's kerdock_z4(3), rebuilt
+    # here from its rows); the orbit of the zero word is the NR code, and no other orbit fits.
+    from codesearch.constructions.z4 import kerdock_z4
+
+    rows = ",".join("".join(str(int(v)) for v in r) for r in kerdock_z4(3))
+    spec = f"gray:0:{rows}"
+    g = groups.parse_group(spec, 2, 16)
+    o = groups.compute_orbits(g)
+    assert o.count == 2**16 // 256 and set(o.sizes.tolist()) == {256}
+    params = Params(2, 16, 6)
+    res = search(params, "orbit", group=spec, time_limit=60)
+    _check(res, params, spec)
+    assert res.size == 256 and verify.min_distance(res.code) == 6
+    assert res.settings["invariant_optimal"]
+
+
 def test_heuristic_mode_is_reproducible_and_never_optimal():
     params = Params(2, 12, 4)
     a = search(params, "orbit", group="cyclic", mode="heuristic", seed=7, restarts=30)
@@ -515,6 +576,6 @@ def test_public_api_of_the_orbit_modules():
                                            "sparse_orbit_search"])
     assert sorted(groups.__all__) == sorted([
         "Generator", "Group", "Orbits", "parse_group", "all_words", "encode", "compute_orbits",
-        "is_invariant", "DEFAULT_MAX_WORDS", "orbit_memory"])
+        "is_invariant", "DEFAULT_MAX_WORDS", "orbit_memory", "gray_translation"])
     assert orbit.OPTIONS == {"group", "mode", "restarts", "iterations", "size", "max_words",
                              "max_orbits"}
