@@ -393,13 +393,21 @@ def test_gray_translation_is_addition_in_z2_z4_through_the_gray_map(a, b, data):
                               groups.encode(g.apply(groups.all_words(2, n), 2), 2))
 
 
-@pytest.mark.parametrize("spec", ["gray:2:2120", "gray:1:0120", "gray:2:012", "gray:2:0140",
-                                  "gray:7:0120", "gray:2:", "gray:a:0120"])
+@pytest.mark.parametrize("spec", ["gray:2:2120", "gray:1:01200", "gray:2:01201", "gray:2:0140",
+                                  "gray:7:0120", "gray:2:", "gray:a:0120", "gray:2:0120,012"])
 def test_bad_gray_specs_name_the_problem(spec):
-    # n = 6: A = 2 binary coordinates and 2 Z4 symbols per row; one line naming the factor
+    # n = 6: A = 2 binary coordinates and at most 2 Z4 symbols per row; one line naming the
+    # factor
     with pytest.raises(ParameterError, match="gray"):
         groups.parse_group(spec, 2, 6)
     assert len(groups.parse_group("gray:2:0120", 2, 6).generators) == 1
+    # a shorter Gray part leaves the last coordinates fixed
+    g = groups.parse_group("gray:2:013", 2, 6).generators[0]
+    words = groups.all_words(2, 6)
+    image = g.apply(words, 2)
+    assert np.array_equal(image[:, 4:], words[:, 4:])
+    assert np.array_equal(image[:, :4], groups.gray_translation([0, 1, 3], 2).apply(
+        np.ascontiguousarray(words[:, :4]), 2))
 
 
 def test_gray_group_of_the_octacode_gives_the_nordstrom_robinson_code():
