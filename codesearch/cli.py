@@ -331,8 +331,8 @@ def _add_find(sub: argparse._SubParsersAction) -> None:
         "all permutations per block, perm:(0 1 2)(3 4) explicit, scale[:A] multiply symbols "
         "(q prime), rep all-ones translations, rm1 cosets of RM(1,m) (n=2^m or 2^m-1), "
         "span:ROW,ROW or span:@FILE cosets of the span of the rows, gray:A:ROW,ROW "
-        "(q=2) Gray images of cosets of the additive code in Z2^A x Z4^((n-A)/2) spanned "
-        "by the rows (A symbols 0-1, then symbols 0-3). Examples: "
+        "(q=2) Gray images of cosets of the additive code in Z2^A x Z4^B spanned by the "
+        "rows (A symbols 0-1, then B symbols 0-3; coordinates after A+2B fixed). Examples: "
         "'find 16 6 --method orbit --group rm1', 'find 20 10 --method orbit --group "
         "\"cyclic:0-18*rep\"', 'find 5 3 --q 4 --method orbit --group cyclic'. "
         "For auto: several specs separated by ';' (default: a few natural groups)")

@@ -312,13 +312,14 @@ def _read_rows(text: str, q: int, n: int, factor: str) -> np.ndarray:
 _GRAY_SHIFT = ((0, 0), (0, 1), (1, 1), (1, 0))
 
 
-def gray_translation(row: list[int] | np.ndarray, a: int) -> Generator:
-    """The isometry of binary words of length ``a + 2b`` that adds ``row`` in
+def gray_translation(row: list[int] | np.ndarray, a: int, n: int | None = None) -> Generator:
+    """The isometry of binary words of length ``n`` (default ``a + 2b``) that adds ``row`` in
     ``Z2^a x Z4^b`` through the Gray map (coordinates 0..a-1 binary, then one bit pair per
-    Z4 symbol): a permutation (swap the pair where the symbol is odd) followed by a
-    translation, so an ``"affine"`` generator."""
+    Z4 symbol, the coordinates from ``a + 2b`` on fixed): a permutation (swap the pair where
+    the symbol is odd) followed by a translation, so an ``"affine"`` generator."""
     row = [int(x) for x in row]
-    n = a + 2 * (len(row) - a)
+    if n is None:
+        n = a + 2 * (len(row) - a)
     perm = np.arange(n)
     shift = np.zeros(n, dtype=np.uint8)
     shift[:a] = row[:a]
@@ -348,11 +349,7 @@ def _gray_generators(arg: str, q: int, n: int, factor: str) -> list[Generator]:
             raise ParameterError(
                 f"group factor {factor!r}: row {word!r} must have {a} symbols 0-1 then "
                 f"{width - a} symbols 0-3, like the first row")
-        g = gray_translation([int(ch) for ch in word], a)
-        if g.data.shape[1] < n:  # the coordinates after the Gray part stay fixed
-            rest = np.arange(g.data.shape[1], n)
-            g = Generator("affine", np.hstack([g.data, np.vstack([rest, 0 * rest])]))
-        gens.append(g)
+        gens.append(gray_translation([int(ch) for ch in word], a, n))
     return gens
 
 
