@@ -425,28 +425,32 @@ def test_lengthened_gray_image_records(key, n, size, published):
 
 
 
-def test_gray_image_record_meets_the_published_value_at_length_24():
-    # (24, 192, 9): 6 cosets of a 32-word additive code D in Z2^4 x Z4^10 through the Gray map
-    # 0 -> 00, 1 -> 01, 2 -> 11, 3 -> 10 (Hammons-Kumar-Calderbank-Sloane-Sole 1994). It meets
-    # the published lower values A(24,9) >= 192 and, extended, A(25,10) >= 192 recalled in
-    # data/published_binary.csv (from memory, marked uncertain there).
+@pytest.mark.parametrize("key,a,n,size,cosets", [("z2z4-24", 4, 24, 192, 6),
+                                                ("z2z4-23", 3, 23, 128, 16)])
+def test_gray_image_records_at_distance_9(key, a, n, size, cosets):
+    # unions of cosets of a small additive code D in Z2^a x Z4^b through the Gray map
+    # 0 -> 00, 1 -> 01, 2 -> 11, 3 -> 10 (Hammons-Kumar-Calderbank-Sloane-Sole 1994).
+    # (24, 192, 9) meets the published lower values A(24,9) >= 192 and, extended,
+    # A(25,10) >= 192; (23, 128, 9) is above the library's earlier 106 and below the
+    # published 136 at A(23,9) = A(24,10) (data/published_binary.csv, from memory, uncertain).
     import itertools
 
     from codesearch.constructions.sporadic import ORBITS
     from codesearch.search import groups
 
-    rec = ORBITS["z2z4-24"]
-    b = build_family("orbit", key="z2z4-24")
-    assert (b.code.n, b.size, b.d) == (24, 192, 9)
-    verify.assert_code(b.code, Params(2, 24, 9))
+    rec = ORBITS[key]
+    b = build_family("orbit", key=key)
+    assert (b.code.n, b.size, b.d) == (n, size, 9)
+    verify.assert_code(b.code, Params(2, n, 9))
     # the code from the definition, without the group machinery: the Z2 x Z4 span of the rows,
     # each coset through the Gray map
-    a, rows = 4, rec.group.split(":")[2].split(",")
+    assert rec.group.startswith(f"gray:{a}:")
+    rows = rec.group.split(":")[2].split(",")
     gens = [np.array([int(ch) for ch in row]) for row in rows]
     mod = np.array([2] * a + [4] * (len(rows[0]) - a))
     span = {tuple(sum(c * g for c, g in zip(cs, gens)) % mod)
             for cs in itertools.product(range(4), repeat=len(gens))}
-    assert len(span) == 32
+    assert len(span) * cosets == size
     gray = {0: (0, 0), 1: (0, 1), 2: (1, 1), 3: (1, 0)}
     image = set()
     for rep in rec.representatives:
@@ -459,14 +463,14 @@ def test_gray_image_record_meets_the_published_value_at_length_24():
     assert image == {tuple(w) for w in b.code.words.tolist()}
     # distance >= 9 from the definition, independently of the checker: the radius-4 balls
     # around the words are pairwise disjoint (common practice)
-    ints = (b.code.words.astype(np.int64) << np.arange(24)).sum(axis=1)
-    masks = [sum(1 << j for j in c) for r in range(5) for c in itertools.combinations(range(24), r)]
+    ints = (b.code.words.astype(np.int64) << np.arange(n)).sum(axis=1)
+    masks = [sum(1 << j for j in c) for r in range(5) for c in itertools.combinations(range(n), r)]
     balls = (ints[:, None] ^ np.array(masks, dtype=np.int64)[None, :]).ravel()
-    assert np.unique(balls).size == 192 * len(masks)
-    assert groups.is_invariant(b.code, groups.parse_group(rec.group, 2, 24))
-    assert set(b.code.words.sum(axis=0).tolist()) == {96}  # every coordinate balanced
-    assert candidates(Params(2, 24, 9))[0].size >= 192
-    assert candidates(Params(2, 25, 10))[0].size >= 192
+    assert np.unique(balls).size == size * len(masks)
+    assert groups.is_invariant(b.code, groups.parse_group(rec.group, 2, n))
+    assert set(b.code.words.sum(axis=0).tolist()) == {size // 2}  # every coordinate balanced
+    assert candidates(Params(2, n, 9))[0].size >= size
+    assert candidates(Params(2, n + 1, 10))[0].size >= size
 
 #: orbit records short of the published lower value: (n, size, the library's best at (n, 9)
 #: before them, published lower value of A(n,9) in data/published_binary.csv, from memory,
