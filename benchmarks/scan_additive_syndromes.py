@@ -134,12 +134,61 @@ def clique_through(quot: Quotient, good: np.ndarray, v: int, limit: int,
     return [v] + [int(nbr[i]) for i in res.clique]
 
 
+def tabu_clique(quot: Quotient, good: np.ndarray, moves: int, rng: np.random.Generator
+                ) -> list[int]:
+    """A large set of good syndromes with good pairwise differences, by a tabu search: add a
+    syndrome compatible with the whole set, else swap in one that conflicts with a single
+    member (which leaves, tabu for a few moves), else drop a random member."""
+    S = np.nonzero(good)[0]
+    conflicts = np.zeros(S.size, dtype=np.int64)  # members each syndrome conflicts with
+    inside = np.zeros(S.size, dtype=bool)
+    tabu = np.zeros(S.size, dtype=np.int64)
+    members: list[int] = []
+    best: list[int] = []
+
+    def toggle(j: int, sign: int) -> None:
+        clash = ~good[quot.add(S, quot.neg(int(S[j])))]
+        clash[j] = False
+        conflicts[clash] += sign
+
+    for move in range(moves):
+        free = ~inside & (tabu <= move)
+        cand = np.nonzero(free & (conflicts == 0))[0]
+        if cand.size == 0:
+            cand = np.nonzero(free & (conflicts == 1))[0]
+            if cand.size == 0:
+                if not members:
+                    break
+                out = members.pop(int(rng.integers(len(members))))
+                inside[out] = False
+                toggle(out, -1)
+                tabu[out] = move + 7
+                continue
+            j = int(cand[rng.integers(cand.size)])
+            out = next(m for m in members if not good[quot.add(int(S[m]), quot.neg(int(S[j])))])
+            members.remove(out)
+            inside[out] = False
+            toggle(out, -1)
+            tabu[out] = move + 7 + int(rng.integers(5))
+        else:
+            j = int(cand[rng.integers(cand.size)])
+        members.append(j)
+        inside[j] = True
+        toggle(j, +1)
+        if len(members) > len(best):
+            best = list(members)
+    return [int(S[j]) for j in best]
+
+
 def score(quot: Quotient, cols: list[int], light: np.ndarray, rng: np.random.Generator,
-          samples: int) -> tuple[tuple[int, int, float], list[int]]:
+          samples: int, moves: int = 0) -> tuple[tuple[int, int, float], list[int]]:
     zero, good = good_syndromes(quot, cols, light)
     if zero:
         return (-zero, 0, 0.0), []
     S = np.nonzero(good)[0]
+    if moves:
+        best = tabu_clique(quot, good, moves, rng)
+        return (0, len(best) + 1, float(S.size)), best
     best: list[int] = []
     sizes = []
     for v in rng.choice(S, size=min(samples, S.size), replace=False):
@@ -192,6 +241,9 @@ def main() -> None:
     ap.add_argument("--steps", type=int, default=2000)
     ap.add_argument("--seed", type=int, default=0)
     ap.add_argument("--samples", type=int, default=20, help="good syndromes sampled per score")
+    ap.add_argument("--tabu", type=int, default=0, metavar="MOVES",
+                    help="score by a tabu search of this many moves instead of exact searches "
+                         "around sampled syndromes (for many cosets of a small D)")
     ap.add_argument("--out", help="write the code file here")
     args = ap.parse_args()
     a, b, d = args.a, args.b, args.d
@@ -208,7 +260,7 @@ def main() -> None:
     cols = draw_all()
     while quot.image_size(cols) != quot.size:
         cols = draw_all()
-    sc, clique = score(quot, cols, light, rng, args.samples)
+    sc, clique = score(quot, cols, light, rng, args.samples, args.tabu)
     for step in range(1, args.steps + 1):
         if args.goal and sc[1] >= args.goal:
             break
@@ -217,7 +269,7 @@ def main() -> None:
         new[u] = quot.draw(rng, u < a)
         if quot.image_size(new) != quot.size:
             continue
-        sc2, clique2 = score(quot, new, light, rng, args.samples)
+        sc2, clique2 = score(quot, new, light, rng, args.samples, args.tabu)
         if sc2 >= sc:
             if sc2[:2] > sc[:2]:
                 print(f"{time.time() - t0:7.1f} s, step {step}: light words in D {-sc2[0]}, "
