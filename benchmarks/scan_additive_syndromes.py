@@ -58,6 +58,7 @@ import numpy as np
 from codesearch.model import Code, Params
 from codesearch.search.clique import bitsets_from_dense, max_clique
 from codesearch.verify import assert_code
+from scan_gray_cosets import spec_of  # sibling script: benchmarks/ is on sys.path
 
 #: binary pair -> Z4 symbol (the inverse Gray map), indexed by 2 * first + second
 _FROM_PAIR = np.array([0, 1, 3, 2])
@@ -133,18 +134,18 @@ def good_syndromes(quot: Quotient, cols: list[int], light: np.ndarray
     return int((syn == 0).sum()), good
 
 
-def clique_through(quot: Quotient, good: np.ndarray, v: int, limit: int,
-                   time_limit: float) -> list[int]:
-    """A largest set of good syndromes containing v with good pairwise differences."""
-    S = np.nonzero(good)[0]
+def clique_through(quot: Quotient, good: np.ndarray, S: np.ndarray, v: int, limit: int,
+                   time_limit: float) -> tuple[list[int], int]:
+    """A largest set of good syndromes (``S``, all of them) containing v with good pairwise
+    differences, and the number of good syndromes compatible with v."""
     nbr = S[good[quot.add(S, quot.neg(v))]]
     if nbr.size == 0 or nbr.size > limit:
-        return [v]
+        return [v], int(nbr.size)
     diff = quot.add(nbr[None, :], quot.neg(nbr)[:, None])
     dense = good[diff]
     np.fill_diagonal(dense, False)
     res = max_clique(bitsets_from_dense(dense), time_limit=time_limit)
-    return [v] + [int(nbr[i]) for i in res.clique]
+    return [v] + [int(nbr[i]) for i in res.clique], int(nbr.size)
 
 
 def tabu_clique(quot: Quotient, good: np.ndarray, moves: int, rng: np.random.Generator
@@ -205,8 +206,8 @@ def score(quot: Quotient, cols: list[int], light: np.ndarray, rng: np.random.Gen
     best: list[int] = []
     sizes = []
     for v in rng.choice(S, size=min(samples, S.size), replace=False):
-        cl = clique_through(quot, good, int(v), 4000, 2.0)
-        sizes.append(int(good[quot.add(S, quot.neg(int(v)))].sum()))
+        cl, compatible = clique_through(quot, good, S, int(v), 4000, 2.0)
+        sizes.append(compatible)
         if len(cl) > len(best):
             best = cl
     # cosets: the clique plus the zero syndrome
@@ -298,7 +299,7 @@ def main() -> None:
     print(f"columns {','.join(map(str, cols))}: {sc[1]} cosets")
     if sc[0] == 0 and len(clique) + 1 == sc[1]:
         code, gens, reps = build(a, b, quot, cols, clique, d)
-        spec = f"gray:{a}:" + ",".join("".join(map(str, g.tolist())) for g in gens)
+        spec = spec_of(gens, a)
         print(f"({a + 2 * b}, {code.size}, {d}) code checked; group {spec}")
         print("coset representatives (symbols):",
               ["".join(map(str, r.tolist())) for r in reps])
